@@ -1,0 +1,122 @@
+import { and, eq, gt, isNull } from "drizzle-orm";
+import { nanoid } from "nanoid";
+import { createHash, randomBytes } from "node:crypto";
+import type { Db } from "~/db/client.server";
+import { organisations, passwordResets, users, type Role } from "~/db/schema";
+import { hashPassword, verifyPassword } from "./password.server";
+
+export interface SessionUser {
+  id: string;
+  orgId: string;
+  role: Role;
+  displayName: string;
+  email: string | null;
+}
+
+const publicColumns = {
+  id: users.id,
+  orgId: users.orgId,
+  role: users.role,
+  displayName: users.displayName,
+  email: users.email,
+};
+
+export const normaliseEmail = (email: string) => email.trim().toLowerCase();
+
+export async function getUserById(db: Db, id: string): Promise<SessionUser | undefined> {
+  const [row] = await db.select(publicColumns).from(users).where(eq(users.id, id));
+  return row;
+}
+
+export async function emailTaken(db: Db, email: string) {
+  const [row] = await db.select({ id: users.id }).from(users).where(eq(users.email, normaliseEmail(email)));
+  return Boolean(row);
+}
+
+/** Sign-up: a teacher creates their studio and becomes its admin. */
+export async function createStudio(
+  db: Db,
+  input: { studioName: string; displayName: string; email: string; password: string },
+): Promise<SessionUser> {
+  const orgId = nanoid();
+  const user: SessionUser = {
+    id: nanoid(),
+    orgId,
+    role: "admin",
+    displayName: input.displayName,
+    email: normaliseEmail(input.email),
+  };
+  const passwordHash = await hashPassword(input.password);
+  await db.batch([
+    db.insert(organisations).values({ id: orgId, name: input.studioName }),
+    db.insert(users).values({ ...user, passwordHash }),
+  ]);
+  return user;
+}
+
+/** Returns the user when the password matches; the same `undefined` for unknown e-mail and wrong password. */
+export async function checkCredentials(db: Db, email: string, password: string) {
+  const [row] = await db
+    .select({ ...publicColumns, passwordHash: users.passwordHash })
+    .from(users)
+    .where(eq(users.email, normaliseEmail(email)));
+  if (!row?.passwordHash) return undefined;
+  if (!(await verifyPassword(password, row.passwordHash))) return undefined;
+  const { passwordHash: _omit, ...user } = row;
+  return user satisfies SessionUser;
+}
+
+const RESET_TTL_MS = 60 * 60 * 1000;
+const hashToken = (token: string) => createHash("sha256").update(token).digest("hex");
+
+/** Creates a one-time reset token for an account with an e-mail; the caller mails it. */
+export async function createPasswordReset(db: Db, email: string, now = Date.now()) {
+  const [user] = await db
+    .select({ id: users.id, displayName: users.displayName })
+    .from(users)
+    .where(eq(users.email, normaliseEmail(email)));
+  if (!user) return undefined;
+  const token = randomBytes(32).toString("base64url");
+  await db.insert(passwordResets).values({
+    tokenHash: hashToken(token),
+    userId: user.id,
+    expiresAt: new Date(now + RESET_TTL_MS),
+  });
+  return { token, displayName: user.displayName };
+}
+
+async function findLiveReset(db: Db, token: string, now: number) {
+  const [row] = await db
+    .select()
+    .from(passwordResets)
+    .where(
+      and(
+        eq(passwordResets.tokenHash, hashToken(token)),
+        isNull(passwordResets.usedAt),
+        gt(passwordResets.expiresAt, new Date(now)),
+      ),
+    );
+  return row;
+}
+
+export async function resetIsLive(db: Db, token: string, now = Date.now()) {
+  return Boolean(await findLiveReset(db, token, now));
+}
+
+/** Sets the new password and spends the token in one transaction; false when expired or used. */
+export async function consumePasswordReset(db: Db, token: string, password: string, now = Date.now()) {
+  const reset = await findLiveReset(db, token, now);
+  if (!reset) return false;
+  const passwordHash = await hashPassword(password);
+  return db.transaction(async (tx) => {
+    const spent = await tx
+      .update(passwordResets)
+      .set({ usedAt: new Date(now) })
+      .where(and(eq(passwordResets.tokenHash, reset.tokenHash), isNull(passwordResets.usedAt)))
+      .returning({ userId: passwordResets.userId });
+    // A concurrent request spent it first.
+    if (spent.length === 0) return false;
+    await tx.update(users).set({ passwordHash }).where(eq(users.id, reset.userId));
+    return true;
+  });
+}

@@ -1,0 +1,96 @@
+import { Form, Link, NavLink } from "react-router";
+import type { Role } from "~/db/schema";
+
+interface ShellUser {
+  displayName: string;
+  role: Role;
+}
+
+const navFor: Record<Role, { to: string; label: string }[]> = {
+  admin: [
+    { to: "/admin", label: "School" },
+    { to: "/teach", label: "Teach" },
+    { to: "/explore", label: "Neck explorer" },
+  ],
+  teacher: [
+    { to: "/teach", label: "Teach" },
+    { to: "/explore", label: "Neck explorer" },
+  ],
+  student: [
+    { to: "/me", label: "My practice" },
+    { to: "/explore", label: "Neck explorer" },
+  ],
+};
+
+/** The brand mark: three brass frets crossed by strings, one teal fingertip. */
+export function BrandMark({ className = "h-8 w-8" }: { className?: string }) {
+  return <img src="/favicon.svg" alt="" aria-hidden="true" className={className} />;
+}
+
+export function AppShell({
+  user,
+  showOutbox,
+  children,
+}: {
+  user: ShellUser | null;
+  showOutbox: boolean;
+  children: React.ReactNode;
+}) {
+  const links = user ? navFor[user.role] : [{ to: "/explore", label: "Neck explorer" }];
+  return (
+    <div className="flex min-h-dvh flex-col">
+      <header className="no-print border-b-4 border-brass bg-rosewood text-paper">
+        <div className="mx-auto flex max-w-6xl flex-wrap items-center gap-x-6 gap-y-2 px-4 py-3">
+          <Link to="/" className="flex items-center gap-2 font-display text-2xl font-semibold tracking-wide">
+            <BrandMark />
+            Fretcall
+          </Link>
+          <nav aria-label="Main" className="flex flex-wrap gap-1 text-lg">
+            {links.map((l) => (
+              <NavLink
+                key={l.to}
+                to={l.to}
+                end
+                className={({ isActive }) =>
+                  `rounded-full px-3 py-1 ${isActive ? "bg-brass text-rosewood" : "hover:bg-white/10"}`
+                }
+              >
+                {l.label}
+              </NavLink>
+            ))}
+            {user?.role === "admin" && showOutbox ? (
+              <NavLink to="/admin/outbox" className="rounded-full px-3 py-1 hover:bg-white/10">
+                Outbox
+              </NavLink>
+            ) : null}
+          </nav>
+          <div className="ml-auto flex items-center gap-3">
+            {user ? (
+              <>
+                <span className="hidden sm:inline" title={`Signed in as a ${user.role}`}>
+                  {user.displayName}
+                </span>
+                <Form method="post" action="/signout">
+                  <button className="rounded-full border border-paper/40 px-3 py-1 hover:bg-white/10">Sign out</button>
+                </Form>
+              </>
+            ) : (
+              <>
+                <Link to="/signin" className="rounded-full px-3 py-1 hover:bg-white/10">
+                  Sign in
+                </Link>
+                <Link to="/signup" className="rounded-full bg-brass px-4 py-1 font-medium text-rosewood">
+                  Start a studio
+                </Link>
+              </>
+            )}
+          </div>
+        </div>
+      </header>
+      <main className="mx-auto w-full max-w-6xl flex-1 px-4 py-6">{children}</main>
+      <footer className="no-print border-t border-ink/10 px-4 py-4 text-center text-sm text-ink-soft">
+        Fretcall · read the note, find the fret · take a short break every 20 minutes to rest your hands
+      </footer>
+    </div>
+  );
+}

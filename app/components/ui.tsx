@@ -1,0 +1,87 @@
+// Shared building blocks. Every state carries a word or an icon as well as a colour.
+import type { ButtonHTMLAttributes, InputHTMLAttributes, ReactNode } from "react";
+
+type Tone = "ink" | "brass" | "teal" | "brick" | "ghost";
+
+const buttonTones: Record<Tone, string> = {
+  ink: "bg-ink text-paper hover:bg-ink/90",
+  brass: "bg-brass text-rosewood hover:brightness-105",
+  teal: "bg-teal text-white hover:brightness-105",
+  brick: "bg-brick text-white hover:brightness-105",
+  ghost: "border-2 border-ink/20 text-ink hover:bg-ink/5",
+};
+
+export function buttonClass(tone: Tone = "ink", extra = "") {
+  return `inline-flex min-h-11 items-center justify-center gap-2 rounded-2xl px-5 py-2 font-display text-lg font-medium transition disabled:cursor-not-allowed disabled:opacity-50 ${buttonTones[tone]} ${extra}`;
+}
+
+export function Button({ tone = "ink", className = "", ...props }: ButtonHTMLAttributes<HTMLButtonElement> & { tone?: Tone }) {
+  return <button className={buttonClass(tone, className)} {...props} />;
+}
+
+export function Card({ children, className = "" }: { children: ReactNode; className?: string }) {
+  return <section className={`rounded-3xl border border-ink/10 bg-white/70 p-5 shadow-sm ${className}`}>{children}</section>;
+}
+
+/** A labelled input with its error beneath it, wired for screen readers. */
+export function Field({
+  label,
+  name,
+  error,
+  hint,
+  ...input
+}: InputHTMLAttributes<HTMLInputElement> & { label: string; name: string; error?: string; hint?: string }) {
+  const describedBy = [error ? `${name}-error` : null, hint ? `${name}-hint` : null].filter(Boolean).join(" ");
+  return (
+    <label className="block">
+      <span className="font-medium">{label}</span>
+      <input
+        name={name}
+        aria-invalid={error ? true : undefined}
+        aria-describedby={describedBy || undefined}
+        className={`mt-1 block min-h-11 w-full rounded-xl border-2 bg-white px-3 py-2 text-lg ${error ? "border-brick" : "border-ink/20 focus:border-sky"}`}
+        {...input}
+      />
+      {hint ? (
+        <span id={`${name}-hint`} className="mt-1 block text-sm text-ink-soft">
+          {hint}
+        </span>
+      ) : null}
+      {error ? (
+        <span id={`${name}-error`} className="mt-1 block text-sm font-medium text-brick">
+          ✗ {error}
+        </span>
+      ) : null}
+    </label>
+  );
+}
+
+const noticeTones = {
+  error: { box: "border-brick bg-brick/10", icon: "✗", word: "Problem" },
+  success: { box: "border-teal bg-teal/10", icon: "✓", word: "Done" },
+  info: { box: "border-sky bg-sky/10", icon: "i", word: "Note" },
+} as const;
+
+export function Notice({ tone, children }: { tone: keyof typeof noticeTones; children: ReactNode }) {
+  const t = noticeTones[tone];
+  return (
+    <div role={tone === "error" ? "alert" : "status"} className={`flex gap-3 rounded-2xl border-2 p-3 ${t.box}`}>
+      <span aria-hidden="true" className="font-bold">
+        {t.icon}
+      </span>
+      <span>
+        <span className="sr-only">{t.word}: </span>
+        {children}
+      </span>
+    </div>
+  );
+}
+
+export function PageTitle({ children, lead }: { children: ReactNode; lead?: ReactNode }) {
+  return (
+    <div className="mb-6">
+      <h1 className="font-display text-3xl font-semibold sm:text-4xl">{children}</h1>
+      {lead ? <p className="mt-2 max-w-2xl text-lg text-ink-soft">{lead}</p> : null}
+    </div>
+  );
+}

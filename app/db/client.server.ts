@@ -1,0 +1,43 @@
+import { createClient, type Client } from "@libsql/client";
+import { drizzle, type LibSQLDatabase } from "drizzle-orm/libsql";
+import { migrate } from "drizzle-orm/libsql/migrator";
+import { mkdirSync } from "node:fs";
+import { dirname, resolve } from "node:path";
+import * as schema from "./schema";
+
+export type Db = LibSQLDatabase<typeof schema> & { $client: Client };
+
+// The server always runs from the project root (npm scripts), in development and from the build.
+export const MIGRATIONS_FOLDER = resolve("drizzle");
+
+/**
+ * Opens the one database client. An embedded file gets WAL (readers never block the writer during
+ * a round) and foreign keys; a remote libSQL URL is used as it is.
+ */
+export async function openDb(url: string, authToken?: string): Promise<Db> {
+  if (url.startsWith("file:")) {
+    const path = url.slice("file:".length);
+    if (path !== ":memory:") mkdirSync(dirname(resolve(path)), { recursive: true });
+  }
+  const client = createClient({ url, authToken });
+  if (url.startsWith("file:")) {
+    await client.execute("PRAGMA journal_mode = WAL");
+    await client.execute("PRAGMA busy_timeout = 5000");
+  }
+  await client.execute("PRAGMA foreign_keys = ON");
+  return drizzle(client, { schema }) as Db;
+}
+
+export async function migrateDb(db: Db, migrationsFolder = MIGRATIONS_FOLDER) {
+  await migrate(db, { migrationsFolder });
+}
+
+/** Writes the WAL back into the main file so a stopped server leaves one self-contained file. */
+export async function closeDb(db: Db) {
+  try {
+    await db.$client.execute("PRAGMA wal_checkpoint(TRUNCATE)");
+  } catch {
+    // Remote databases have no WAL to checkpoint.
+  }
+  db.$client.close();
+}

@@ -1,0 +1,44 @@
+import { z } from "zod";
+
+const schema = z
+  .object({
+    NODE_ENV: z.enum(["development", "production", "test"]).default("development"),
+    PORT: z.coerce.number().int().min(0).max(65535).default(3000),
+    HOST: z.string().default("0.0.0.0"),
+    DATABASE_URL: z
+      .string()
+      .regex(/^(file:|libsql:|https?:|wss?:)/, "must start with file:, libsql:, http(s): or ws(s):")
+      .default("file:data/fretcall.db"),
+    DATABASE_AUTH_TOKEN: z.string().optional(),
+    SESSION_SECRET: z.string().min(32, "must be at least 32 characters").optional(),
+    // Without SMTP_URL, outside production, a local catcher on loopback receives all mail.
+    SMTP_URL: z.url().optional(),
+    MAIL_FROM: z.string().default("Fretcall <no-reply@fretcall.local>"),
+    // Where captured mail is written as files (development and tests).
+    MAIL_DIR: z.string().default("data/mail"),
+    // Public address used in e-mailed links; defaults to http://localhost:PORT.
+    PUBLIC_URL: z.url().optional(),
+  })
+  .superRefine((env, ctx) => {
+    if (env.NODE_ENV === "production" && !env.SESSION_SECRET) {
+      ctx.addIssue({ code: "custom", path: ["SESSION_SECRET"], message: "is required in production" });
+    }
+  });
+
+export type Env = z.infer<typeof schema> & { SESSION_SECRET: string; PUBLIC_URL: string };
+
+/** Reads and checks the environment; throws one error that lists every problem. */
+export function loadEnv(source: Record<string, string | undefined> = process.env): Env {
+  const result = schema.safeParse(source);
+  if (!result.success) {
+    const lines = result.error.issues.map((i) => `  ${i.path.join(".") || "(env)"}: ${i.message}`);
+    throw new Error(`Invalid environment:\n${lines.join("\n")}`);
+  }
+  const env = result.data;
+  return {
+    ...env,
+    // Development and tests get a fixed secret so sessions survive restarts; production must set one.
+    SESSION_SECRET: env.SESSION_SECRET ?? "development-only-secret-not-for-production-use",
+    PUBLIC_URL: env.PUBLIC_URL ?? `http://localhost:${env.PORT}`,
+  };
+}

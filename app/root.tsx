@@ -1,0 +1,73 @@
+import { isRouteErrorResponse, Links, Meta, Outlet, Scripts, ScrollRestoration, useRouteLoaderData } from "react-router";
+import type { Route } from "./+types/root";
+import "./app.css";
+import { getOptionalUser } from "./auth/guards.server";
+import { AppShell } from "./components/AppShell";
+import { nonceContext } from "./context";
+
+export const meta: Route.MetaFunction = () => [
+  { title: "Fretcall — read the note, find the fret" },
+  { name: "description", content: "Live reading rounds and practice for group guitar classes." },
+];
+
+export async function loader({ request, context }: Route.LoaderArgs) {
+  const user = await getOptionalUser(request, context);
+  return {
+    nonce: context.get(nonceContext),
+    user: user ? { displayName: user.displayName, role: user.role } : null,
+    showOutbox: process.env.NODE_ENV !== "production",
+  };
+}
+
+export function Layout({ children }: { children: React.ReactNode }) {
+  const data = useRouteLoaderData<typeof loader>("root");
+  return (
+    <html lang="en">
+      <head>
+        <meta charSet="utf-8" />
+        <meta name="viewport" content="width=device-width, initial-scale=1, viewport-fit=cover" />
+        <meta name="theme-color" content="#3b1f1a" />
+        <link rel="icon" href="/favicon.svg" type="image/svg+xml" />
+        <Meta />
+        <Links />
+      </head>
+      <body className="min-h-dvh bg-paper text-ink antialiased">
+        {children}
+        <ScrollRestoration nonce={data?.nonce} />
+        <Scripts nonce={data?.nonce} />
+      </body>
+    </html>
+  );
+}
+
+export default function App({ loaderData }: Route.ComponentProps) {
+  return (
+    <AppShell user={loaderData.user} showOutbox={loaderData.showOutbox}>
+      <Outlet />
+    </AppShell>
+  );
+}
+
+export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
+  let title = "Something went wrong";
+  let detail = "Please try again. If it keeps happening, tell your teacher or the school's admin.";
+  if (isRouteErrorResponse(error)) {
+    title = error.status === 404 ? "Page not found" : `${error.status} ${error.statusText || "Error"}`;
+    const message = (error.data as { error?: string } | undefined)?.error;
+    if (error.status === 404) detail = "That page doesn't exist. Check the address, or go back to the start.";
+    else if (message) detail = message;
+  } else if (import.meta.env.DEV && error instanceof Error) {
+    detail = error.message;
+  }
+  return (
+    <AppShell user={null} showOutbox={false}>
+      <section className="mx-auto max-w-xl py-16 text-center">
+        <h1 className="font-display text-3xl font-semibold">{title}</h1>
+        <p className="mt-4 text-ink-soft">{detail}</p>
+        <a href="/" className="mt-8 inline-block rounded-full bg-ink px-6 py-3 text-paper">
+          Back to the start
+        </a>
+      </section>
+    </AppShell>
+  );
+}

@@ -1,0 +1,20 @@
+import { type RouteConfig, index, prefix, route } from "@react-router/dev/routes";
+
+export default [
+  index("routes/home.tsx"),
+  route("signup", "routes/auth/signup.tsx"),
+  route("signin", "routes/auth/signin.tsx"),
+  route("signout", "routes/auth/signout.ts"),
+  route("forgot", "routes/auth/forgot.tsx"),
+  route("reset/:token", "routes/auth/reset.tsx"),
+  // EXPLORE
+  route("teach", "routes/teacher/dashboard.tsx"),
+  route("me", "routes/student/home.tsx"),
+  ...prefix("admin", [index("routes/admin/school.tsx"), route("outbox", "routes/admin/outbox.tsx")]),
+  ...prefix("api/v1", [
+    route("me", "routes/api/me.ts"),
+    // SPOTS
+    // SPOTMAP
+  ]),
+  route("*", "routes/not-found.tsx"),
+] satisfies RouteConfig;

@@ -1,0 +1,52 @@
+import { Form, Link, redirect, useNavigation, useSearchParams } from "react-router";
+import { SignInError } from "~/auth/authenticator.server";
+import { getOptionalUser } from "~/auth/guards.server";
+import { homeFor, startSession } from "~/auth/session.server";
+import { Button, Card, Field, Notice, PageTitle } from "~/components/ui";
+import { services } from "~/context";
+import { safeRedirect } from "~/lib/forms";
+import type { Route } from "./+types/signin";
+
+export const meta: Route.MetaFunction = () => [{ title: "Sign in · Fretcall" }];
+
+export async function loader({ request, context }: Route.LoaderArgs) {
+  const user = await getOptionalUser(request, context);
+  if (user) throw redirect(homeFor(user.role));
+  return null;
+}
+
+export async function action({ request, context }: Route.ActionArgs) {
+  const { authenticator, sessions } = services(context);
+  const form = await request.clone().formData();
+  try {
+    const user = await authenticator.authenticate("form", request);
+    return startSession(sessions, request, user.id, safeRedirect(form.get("redirectTo"), homeFor(user.role)));
+  } catch (error) {
+    if (error instanceof SignInError) return { error: error.message, email: String(form.get("email") ?? "") };
+    throw error;
+  }
+}
+
+export default function SignIn({ actionData }: Route.ComponentProps) {
+  const [params] = useSearchParams();
+  const busy = useNavigation().state === "submitting";
+  return (
+    <div className="mx-auto max-w-md">
+      <PageTitle>Sign in</PageTitle>
+      <Card>
+        <Form method="post" className="space-y-4" noValidate>
+          {actionData?.error ? <Notice tone="error">{actionData.error}</Notice> : null}
+          <input type="hidden" name="redirectTo" value={params.get("redirectTo") ?? ""} />
+          <Field label="E-mail" name="email" type="email" autoComplete="email" defaultValue={actionData?.email} required />
+          <Field label="Password" name="password" type="password" autoComplete="current-password" required />
+          <Button type="submit" disabled={busy} className="w-full">
+            {busy ? "Signing in…" : "Sign in"}
+          </Button>
+        </Form>
+      </Card>
+      <p className="mt-4 text-center">
+        <Link to="/forgot" className="underline">Forgot your password?</Link>
+      </p>
+    </div>
+  );
+}

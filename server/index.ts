@@ -1,0 +1,151 @@
+import compression from "compression";
+import express from "express";
+import helmet from "helmet";
+import { randomBytes } from "node:crypto";
+import { createServer, type Server } from "node:http";
+import type { AddressInfo } from "node:net";
+import { resolve } from "node:path";
+import { pathToFileURL } from "node:url";
+import { closeDb, migrateDb, openDb } from "~/db/client.server";
+import { loadEnv, type Env } from "~/env.server";
+import { createMailer } from "~/mail/mailer.server";
+import { createServices, type Services } from "~/services.server";
+import type { createAppHandler } from "./app";
+import { startMailCatcher } from "./mail-catcher";
+import { attachSockets } from "./sockets";
+
+export interface RunningServer {
+  url: string;
+  port: number;
+  services: Services;
+  server: Server;
+  close(): Promise<void>;
+}
+
+/** Same-origin check for state-changing requests and WebSocket upgrades (CSRF and cross-site sockets). */
+export function sameOrigin(origin: string | undefined, host: string | undefined) {
+  if (!origin) return true; // non-browser clients send no Origin; cookies alone never authorise them cross-site
+  try {
+    return new URL(origin).host === host;
+  } catch {
+    return false;
+  }
+}
+
+export async function startServer(overrides: Record<string, string | undefined> = {}): Promise<RunningServer> {
+  const env: Env = loadEnv({ ...process.env, ...overrides });
+  const production = env.NODE_ENV === "production";
+
+  const db = await openDb(env.DATABASE_URL, env.DATABASE_AUTH_TOKEN);
+  await migrateDb(db);
+  const catcher = env.SMTP_URL || production ? undefined : await startMailCatcher(env.MAIL_DIR);
+  const smtpUrl = env.SMTP_URL ?? catcher?.url;
+  if (!smtpUrl) throw new Error("Invalid environment:\n  SMTP_URL: is required in production");
+  const services = createServices(env, db, createMailer(smtpUrl, env.MAIL_FROM));
+
+  const app = express();
+  app.disable("x-powered-by");
+  app.set("trust proxy", false);
+  app.use((req, res, next) => {
+    res.locals.cspNonce = randomBytes(16).toString("base64");
+    // Rate limits key on this; a client-sent copy of the header is overwritten.
+    req.headers["x-fretcall-client-address"] = req.socket.remoteAddress ?? "unknown";
+    next();
+  });
+  app.use(
+    helmet({
+      // Vite's development client injects inline scripts, so the strict policy is for production.
+      contentSecurityPolicy: production
+        ? {
+            directives: {
+              defaultSrc: ["'self'"],
+              scriptSrc: ["'self'", (_req, res) => `'nonce-${(res as express.Response).locals.cspNonce}'`],
+              styleSrc: ["'self'", "'unsafe-inline'"],
+              imgSrc: ["'self'", "data:", "blob:"],
+              fontSrc: ["'self'", "data:"],
+              connectSrc: ["'self'"],
+              workerSrc: ["'self'", "blob:"],
+              upgradeInsecureRequests: null,
+            },
+          }
+        : false,
+      // Plain http on a school network must keep working; HSTS belongs to the TLS proxy in front.
+      strictTransportSecurity: false,
+    }),
+  );
+  app.use(compression());
+  app.use((req, res, next) => {
+    if (["GET", "HEAD", "OPTIONS"].includes(req.method) || sameOrigin(req.headers.origin, req.headers.host)) return next();
+    res.status(403).json({ error: "Cross-site request refused." });
+  });
+  app.get("/healthz", async (_req, res) => {
+    try {
+      await db.$client.execute("SELECT 1");
+      res.json({ status: "ok", uptimeSeconds: Math.round(process.uptime()) });
+    } catch (error) {
+      res.status(503).json({ status: "error", error: String(error) });
+    }
+  });
+
+  let closeVite = async () => {};
+  if (production) {
+    app.use("/assets", express.static("build/client/assets", { immutable: true, maxAge: "1y" }));
+    app.use(express.static("build/client", { maxAge: "1h" }));
+    const build = (await import(pathToFileURL(resolve("build/server/index.js")).href)) as {
+      createAppHandler: typeof createAppHandler;
+    };
+    app.use(build.createAppHandler(services));
+  } else {
+    const vite = await import("vite").then((v) => v.createServer({ server: { middlewareMode: true } }));
+    closeVite = () => vite.close();
+    app.use(vite.middlewares);
+    app.use(async (req, res, next) => {
+      try {
+        const mod = (await vite.ssrLoadModule("./server/app.ts")) as { createAppHandler: typeof createAppHandler };
+        await mod.createAppHandler(services)(req, res, next);
+      } catch (error) {
+        if (error instanceof Error) vite.ssrFixStacktrace(error);
+        next(error);
+      }
+    });
+  }
+
+  const server = createServer(app);
+  const sockets = attachSockets(server, { allowOrigin: sameOrigin, maxPayload: 4096 });
+  await new Promise<void>((done) => server.listen(env.PORT, env.HOST, done));
+  const port = (server.address() as AddressInfo).port;
+
+  let closing: Promise<void> | undefined;
+  const close = () =>
+    (closing ??= (async () => {
+      sockets.close();
+      await new Promise<void>((done) => {
+        server.close(() => done());
+        server.closeAllConnections();
+      });
+      await closeVite();
+      services.mailer.close();
+      await catcher?.close();
+      await closeDb(db);
+    })());
+
+  return { url: `http://localhost:${port}`, port, services, server, close };
+}
+
+// Run directly (npm run dev / npm start), not when imported by tests.
+if (process.argv[1] && resolve(process.argv[1]) === resolve("server/index.ts")) {
+  startServer()
+    .then((running) => {
+      console.log(`Fretcall is listening on ${running.url}`);
+      for (const signal of ["SIGTERM", "SIGINT"] as const) {
+        process.once(signal, () => {
+          console.log(`${signal}: closing connections and flushing the database…`);
+          running.close().then(() => process.exit(0));
+        });
+      }
+    })
+    .catch((error: unknown) => {
+      console.error(error instanceof Error ? error.message : error);
+      process.exit(1);
+    });
+}

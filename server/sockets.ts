@@ -1,0 +1,60 @@
+import type { IncomingMessage, Server } from "node:http";
+import type { Duplex } from "node:stream";
+import { WebSocketServer, type WebSocket } from "ws";
+
+export const HEARTBEAT_MS = 15_000;
+/** Close code sent to every socket when the server stops (RFC 6455 §7.4.1 "going away"). */
+export const CLOSE_GOING_AWAY = 1001;
+
+export interface SocketHost {
+  wss: WebSocketServer;
+  close(): void;
+}
+
+/**
+ * The WebSocket server on /ws: we handle the upgrade ourselves (noServer) so other upgrade
+ * paths are refused, and a ping every HEARTBEAT_MS ends peers that stopped answering.
+ */
+export function attachSockets(
+  server: Server,
+  opts: { allowOrigin: (origin: string | undefined, host: string | undefined) => boolean; maxPayload: number },
+): SocketHost {
+  const wss = new WebSocketServer({ noServer: true, maxPayload: opts.maxPayload });
+  const alive = new WeakMap<WebSocket, boolean>();
+
+  server.on("upgrade", (req: IncomingMessage, socket: Duplex, head: Buffer) => {
+    const path = (req.url ?? "").split("?")[0];
+    if (path !== "/ws") return; // other upgrades (Vite's HMR in development) belong to their owners
+    if (!opts.allowOrigin(req.headers.origin, req.headers.host)) {
+      socket.end("HTTP/1.1 403 Forbidden\r\nConnection: close\r\n\r\n");
+      return;
+    }
+    wss.handleUpgrade(req, socket, head, (ws) => wss.emit("connection", ws, req));
+  });
+
+  wss.on("connection", (ws) => {
+    alive.set(ws, true);
+    ws.on("pong", () => alive.set(ws, true));
+  });
+
+  const timer = setInterval(() => {
+    for (const ws of wss.clients) {
+      if (!alive.get(ws)) {
+        ws.terminate();
+        continue;
+      }
+      alive.set(ws, false);
+      ws.ping();
+    }
+  }, HEARTBEAT_MS);
+  timer.unref();
+
+  return {
+    wss,
+    close() {
+      clearInterval(timer);
+      for (const ws of wss.clients) ws.close(CLOSE_GOING_AWAY, "server is stopping");
+      wss.close();
+    },
+  };
+}

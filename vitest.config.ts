@@ -1,0 +1,14 @@
+import { fileURLToPath } from "node:url";
+import { defineConfig } from "vitest/config";
+
+// Kept apart from vite.config.ts: the React Router plugin is for app builds, not for tests.
+export default defineConfig({
+  resolve: { alias: { "~": fileURLToPath(new URL("./app", import.meta.url)) } },
+  test: {
+    include: ["app/**/*.test.ts", "app/**/*.test.tsx", "server/**/*.test.ts", "tests/integration/**/*.test.ts"],
+    globalSetup: ["tests/setup/global.ts"],
+    setupFiles: ["tests/setup/worker.ts"],
+    testTimeout: 30_000,
+    hookTimeout: 60_000,
+  },
+});
