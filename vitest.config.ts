@@ -8,6 +8,9 @@ export default defineConfig({
     include: ["app/**/*.test.ts", "app/**/*.test.tsx", "server/**/*.test.ts", "tests/integration/**/*.test.ts"],
     globalSetup: ["tests/setup/global.ts"],
     setupFiles: ["tests/setup/worker.ts"],
+    // The server build is loaded by Node itself, as in production, so it shares react-router's
+    // module instance with @react-router/express instead of getting a transformed copy.
+    server: { deps: { external: [/\/build\/server\//] } },
     testTimeout: 30_000,
     hookTimeout: 60_000,
   },

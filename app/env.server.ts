@@ -11,8 +11,10 @@ const schema = z
       .default("file:data/fretcall.db"),
     DATABASE_AUTH_TOKEN: z.string().optional(),
     SESSION_SECRET: z.string().min(32, "must be at least 32 characters").optional(),
-    // Without SMTP_URL, outside production, a local catcher on loopback receives all mail.
     SMTP_URL: z.url().optional(),
+    // 1: a local catcher on loopback receives all mail (MAIL_DIR, admin outbox page). The default
+    // outside production; the demo turns it on for its production build.
+    MAIL_CAPTURE: z.enum(["0", "1"]).optional(),
     MAIL_FROM: z.string().default("Fretcall <no-reply@fretcall.local>"),
     // Where captured mail is written as files (development and tests).
     MAIL_DIR: z.string().default("data/mail"),
@@ -23,9 +25,17 @@ const schema = z
     if (env.NODE_ENV === "production" && !env.SESSION_SECRET) {
       ctx.addIssue({ code: "custom", path: ["SESSION_SECRET"], message: "is required in production" });
     }
+    if (env.NODE_ENV === "production" && !env.SMTP_URL && env.MAIL_CAPTURE !== "1") {
+      ctx.addIssue({ code: "custom", path: ["SMTP_URL"], message: "is required in production (or MAIL_CAPTURE=1)" });
+    }
   });
 
-export type Env = z.infer<typeof schema> & { SESSION_SECRET: string; PUBLIC_URL: string };
+export type Env = Omit<z.infer<typeof schema>, "MAIL_CAPTURE"> & {
+  SESSION_SECRET: string;
+  PUBLIC_URL: string;
+  /** Mail goes to the local catcher instead of SMTP_URL. */
+  mailCapture: boolean;
+};
 
 /** Reads and checks the environment; throws one error that lists every problem. */
 export function loadEnv(source: Record<string, string | undefined> = process.env): Env {
@@ -34,9 +44,10 @@ export function loadEnv(source: Record<string, string | undefined> = process.env
     const lines = result.error.issues.map((i) => `  ${i.path.join(".") || "(env)"}: ${i.message}`);
     throw new Error(`Invalid environment:\n${lines.join("\n")}`);
   }
-  const env = result.data;
+  const { MAIL_CAPTURE, ...env } = result.data;
   return {
     ...env,
+    mailCapture: MAIL_CAPTURE ? MAIL_CAPTURE === "1" : !env.SMTP_URL && env.NODE_ENV !== "production",
     // Development and tests get a fixed secret so sessions survive restarts; production must set one.
     SESSION_SECRET: env.SESSION_SECRET ?? "development-only-secret-not-for-production-use",
     PUBLIC_URL: env.PUBLIC_URL ?? `http://localhost:${env.PORT}`,

@@ -3,7 +3,7 @@ import type { Route } from "./+types/root";
 import "./app.css";
 import { getOptionalUser } from "./auth/guards.server";
 import { AppShell } from "./components/AppShell";
-import { nonceContext } from "./context";
+import { nonceContext, services } from "./context";
 
 export const meta: Route.MetaFunction = () => [
   { title: "Fretcall — read the note, find the fret" },
@@ -15,7 +15,7 @@ export async function loader({ request, context }: Route.LoaderArgs) {
   return {
     nonce: context.get(nonceContext),
     user: user ? { displayName: user.displayName, role: user.role } : null,
-    showOutbox: process.env.NODE_ENV !== "production",
+    showOutbox: services(context).env.mailCapture,
   };
 }
 

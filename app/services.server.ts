@@ -7,18 +7,20 @@ import type { Mailer } from "~/mail/mailer.server";
 
 /** Everything a loader or action may reach, created once by the server and handed over per request. */
 export function createServices(env: Env, db: Db, mailer: Mailer) {
-  const signInLimiter = new RateLimiter(5, 15 * 60 * 1000);
+  const signIn = {
+    account: new RateLimiter(5, 15 * 60 * 1000),
+    // A whole class may sit behind one school address, so the per-address limit is generous.
+    address: new RateLimiter(100, 15 * 60 * 1000),
+  };
+  const reset = { account: new RateLimiter(3, 60 * 60 * 1000), address: new RateLimiter(30, 60 * 60 * 1000) };
   return {
     env,
     db,
     mailer,
     sessions: createSessionStorage(env.SESSION_SECRET, env.NODE_ENV === "production"),
-    authenticator: createAuthenticator(db, signInLimiter),
-    limits: {
-      signIn: signInLimiter,
-      // Reset mails are sent rarely; a low limit stops the form being used to flood an inbox.
-      reset: new RateLimiter(3, 60 * 60 * 1000),
-    },
+    authenticator: createAuthenticator(db, signIn),
+    // Reset mails are rare; a low per-account limit stops the form being used to flood an inbox.
+    limits: { signIn, reset },
   };
 }
 

@@ -38,10 +38,8 @@ export async function startServer(overrides: Record<string, string | undefined> 
 
   const db = await openDb(env.DATABASE_URL, env.DATABASE_AUTH_TOKEN);
   await migrateDb(db);
-  const catcher = env.SMTP_URL || production ? undefined : await startMailCatcher(env.MAIL_DIR);
-  const smtpUrl = env.SMTP_URL ?? catcher?.url;
-  if (!smtpUrl) throw new Error("Invalid environment:\n  SMTP_URL: is required in production");
-  const services = createServices(env, db, createMailer(smtpUrl, env.MAIL_FROM));
+  const catcher = env.mailCapture ? await startMailCatcher(env.MAIL_DIR) : undefined;
+  const services = createServices(env, db, createMailer(catcher?.url ?? env.SMTP_URL!, env.MAIL_FROM));
 
   const app = express();
   app.disable("x-powered-by");

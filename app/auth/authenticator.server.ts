@@ -2,32 +2,34 @@ import { Authenticator } from "remix-auth";
 import { FormStrategy } from "remix-auth-form";
 import { z } from "zod";
 import type { Db } from "~/db/client.server";
+import { checkLimits, type AttemptLimits } from "./rate-limit.server";
 import { email } from "./schemas";
-import { checkLimits, clientAddress, type RateLimiter } from "./rate-limit.server";
 import { checkCredentials, normaliseEmail, type SessionUser } from "./users.server";
-
-/** A sign-in refusal whose message is safe to show the person signing in. */
-export class SignInError extends Error {}
 
 export const signInSchema = z.object({
   email,
   password: z.string().min(1, "Enter your password.").max(200, "That password is too long."),
 });
 
-export function createAuthenticator(db: Db, limiter: RateLimiter) {
-  const authenticator = new Authenticator<SessionUser>();
+/**
+ * A refusal is a value, not an exception: the server creates the authenticator outside the
+ * route bundle, so error classes would not be the same objects on both sides.
+ */
+export type SignInResult = { ok: true; user: SessionUser } | { ok: false; message: string };
+
+export function createAuthenticator(db: Db, limits: AttemptLimits) {
+  const authenticator = new Authenticator<SignInResult>();
   authenticator.use(
-    new FormStrategy(async ({ form, request }) => {
+    new FormStrategy(async ({ form, request }): Promise<SignInResult> => {
       const parsed = signInSchema.safeParse(Object.fromEntries(form));
-      if (!parsed.success) throw new SignInError(parsed.error.issues[0]!.message);
-      const email = normaliseEmail(parsed.data.email);
-      const accountKey = `account:${email}`;
-      const wait = checkLimits(limiter, [accountKey, `address:${clientAddress(request)}`]);
-      if (wait > 0) throw new SignInError(`Too many sign-in attempts. Try again in ${Math.ceil(wait / 60)} minutes.`);
-      const user = await checkCredentials(db, email, parsed.data.password);
-      if (!user) throw new SignInError("That e-mail and password don't match an account.");
-      limiter.reset(accountKey);
-      return user;
+      if (!parsed.success) return { ok: false, message: parsed.error.issues[0]!.message };
+      const address = normaliseEmail(parsed.data.email);
+      const wait = checkLimits(limits, address, request);
+      if (wait > 0) return { ok: false, message: `Too many sign-in attempts. Try again in ${Math.ceil(wait / 60)} minutes.` };
+      const user = await checkCredentials(db, address, parsed.data.password);
+      if (!user) return { ok: false, message: "That e-mail and password don't match an account." };
+      limits.account.reset(address);
+      return { ok: true, user };
     }),
     "form",
   );

@@ -1,6 +1,6 @@
 /**
  * Fixed-window attempt counter kept in memory: enough for one server process, and a restart
- * only forgives attempts early. Keys are e.g. "account:sam@example.org" or "address:203.0.113.5".
+ * only forgives attempts early.
  */
 export class RateLimiter {
   private readonly hits = new Map<string, { count: number; resetAt: number }>();
@@ -34,9 +34,14 @@ export class RateLimiter {
   }
 }
 
-/** Every key an attempt counts against; the attempt is refused if any is over its limit. */
-export function checkLimits(limiter: RateLimiter, keys: string[]): number {
-  return Math.max(0, ...keys.map((k) => limiter.hit(k)));
+export interface AttemptLimits {
+  account: RateLimiter;
+  address: RateLimiter;
+}
+
+/** Counts an attempt against both the account and the client address; returns seconds to wait, or 0. */
+export function checkLimits(limits: AttemptLimits, account: string, request: Request): number {
+  return Math.max(limits.account.hit(account), limits.address.hit(clientAddress(request)));
 }
 
 export function clientAddress(request: Request): string {

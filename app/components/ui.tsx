@@ -23,19 +23,23 @@ export function Card({ children, className = "" }: { children: ReactNode; classN
   return <section className={`rounded-3xl border border-ink/10 bg-white/70 p-5 shadow-sm ${className}`}>{children}</section>;
 }
 
-/** A labelled input with its error beneath it, wired for screen readers. */
+/** A labelled input with its hint and error beneath it, wired for screen readers. */
 export function Field({
   label,
   name,
   error,
   hint,
+  id = `field-${name}`,
   ...input
 }: InputHTMLAttributes<HTMLInputElement> & { label: string; name: string; error?: string; hint?: string }) {
-  const describedBy = [error ? `${name}-error` : null, hint ? `${name}-hint` : null].filter(Boolean).join(" ");
+  const describedBy = [error ? `${id}-error` : null, hint ? `${id}-hint` : null].filter(Boolean).join(" ");
   return (
-    <label className="block">
-      <span className="font-medium">{label}</span>
+    <div>
+      <label htmlFor={id} className="font-medium">
+        {label}
+      </label>
       <input
+        id={id}
         name={name}
         aria-invalid={error ? true : undefined}
         aria-describedby={describedBy || undefined}
@@ -43,16 +47,17 @@ export function Field({
         {...input}
       />
       {hint ? (
-        <span id={`${name}-hint`} className="mt-1 block text-sm text-ink-soft">
+        <p id={`${id}-hint`} className="mt-1 text-sm text-ink-soft">
           {hint}
-        </span>
+        </p>
       ) : null}
       {error ? (
-        <span id={`${name}-error`} className="mt-1 block text-sm font-medium text-brick">
-          ✗ {error}
-        </span>
+        <p id={`${id}-error`} className="mt-1 text-sm font-medium text-brick">
+          <span aria-hidden="true">✗ </span>
+          {error}
+        </p>
       ) : null}
-    </label>
+    </div>
   );
 }
 

@@ -10,15 +10,15 @@ export const meta: Route.MetaFunction = () => [{ title: "Outbox · Fretcall" }];
 export async function loader({ request, context }: Route.LoaderArgs) {
   await requireUserWithRole(request, context, ["admin"]);
   const { env } = services(context);
-  // Captured mail exists only where the local catcher runs; in production mail goes to the provider.
-  if (env.NODE_ENV === "production") throw data({ error: "The outbox exists only in development." }, { status: 404 });
+  // Captured mail exists only where the local catcher runs; otherwise mail went to the provider.
+  if (!env.mailCapture) throw data({ error: "The outbox exists only while mail is captured locally." }, { status: 404 });
   return { mails: (await readOutbox(env.MAIL_DIR)).slice(0, 100) };
 }
 
 export default function Outbox({ loaderData }: Route.ComponentProps) {
   return (
     <div>
-      <PageTitle lead="Development only: every e-mail the app sent, caught before it left this machine.">Outbox</PageTitle>
+      <PageTitle lead="Every e-mail the app sent, caught before it left this machine (development and demo only).">Outbox</PageTitle>
       {loaderData.mails.length === 0 ? <Card>No e-mail sent yet.</Card> : null}
       <ul className="space-y-3">
         {loaderData.mails.map((m) => (

@@ -1,6 +1,6 @@
 import { Form, Link, useNavigation } from "react-router";
 import { z } from "zod";
-import { checkLimits, clientAddress } from "~/auth/rate-limit.server";
+import { checkLimits } from "~/auth/rate-limit.server";
 import { email } from "~/auth/schemas";
 import { createPasswordReset, normaliseEmail } from "~/auth/users.server";
 import { Button, Card, Field, Notice, PageTitle } from "~/components/ui";
@@ -15,7 +15,7 @@ export async function action({ request, context }: Route.ActionArgs) {
   const parsed = parseForm(z.object({ email }), await request.formData());
   if (!parsed.ok) return { errors: parsed.errors, sent: false };
   const address = normaliseEmail(parsed.data.email);
-  const wait = checkLimits(limits.reset, [`account:${address}`, `address:${clientAddress(request)}`]);
+  const wait = checkLimits(limits.reset, address, request);
   if (wait > 0) {
     return { errors: { form: `Too many reset requests. Try again in ${Math.ceil(wait / 60)} minutes.` }, sent: false };
   }

@@ -1,5 +1,4 @@
 import { Form, Link, redirect, useNavigation, useSearchParams } from "react-router";
-import { SignInError } from "~/auth/authenticator.server";
 import { getOptionalUser } from "~/auth/guards.server";
 import { homeFor, startSession } from "~/auth/session.server";
 import { Button, Card, Field, Notice, PageTitle } from "~/components/ui";
@@ -18,13 +17,9 @@ export async function loader({ request, context }: Route.LoaderArgs) {
 export async function action({ request, context }: Route.ActionArgs) {
   const { authenticator, sessions } = services(context);
   const form = await request.clone().formData();
-  try {
-    const user = await authenticator.authenticate("form", request);
-    return startSession(sessions, request, user.id, safeRedirect(form.get("redirectTo"), homeFor(user.role)));
-  } catch (error) {
-    if (error instanceof SignInError) return { error: error.message, email: String(form.get("email") ?? "") };
-    throw error;
-  }
+  const result = await authenticator.authenticate("form", request);
+  if (!result.ok) return { error: result.message, email: String(form.get("email") ?? "") };
+  return startSession(sessions, request, result.user.id, safeRedirect(form.get("redirectTo"), homeFor(result.user.role)));
 }
 
 export default function SignIn({ actionData }: Route.ComponentProps) {

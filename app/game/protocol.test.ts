@@ -1,0 +1,170 @@
+import { describe, expect, it } from "vitest";
+import {
+  CLOSE_CODES,
+  ERROR_CODES,
+  MAX_MESSAGE_BYTES,
+  PROTOCOL_VERSION,
+  RATE_LIMIT_BURST,
+  RATE_LIMIT_STRIKES,
+  newRateBucket,
+  parseClientMessage,
+  parseServerMessage,
+  takeToken,
+  type ClientMessage,
+  type RateBucket,
+} from "./protocol";
+
+const HOST_KEY = "h".repeat(32);
+const SEAT = "s".repeat(21);
+
+describe("parseClientMessage: good messages", () => {
+  it.each<[string, unknown, ClientMessage]>([
+    [
+      "host hello",
+      { type: "hello", protocol: PROTOCOL_VERSION, role: "host", room: "KMNPRT", hostKey: HOST_KEY },
+      { type: "hello", protocol: PROTOCOL_VERSION, role: "host", room: "KMNPRT", hostKey: HOST_KEY },
+    ],
+    [
+      "player hello with a typed room code",
+      { type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: "kmn-prt" },
+      { type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: "KMNPRT" },
+    ],
+    [
+      "player hello with a seat token",
+      { type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: "KMNPRT", seat: SEAT },
+      { type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: "KMNPRT", seat: SEAT },
+    ],
+    ["join", { type: "join", room: "KMN PRT", nickname: " Sam " }, { type: "join", room: "KMNPRT", nickname: " Sam " }],
+    ["ping", { type: "ping", t0: 1234.5 }, { type: "ping", t0: 1234.5 }],
+    ["ping with a report", { type: "ping", t0: 3000, last: { t0: 1000, t3: 1150 } }, { type: "ping", t0: 3000, last: { t0: 1000, t3: 1150 } }],
+    [
+      "answer",
+      { type: "answer", promptId: "p3", spot: { string: 2, fret: 5 }, tapAt: 99_000 },
+      { type: "answer", promptId: "p3", spot: { string: 2, fret: 5 }, tapAt: 99_000 },
+    ],
+    ["host action", { type: "host", action: "pause" }, { type: "host", action: "pause" }],
+    ["remove", { type: "remove", playerId: "p7x" }, { type: "remove", playerId: "p7x" }],
+  ])("%s", (_, input, expected) => {
+    expect(parseClientMessage(JSON.stringify(input))).toEqual({ ok: true, message: expected });
+  });
+
+  it("accepts binary frames holding UTF-8 JSON", () => {
+    const result = parseClientMessage(new TextEncoder().encode(JSON.stringify({ type: "host", action: "start" })));
+    expect(result).toEqual({ ok: true, message: { type: "host", action: "start" } });
+  });
+});
+
+describe("parseClientMessage: malformed messages", () => {
+  it.each<[string, string | Uint8Array, RegExp]>([
+    ["not JSON", "{type:", /not valid JSON/],
+    ["empty", "", /not valid JSON/],
+    ["JSON null", "null", /JSON object with a string "type"/],
+    ["an array", "[1,2]", /JSON object/],
+    ["a number", "42", /JSON object/],
+    ["no type", "{}", /JSON object/],
+    ["unknown type", '{"type":"cheat"}', /Unknown message type "cheat"; expected one of hello, join/],
+    ["prototype games", '{"type":"__proto__"}', /Unknown message type/],
+    ["extra field", '{"type":"host","action":"start","admin":true}', /Bad "host" message/],
+    ["unknown host action", '{"type":"host","action":"win"}', /action/],
+    ["fret out of range", '{"type":"answer","promptId":"p1","spot":{"string":1,"fret":99},"tapAt":1}', /spot\.fret/],
+    ["fractional fret", '{"type":"answer","promptId":"p1","spot":{"string":1,"fret":2.5},"tapAt":1}', /spot\.fret/],
+    ["negative time", '{"type":"ping","t0":-1}', /t0/],
+    ["string time", '{"type":"ping","t0":"now"}', /t0/],
+    ["bad room code", '{"type":"join","room":"OOOOOO","nickname":"Sam"}', /room: not a room code/],
+    ["host without key", `{"type":"hello","protocol":${PROTOCOL_VERSION},"role":"host","room":"KMNPRT"}`, /hostKey/],
+    ["unknown role", `{"type":"hello","protocol":${PROTOCOL_VERSION},"role":"admin","room":"KMNPRT"}`, /Bad "hello" message/],
+    ["invalid UTF-8", new Uint8Array([0x7b, 0xff, 0xfe, 0x7d]), /not valid UTF-8/],
+  ])("%s → bad-message", (_, raw, message) => {
+    const result = parseClientMessage(raw);
+    expect(result.ok).toBe(false);
+    if (result.ok) return;
+    expect(result.error.code).toBe(ERROR_CODES.badMessage);
+    expect(result.error.message).toMatch(message);
+    expect(result.close).toBeNull();
+  });
+
+  it("refuses another protocol version and asks to close with 4000", () => {
+    const result = parseClientMessage(JSON.stringify({ type: "hello", protocol: PROTOCOL_VERSION + 1, role: "player", room: "KMNPRT" }));
+    expect(result).toEqual({
+      ok: false,
+      error: { code: ERROR_CODES.badVersion, message: expect.stringMatching(/Reload the page/) },
+      close: CLOSE_CODES.badVersion,
+    });
+  });
+});
+
+describe("parseClientMessage: size limit", () => {
+  const padded = (bytes: number) => {
+    const base = JSON.stringify({ type: "join", room: "KMNPRT", nickname: "" });
+    return base.replace('""', `"${"a".repeat(bytes - base.length)}"`);
+  };
+
+  it("accepts exactly MAX_MESSAGE_BYTES (then the schema judges it)", () => {
+    const result = parseClientMessage(padded(MAX_MESSAGE_BYTES));
+    expect(result.ok).toBe(false);
+    if (!result.ok) expect(result.error.code).toBe(ERROR_CODES.badMessage); // nickname too long, not too large
+  });
+
+  it.each<[string, string | Uint8Array]>([
+    ["one byte over", padded(MAX_MESSAGE_BYTES + 1)],
+    ["multi-byte characters over the limit in bytes but not in characters", `{"type":"join","room":"KMNPRT","nickname":"${"é".repeat(2100)}"}`],
+    ["a huge string", "x".repeat(10_000_000)],
+    ["a big binary frame", new Uint8Array(MAX_MESSAGE_BYTES + 1)],
+  ])("%s → too-large, close 4004", (_, raw) => {
+    expect(parseClientMessage(raw)).toEqual({
+      ok: false,
+      error: { code: ERROR_CODES.tooLarge, message: `Messages are limited to ${MAX_MESSAGE_BYTES} bytes.` },
+      close: CLOSE_CODES.tooLarge,
+    });
+  });
+});
+
+describe("parseServerMessage", () => {
+  it.each<[string, unknown]>([
+    ["pong", { type: "pong", t0: 1, t1: 2, t2: 3 }],
+    ["refused answer", { type: "answer-ack", promptId: "p1", accepted: false, code: "too-late", message: "Time was up." }],
+    ["paused", { type: "paused" }],
+  ])("accepts %s", (_, message) => {
+    expect(parseServerMessage(JSON.stringify(message))).toEqual({ ok: true, message });
+  });
+
+  it.each([
+    ["nonsense", "%%"],
+    ["unknown type", '{"type":"hello"}'],
+    ["accepted answer without points", '{"type":"answer-ack","promptId":"p1","accepted":true}'],
+  ])("refuses %s", (_, raw) => {
+    expect(parseServerMessage(raw).ok).toBe(false);
+  });
+});
+
+describe("takeToken", () => {
+  const run = (times: number[]) => {
+    let bucket: RateBucket = newRateBucket(0);
+    return times.map((t) => {
+      const step = takeToken(bucket, t);
+      bucket = step.bucket;
+      return step.verdict;
+    });
+  };
+
+  it("allows a burst, then refuses", () => {
+    const verdicts = run(Array.from({ length: RATE_LIMIT_BURST + 1 }, () => 0));
+    expect(verdicts.slice(0, RATE_LIMIT_BURST).every((v) => v === "allow")).toBe(true);
+    expect(verdicts.at(-1)).toBe("refuse");
+  });
+
+  it("refills at 8 a second", () => {
+    const verdicts = run([...Array.from({ length: RATE_LIMIT_BURST }, () => 0), 100, 125, 250]);
+    expect(verdicts.slice(RATE_LIMIT_BURST)).toEqual(["refuse", "allow", "allow"]);
+  });
+
+  it("asks to close after RATE_LIMIT_STRIKES refusals in a row", () => {
+    const verdicts = run(Array.from({ length: RATE_LIMIT_BURST + RATE_LIMIT_STRIKES }, () => 0));
+    expect(verdicts.filter((v) => v === "refuse")).toHaveLength(RATE_LIMIT_STRIKES - 1);
+    expect(verdicts.at(-1)).toBe("close");
+  });
+
+  it("a steady 4 messages a second is never refused", () => {
+    expect(run(Array.from({ length: 200 }, (_, i) => i * 250)).every((v) => v === "allow")).toBe(true);
+  });
+});

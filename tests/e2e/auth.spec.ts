@@ -1,0 +1,67 @@
+import { expect, readMail, shot, signIn, test } from "./fixtures";
+
+test("the landing page loads its own font and no other host", async ({ page }) => {
+  await page.goto("/");
+  await expect(page.getByRole("heading", { name: /Read the note/ })).toBeVisible();
+  const family = await page.evaluate(async () => {
+    await document.fonts.ready;
+    return [...document.fonts].filter((f) => f.status === "loaded").map((f) => f.family);
+  });
+  expect(family.join(",")).toContain("Fredoka");
+  await shot(page, "landing");
+});
+
+test("a teacher signs in, lands on their classes, and signs out", async ({ page }) => {
+  await signIn(page, "rafe@larkspur.example");
+  await expect(page).toHaveURL(/\/teach$/);
+  await expect(page.getByRole("heading", { name: "Tuesday Beginners" })).toBeVisible();
+  await shot(page, "teacher-dashboard");
+  await page.getByRole("button", { name: "Sign out" }).click();
+  await expect(page).toHaveURL(/\/$/);
+  await page.goto("/teach");
+  await expect(page).toHaveURL(/\/signin\?redirectTo=%2Fteach/);
+});
+
+test("a wrong password is refused with a clear message", async ({ page }) => {
+  await signIn(page, "saoirse@larkspur.example", "not my password");
+  await expect(page.getByRole("alert")).toContainText("That e-mail and password don't match an account.");
+});
+
+test("a student lands on their own home; the teacher pages refuse them", async ({ page }) => {
+  await signIn(page, "amani@larkspur.example");
+  await expect(page).toHaveURL(/\/me$/);
+  const res = await page.goto("/teach");
+  expect(res?.status()).toBe(403);
+  await expect(page.getByText("This page is for teacher accounts.")).toBeVisible();
+});
+
+test("a new teacher starts a studio; empty fields get clear errors first", async ({ page }) => {
+  await page.goto("/signup");
+  await page.getByRole("button", { name: "Create studio" }).click();
+  await expect(page.getByText("Enter your studio's name.")).toBeVisible();
+  await page.getByLabel("Studio or school name").fill("Harbourlight Guitar Studio");
+  await page.getByLabel("Your name").fill("Bettany Rusk");
+  await page.getByLabel("E-mail").fill("bettany@harbourlight.example");
+  await page.getByLabel("Password", { exact: true }).fill("strings and frets");
+  await page.getByLabel("Password again").fill("strings and frets");
+  await shot(page, "signup");
+  await page.getByRole("button", { name: "Create studio" }).click();
+  await expect(page).toHaveURL(/\/admin$/);
+  await expect(page.getByRole("heading", { name: "Your school" })).toBeVisible();
+});
+
+test("password reset through the captured e-mail", async ({ page }) => {
+  await page.goto("/forgot");
+  await page.getByLabel("E-mail").fill("saoirse@larkspur.example");
+  await page.getByRole("button", { name: "Send reset link" }).click();
+  await expect(page.getByText("a reset link is on its way")).toBeVisible();
+  const mail = (await readMail()).find((m) => m.to.includes("saoirse@larkspur.example"));
+  const link = mail!.text.match(/https?:\/\/\S+\/reset\/\S+/)![0];
+  await page.goto(new URL(link).pathname);
+  await page.getByLabel("New password", { exact: true }).fill("a fresh reading password");
+  await page.getByLabel("New password again").fill("a fresh reading password");
+  await page.getByRole("button", { name: "Save new password" }).click();
+  await expect(page.getByText("Your password is changed.")).toBeVisible();
+  await signIn(page, "saoirse@larkspur.example", "a fresh reading password");
+  await expect(page).toHaveURL(/\/teach$/);
+});

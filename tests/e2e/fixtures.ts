@@ -1,0 +1,37 @@
+import { test as base, expect, type Page } from "@playwright/test";
+import { readOutbox } from "~/mail/outbox.server";
+
+export const DEMO_PASSWORD = "fretcall-demo";
+export const MAIL_DIR = "tests/.tmp/e2e-mail";
+export const readMail = () => readOutbox(MAIL_DIR);
+
+/**
+ * Every test records the hosts its pages asked for; any host but this one fails the test
+ * (fonts, music font and scripts all ship with the app).
+ */
+export const test = base.extend<{ foreignRequests: string[] }>({
+  foreignRequests: [
+    async ({ context }, use) => {
+      const foreign: string[] = [];
+      context.on("request", (req) => {
+        const url = new URL(req.url());
+        if (["data:", "blob:"].includes(url.protocol)) return;
+        if (url.hostname !== "localhost" && url.hostname !== "127.0.0.1") foreign.push(req.url());
+      });
+      await use(foreign);
+      expect(foreign, "requests to other hosts").toEqual([]);
+    },
+    { auto: true },
+  ],
+});
+export { expect };
+
+export async function signIn(page: Page, email: string, password = DEMO_PASSWORD) {
+  await page.goto("/signin");
+  await page.getByLabel("E-mail").fill(email);
+  await page.getByLabel("Password").fill(password);
+  await page.getByRole("button", { name: "Sign in" }).click();
+}
+
+export const shot = (page: Page, name: string) =>
+  page.screenshot({ path: `tests/.tmp/screenshots/${name}.png`, fullPage: true });
