@@ -10,6 +10,11 @@ export default [
   // EXPLORE
   route("teach", "routes/teacher/dashboard.tsx"),
   route("me", "routes/student/home.tsx"),
+  route("host", "routes/live/host.tsx"),
+  route("stage/:roomId", "routes/live/stage.tsx"),
+  route("results/:roomId", "routes/live/results.tsx"),
+  route("join", "routes/live/join.tsx"),
+  route("play/:code", "routes/live/play.tsx"),
   ...prefix("admin", [index("routes/admin/school.tsx"), route("outbox", "routes/admin/outbox.tsx")]),
   ...prefix("api/v1", [
     route("me", "routes/api/me.ts"),

@@ -12,12 +12,14 @@ import { createMailer } from "~/mail/mailer.server";
 import { createServices, type Services } from "~/services.server";
 import type { createAppHandler } from "./app";
 import { startMailCatcher } from "./mail-catcher";
+import { Hub } from "./hub";
 import { attachSockets } from "./sockets";
 
 export interface RunningServer {
   url: string;
   port: number;
   services: Services;
+  hub: Hub;
   server: Server;
   close(): Promise<void>;
 }
@@ -39,7 +41,9 @@ export async function startServer(overrides: Record<string, string | undefined> 
   const db = await openDb(env.DATABASE_URL, env.DATABASE_AUTH_TOKEN);
   await migrateDb(db);
   const catcher = env.mailCapture ? await startMailCatcher(env.MAIL_DIR) : undefined;
-  const services = createServices(env, db, createMailer(catcher?.url ?? env.SMTP_URL!, env.MAIL_FROM));
+  const mailer = createMailer(catcher?.url ?? env.SMTP_URL!, env.MAIL_FROM);
+  const services = createServices(env, db, mailer);
+  const hub = new Hub(db, env.SESSION_SECRET, services.sessions);
 
   const app = express();
   app.disable("x-powered-by");
@@ -109,25 +113,28 @@ export async function startServer(overrides: Record<string, string | undefined> 
   }
 
   const server = createServer(app);
-  const sockets = attachSockets(server, { allowOrigin: sameOrigin, maxPayload: 4096 });
+  // Frames up to 64 KiB reach the protocol parser, which refuses anything over MAX_MESSAGE_BYTES
+  // with its own documented close code; larger frames are cut off by ws itself (1009).
+  const sockets = attachSockets(server, { allowOrigin: sameOrigin, maxPayload: 64 * 1024 });
+  hub.attach(sockets.wss);
   await new Promise<void>((done) => server.listen(env.PORT, env.HOST, done));
   const port = (server.address() as AddressInfo).port;
 
   let closing: Promise<void> | undefined;
   const close = () =>
     (closing ??= (async () => {
+      const stopped = new Promise<void>((done) => server.close(() => done()));
+      await hub.close();
       sockets.close();
-      await new Promise<void>((done) => {
-        server.close(() => done());
-        server.closeAllConnections();
-      });
+      server.closeAllConnections();
+      await stopped;
       await closeVite();
       services.mailer.close();
       await catcher?.close();
       await closeDb(db);
     })());
 
-  return { url: `http://localhost:${port}`, port, services, server, close };
+  return { url: `http://localhost:${port}`, port, services, hub, server, close };
 }
 
 // Run directly (npm run dev / npm start), not when imported by tests.

@@ -14,10 +14,12 @@ const navFor: Record<Role, { to: string; label: string }[]> = {
   ],
   teacher: [
     { to: "/teach", label: "Teach" },
+    { to: "/host", label: "Host a round" },
     { to: "/explore", label: "Neck explorer" },
   ],
   student: [
     { to: "/me", label: "My practice" },
+    { to: "/join", label: "Join a round" },
     { to: "/explore", label: "Neck explorer" },
   ],
 };
@@ -36,7 +38,12 @@ export function AppShell({
   showOutbox: boolean;
   children: React.ReactNode;
 }) {
-  const links = user ? navFor[user.role] : [{ to: "/explore", label: "Neck explorer" }];
+  const links = user
+    ? navFor[user.role]
+    : [
+        { to: "/join", label: "Join a round" },
+        { to: "/explore", label: "Neck explorer" },
+      ];
   return (
     <div className="flex min-h-dvh flex-col">
       <header className="no-print border-b-4 border-brass bg-rosewood text-paper">

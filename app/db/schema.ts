@@ -75,3 +75,92 @@ export const passwordResets = sqliteTable("password_resets", {
   usedAt: integer("used_at", { mode: "timestamp_ms" }),
   createdAt: createdAt(),
 });
+
+// ---- live rounds ------------------------------------------------------------------------------
+
+/** A live round. `config` is the game's RoomConfig (prompt order included), fixed at creation. */
+export const rooms = sqliteTable(
+  "rooms",
+  {
+    id: text("id").primaryKey(),
+    code: text("code").notNull(),
+    orgId: text("org_id")
+      .notNull()
+      .references(() => organisations.id, { onDelete: "cascade" }),
+    hostUserId: text("host_user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    classId: text("class_id").references(() => classes.id, { onDelete: "set null" }),
+    title: text("title").notNull(),
+    mode: text("mode").notNull(),
+    // The position the round reads in: pads zoom their fretboard to it.
+    position: integer("position").notNull(),
+    config: text("config", { mode: "json" }).notNull(),
+    endedAt: integer("ended_at", { mode: "timestamp_ms" }),
+    createdAt: createdAt(),
+  },
+  (t) => [
+    // A code is reused only after its room has ended.
+    uniqueIndex("rooms_open_code_unique").on(t.code).where(sql`ended_at IS NULL`),
+    index("rooms_host_idx").on(t.hostUserId),
+    index("rooms_class_idx").on(t.classId),
+  ],
+);
+
+/** The room's event log: replaying it through the game reducer rebuilds the room after a restart. */
+export const roomEvents = sqliteTable(
+  "room_events",
+  {
+    roomId: text("room_id")
+      .notNull()
+      .references(() => rooms.id, { onDelete: "cascade" }),
+    seq: integer("seq").notNull(),
+    at: integer("at").notNull(),
+    event: text("event", { mode: "json" }).notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.roomId, t.seq] })],
+);
+
+/** A seat in a room: a nickname, and the account when a signed-in student joined. */
+export const roomPlayers = sqliteTable(
+  "room_players",
+  {
+    id: text("id").primaryKey(),
+    roomId: text("room_id")
+      .notNull()
+      .references(() => rooms.id, { onDelete: "cascade" }),
+    userId: text("user_id").references(() => users.id, { onDelete: "set null" }),
+    nickname: text("nickname").notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [index("room_players_room_idx").on(t.roomId), index("room_players_user_idx").on(t.userId)],
+);
+
+/** Every accepted answer, one row each, for results and the class review. */
+export const answers = sqliteTable(
+  "answers",
+  {
+    roomId: text("room_id")
+      .notNull()
+      .references(() => rooms.id, { onDelete: "cascade" }),
+    playerId: text("player_id")
+      .notNull()
+      .references(() => roomPlayers.id, { onDelete: "cascade" }),
+    promptIndex: integer("prompt_index").notNull(),
+    written: text("written").notNull(),
+    writtenMidi: integer("written_midi").notNull(),
+    string: integer("string").notNull(),
+    fret: integer("fret").notNull(),
+    kind: text("kind").notNull(),
+    pitchRight: integer("pitch_right", { mode: "boolean" }).notNull(),
+    points: integer("points").notNull(),
+    reactionMs: integer("reaction_ms").notNull(),
+    streak: integer("streak").notNull(),
+    at: integer("at").notNull(),
+  },
+  (t) => [
+    // Full neck lets a player find several spots of one prompt, so the spot is part of the key.
+    primaryKey({ columns: [t.roomId, t.playerId, t.promptIndex, t.string, t.fret] }),
+    index("answers_room_prompt_idx").on(t.roomId, t.promptIndex),
+  ],
+);

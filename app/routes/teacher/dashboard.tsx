@@ -1,6 +1,8 @@
+import { Link } from "react-router";
 import { requireUserWithRole } from "~/auth/guards.server";
-import { Card, PageTitle } from "~/components/ui";
+import { buttonClass, Card, PageTitle } from "~/components/ui";
 import { services } from "~/context";
+import { roomsHostedBy } from "~/rooms/rooms.server";
 import { classesFor } from "~/school/classes.server";
 import type { Route } from "./+types/dashboard";
 
@@ -8,7 +10,13 @@ export const meta: Route.MetaFunction = () => [{ title: "Teach · Fretcall" }];
 
 export async function loader({ request, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
-  return { name: user.displayName, classes: await classesFor(services(context).db, user) };
+  const { db } = services(context);
+  const [classList, rounds] = await Promise.all([classesFor(db, user), roomsHostedBy(db, user.id, 10)]);
+  return {
+    name: user.displayName,
+    classes: classList,
+    rounds: rounds.map((r) => ({ ...r, createdAt: r.createdAt.toISOString(), live: r.endedAt === null })),
+  };
 }
 
 export default function TeacherDashboard({ loaderData }: Route.ComponentProps) {
@@ -29,11 +37,36 @@ export default function TeacherDashboard({ loaderData }: Route.ComponentProps) {
                   {c.students} {c.students === 1 ? "student" : "students"}
                   {c.teachers ? ` · taught by ${c.teachers}` : ""}
                 </p>
+                <Link to={`/host?class=${c.id}`} className={buttonClass("teal", "mt-3")}>
+                  ▶ Host a round
+                </Link>
               </Card>
             </li>
           ))}
         </ul>
       )}
+      <section className="mt-8">
+        <h2 className="font-display text-2xl font-semibold">Recent rounds</h2>
+        {loaderData.rounds.length === 0 ? <p className="mt-2 text-ink-soft">No rounds yet.</p> : null}
+        <ul className="mt-3 divide-y divide-ink/10">
+          {loaderData.rounds.map((r) => (
+            <li key={r.id} className="flex flex-wrap items-center justify-between gap-2 py-2">
+              <span>
+                {r.title} · {new Date(r.createdAt).toLocaleString()}
+              </span>
+              {r.live ? (
+                <Link to={`/stage/${r.id}`} className="underline">
+                  ● Live — open the stage
+                </Link>
+              ) : (
+                <Link to={`/results/${r.id}`} className="underline">
+                  Results
+                </Link>
+              )}
+            </li>
+          ))}
+        </ul>
+      </section>
     </div>
   );
 }

@@ -1,0 +1,211 @@
+/**
+ * The browser side of the room protocol (docs/protocol.md): one WebSocket for a stage or a pad,
+ * clock sync by ping bursts, reconnect with back-off, and the seat token kept so a phone that
+ * slept or lost Wi-Fi takes its own seat back.
+ */
+import { useCallback, useEffect, useReducer, useRef } from "react";
+import { addSample, emptyClock, estimate, type ClockState } from "~/game/clock";
+import {
+  CLOSE_CODES,
+  parseServerMessage,
+  PING_BURST,
+  PING_BURST_GAP_MS,
+  PING_INTERVAL_MS,
+  PROTOCOL_VERSION,
+  type HostAction,
+  type ServerMessage,
+  type ServerMessageOf,
+} from "~/game/protocol";
+import type { Spot } from "~/music/fretboard";
+
+export type Who = { role: "host"; hostKey: string } | { role: "player" };
+
+export interface LiveView {
+  connection: "connecting" | "open" | "retrying" | "closed";
+  /** Why the server closed us for good, in words for the screen. */
+  closedReason: string | null;
+  welcome: ServerMessageOf<"welcome"> | null;
+  roster: ServerMessageOf<"roster"> | null;
+  prompt: ServerMessageOf<"prompt"> | null;
+  answered: ServerMessageOf<"answered"> | null;
+  ack: Extract<ServerMessage, { type: "answer-ack"; accepted: true }> | null;
+  progress: ServerMessageOf<"progress"> | null;
+  reveal: ServerMessageOf<"reveal"> | null;
+  standings: ServerMessageOf<"standings"> | null;
+  ended: ServerMessageOf<"ended"> | null;
+  paused: boolean;
+  error: string | null;
+  /** Server time − local time, once measured. */
+  offsetMs: number;
+}
+
+const initial: LiveView = {
+  connection: "connecting",
+  closedReason: null,
+  welcome: null,
+  roster: null,
+  prompt: null,
+  answered: null,
+  ack: null,
+  progress: null,
+  reveal: null,
+  standings: null,
+  ended: null,
+  paused: false,
+  error: null,
+  offsetMs: 0,
+};
+
+type Action =
+  | { type: "message"; message: ServerMessage }
+  | { type: "connection"; connection: LiveView["connection"]; reason?: string }
+  | { type: "offset"; offsetMs: number };
+
+function view(state: LiveView, action: Action): LiveView {
+  if (action.type === "connection") return { ...state, connection: action.connection, closedReason: action.reason ?? state.closedReason };
+  if (action.type === "offset") return { ...state, offsetMs: action.offsetMs };
+  const m = action.message;
+  switch (m.type) {
+    case "welcome":
+      return { ...state, welcome: m, error: null, paused: false, ended: null };
+    case "roster":
+      return { ...state, roster: m };
+    case "prompt":
+      // A new prompt clears what belonged to the last one.
+      return m.promptId === state.prompt?.promptId
+        ? { ...state, prompt: m }
+        : { ...state, prompt: m, ack: null, reveal: null, answered: null, progress: null, standings: null };
+    case "answered":
+      return { ...state, answered: m };
+    case "answer-ack":
+      return m.accepted ? { ...state, ack: m, error: null } : { ...state, error: m.message };
+    case "progress":
+      return { ...state, progress: m };
+    case "reveal":
+      return { ...state, reveal: m };
+    case "standings":
+      return { ...state, standings: m };
+    case "paused":
+      return { ...state, paused: true };
+    case "resumed":
+      return { ...state, paused: false };
+    case "ended":
+      return { ...state, ended: m };
+    case "error":
+      return { ...state, error: m.message };
+    case "pong":
+      return state;
+  }
+}
+
+const FINAL_CLOSES: Record<number, string> = {
+  [CLOSE_CODES.badVersion]: "This page is out of date. Reload it.",
+  [CLOSE_CODES.unauthorised]: "This stage is not allowed to run the room.",
+  [CLOSE_CODES.removed]: "The teacher removed you from this room.",
+  [CLOSE_CODES.roomGone]: "This room has ended or doesn't exist.",
+  [CLOSE_CODES.replaced]: "This seat is now open on another screen.",
+};
+
+export const seatKey = (code: string) => `fretcall-seat-${code}`;
+
+export function useRoomSocket(code: string, who: Who) {
+  const [state, dispatch] = useReducer(view, initial);
+  const ws = useRef<WebSocket | null>(null);
+  const clock = useRef<ClockState>(emptyClock());
+  const offset = useRef(0);
+  const whoRef = useRef(who);
+  whoRef.current = who;
+
+  useEffect(() => {
+    let stopped = false;
+    let retry = 0;
+    let timers: number[] = [];
+    let last: { t0: number; t3: number } | undefined;
+
+    const ping = () => {
+      if (ws.current?.readyState !== WebSocket.OPEN) return;
+      ws.current.send(JSON.stringify({ type: "ping", t0: Date.now(), ...(last ? { last } : {}) }));
+    };
+
+    const connect = () => {
+      const socket = new WebSocket(`${location.protocol === "https:" ? "wss" : "ws"}://${location.host}/ws`);
+      ws.current = socket;
+      dispatch({ type: "connection", connection: retry === 0 ? "connecting" : "retrying" });
+      socket.onopen = () => {
+        retry = 0;
+        dispatch({ type: "connection", connection: "open" });
+        const w = whoRef.current;
+        const seat = w.role === "player" ? (localStorage.getItem(seatKey(code)) ?? undefined) : undefined;
+        socket.send(
+          JSON.stringify(
+            w.role === "host"
+              ? { type: "hello", protocol: PROTOCOL_VERSION, role: "host", room: code, hostKey: w.hostKey }
+              : { type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: code, ...(seat ? { seat } : {}) },
+          ),
+        );
+        for (let i = 0; i < PING_BURST; i++) timers.push(window.setTimeout(ping, i * PING_BURST_GAP_MS));
+        timers.push(window.setInterval(ping, PING_INTERVAL_MS));
+      };
+      socket.onmessage = (event) => {
+        const t3 = Date.now();
+        const parsed = parseServerMessage(String(event.data));
+        if (!parsed.ok) return;
+        const m = parsed.message;
+        if (m.type === "pong") {
+          last = { t0: m.t0, t3 };
+          clock.current = addSample(clock.current, { ...m, t3 });
+          const est = estimate(clock.current);
+          if (est && Math.abs(est.offsetMs - offset.current) >= 1) {
+            offset.current = est.offsetMs;
+            dispatch({ type: "offset", offsetMs: est.offsetMs });
+          }
+          return;
+        }
+        if (m.type === "welcome" && m.you) localStorage.setItem(seatKey(code), m.you.seat);
+        if (m.type === "error" && m.code === "unknown-player") localStorage.removeItem(seatKey(code));
+        dispatch({ type: "message", message: m });
+      };
+      socket.onclose = (event) => {
+        for (const t of timers) window.clearTimeout(t);
+        timers = [];
+        if (stopped) return;
+        const final = FINAL_CLOSES[event.code];
+        if (final) {
+          if (event.code === CLOSE_CODES.removed) localStorage.removeItem(seatKey(code));
+          dispatch({ type: "connection", connection: "closed", reason: final });
+          return;
+        }
+        retry += 1;
+        dispatch({ type: "connection", connection: "retrying" });
+        // Back off to 5 s: a class of phones coming back together shouldn't hammer the server.
+        timers.push(window.setTimeout(connect, Math.min(5000, 300 * 2 ** retry) + Math.random() * 300));
+      };
+    };
+
+    connect();
+    const wake = () => {
+      if (document.visibilityState === "visible" && ws.current?.readyState === WebSocket.CLOSED && !stopped) connect();
+    };
+    document.addEventListener("visibilitychange", wake);
+    return () => {
+      stopped = true;
+      document.removeEventListener("visibilitychange", wake);
+      for (const t of timers) window.clearTimeout(t);
+      ws.current?.close(1000);
+    };
+  }, [code]);
+
+  const sendRaw = useCallback((message: object) => {
+    if (ws.current?.readyState === WebSocket.OPEN) ws.current.send(JSON.stringify(message));
+  }, []);
+
+  return {
+    state,
+    /** Local time of a server timestamp. */
+    toLocal: (serverTime: number) => serverTime - state.offsetMs,
+    join: (nickname: string) => sendRaw({ type: "join", room: code, nickname }),
+    answer: (promptId: string, spot: Spot) => sendRaw({ type: "answer", promptId, spot, tapAt: Date.now() }),
+    host: (action: HostAction) => sendRaw({ type: "host", action }),
+    remove: (playerId: string) => sendRaw({ type: "remove", playerId }),
+  };
+}

@@ -1,0 +1,31 @@
+import { data } from "react-router";
+import { getOptionalUser } from "~/auth/guards.server";
+import { services } from "~/context";
+import { parseRoomCode } from "~/game/roomCode";
+import type { RoomConfig } from "~/game/roomConfig";
+import { Pad } from "~/live/Pad";
+import { openRoomByCode } from "~/rooms/rooms.server";
+import type { Route } from "./+types/play";
+
+export const meta: Route.MetaFunction = () => [{ title: "Fretcall pad" }];
+
+export async function loader({ request, params, context }: Route.LoaderArgs) {
+  const parsed = parseRoomCode(params.code);
+  if (!parsed.ok) throw data({ error: parsed.message }, { status: 400 });
+  const room = await openRoomByCode(services(context).db, parsed.code);
+  if (!room) throw data({ error: "No open room has that code. Check the code on the class screen." }, { status: 404 });
+  const user = await getOptionalUser(request, context);
+  const config = room.config as RoomConfig;
+  return {
+    code: room.code,
+    tuning: config.tuning,
+    frets: config.frets,
+    position: room.position,
+    // A signed-in student plays under their own name; the server links the seat to the account.
+    accountName: user?.role === "student" ? user.displayName : null,
+  };
+}
+
+export default function PlayRoute({ loaderData }: Route.ComponentProps) {
+  return <Pad {...loaderData} />;
+}

@@ -1,0 +1,108 @@
+import { data, Link } from "react-router";
+import { requireUserWithRole } from "~/auth/guards.server";
+import { buttonClass, Card, PageTitle } from "~/components/ui";
+import { services } from "~/context";
+import { displayPitch, parsePitch } from "~/music/pitch";
+import { requireRoomAccess } from "~/rooms/access.server";
+import { roundResults } from "~/rooms/results.server";
+import type { Route } from "./+types/results";
+
+export const meta: Route.MetaFunction = () => [{ title: "Round results · Fretcall" }];
+
+export async function loader({ request, params, context }: Route.LoaderArgs) {
+  const user = await requireUserWithRole(request, context, ["teacher"]);
+  const { db } = services(context);
+  const room = await requireRoomAccess(db, user, params.roomId);
+  const results = await roundResults(db, room.id);
+  if (!results) throw data({ error: "No such round." }, { status: 404 });
+  return { room: { id: room.id, title: room.title, createdAt: room.createdAt.toISOString() }, ...results };
+}
+
+const pct = (x: number) => `${Math.round(x * 100)} %`;
+const secs = (ms: number | null) => (ms === null ? "—" : `${(ms / 1000).toFixed(1)} s`);
+
+export default function Results({ loaderData: r }: Route.ComponentProps) {
+  return (
+    <div className="space-y-6">
+      <PageTitle lead={`${new Date(r.room.createdAt).toLocaleString()}${r.tuneName ? ` · tune: ${r.tuneName}` : ""}${r.phase === "ended" ? "" : " · still running"}`}>
+        {r.room.title}
+      </PageTitle>
+      <div className="grid gap-6 lg:grid-cols-2">
+        <Card>
+          <h2 className="font-display text-2xl font-semibold">By points</h2>
+          <table className="mt-3 w-full text-left">
+            <thead className="text-sm text-ink-soft">
+              <tr>
+                <th className="py-1">#</th>
+                <th>Player</th>
+                <th className="text-right">Points</th>
+                <th className="text-right">Right</th>
+                <th className="text-right">Median time</th>
+              </tr>
+            </thead>
+            <tbody>
+              {r.byPoints.map((s, i) => (
+                <tr key={s.playerId} className="border-t border-ink/10">
+                  <td className="py-2">{i + 1}</td>
+                  <td>{s.nickname}</td>
+                  <td className="text-right font-semibold">{s.points}</td>
+                  <td className="text-right">
+                    {s.correct}/{s.answered} ({pct(s.accuracy)})
+                  </td>
+                  <td className="text-right">{secs(s.medianReactionMs)}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </Card>
+        <Card>
+          <h2 className="font-display text-2xl font-semibold">Longest streaks</h2>
+          <ol className="mt-3 space-y-1">
+            {r.byStreak.map((s) => (
+              <li key={s.playerId} className="flex justify-between border-t border-ink/10 py-2">
+                <span>{s.nickname}</span>
+                <span className="font-semibold">
+                  <span aria-hidden="true">🔥 </span>
+                  {s.longestStreak} in a row
+                </span>
+              </li>
+            ))}
+          </ol>
+        </Card>
+      </div>
+      <Card>
+        <h2 className="font-display text-2xl font-semibold">Note by note</h2>
+        <table className="mt-3 w-full text-left">
+          <thead className="text-sm text-ink-soft">
+            <tr>
+              <th className="py-1">Prompt</th>
+              <th>Note</th>
+              <th className="text-right">Right</th>
+              <th>Mistakes</th>
+            </tr>
+          </thead>
+          <tbody>
+            {r.prompts.map((p) => (
+              <tr key={p.index} className="border-t border-ink/10 align-top">
+                <td className="py-2">{p.index + 1}</td>
+                <td className="font-semibold">{displayPitch(parsePitch(p.written))}</td>
+                <td className="text-right">
+                  {p.right}/{p.answered}
+                </td>
+                <td className="pl-4 text-sm">
+                  {Object.entries(p.kinds)
+                    .filter(([k]) => k !== "home-spot")
+                    .map(([k, n]) => `${r.labels[k as keyof typeof r.labels]} × ${n}`)
+                    .join(" · ") || "—"}
+                </td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </Card>
+      <Link to="/host" className={buttonClass("teal")}>
+        Host another round
+      </Link>
+    </div>
+  );
+}

@@ -1,0 +1,55 @@
+/**
+ * Fretcall's built-in melodies: short original tunes written for reading in fifth position
+ * (written A3–A5 in standard tuning). Durations are in quarter-note beats, kept for the rhythm
+ * pass; a Tune walk uses the pitches only.
+ */
+export interface TuneNote {
+  pitch: string;
+  beats: number;
+  bar: number;
+}
+
+export interface Tune {
+  id: string;
+  title: string;
+  composer: string;
+  keyFifths: number;
+  beatsPerBar: number;
+  notes: TuneNote[];
+}
+
+/** Builds a tune from bars written as "E4:1 G4:1 A4:2" (pitch:beats). */
+function tune(id: string, title: string, keyFifths: number, beatsPerBar: number, bars: string[]): Tune {
+  const notes = bars.flatMap((bar, i) =>
+    bar.split(/\s+/).map((token) => {
+      const [pitch, beats] = token.split(":");
+      return { pitch: pitch!, beats: Number(beats), bar: i + 1 };
+    }),
+  );
+  return { id, title, composer: "Fretcall original", keyFifths, beatsPerBar, notes };
+}
+
+export const BUILTIN_TUNES: Tune[] = [
+  tune("lantern-walk", "Lantern Walk", 0, 4, [
+    "E4:1 G4:1 A4:1 G4:1",
+    "C5:2 B4:1 A4:1",
+    "G4:1 E4:1 F4:1 D4:1",
+    "E4:3 G4:1",
+    "A4:1 C5:1 D5:1 C5:1",
+    "E5:2 D5:1 C5:1",
+    "B4:1 G4:1 A4:1 B4:1",
+    "C5:4",
+  ]),
+  tune("harbour-bells", "Harbour Bells", 1, 3, [
+    "G4:1 B4:1 D5:1",
+    "F#5:2 E5:1",
+    "D5:1 B4:1 G4:1",
+    "A4:3",
+    "B4:1 C5:1 D5:1",
+    "E5:1 D5:1 C5:1",
+    "B4:1 A4:1 F#4:1",
+    "G4:3",
+  ]),
+];
+
+export const builtinTune = (id: string) => BUILTIN_TUNES.find((t) => t.id === id);
