@@ -7,7 +7,7 @@ export default [
   route("signout", "routes/auth/signout.ts"),
   route("forgot", "routes/auth/forgot.tsx"),
   route("reset/:token", "routes/auth/reset.tsx"),
-  // EXPLORE
+  route("explore", "routes/explore.tsx"),
   route("teach", "routes/teacher/dashboard.tsx"),
   route("me", "routes/student/home.tsx"),
   route("host", "routes/live/host.tsx"),
@@ -18,8 +18,8 @@ export default [
   ...prefix("admin", [index("routes/admin/school.tsx"), route("outbox", "routes/admin/outbox.tsx")]),
   ...prefix("api/v1", [
     route("me", "routes/api/me.ts"),
-    // SPOTS
-    // SPOTMAP
+    route("spots", "routes/api/spots.ts"),
+    route("spot-map", "routes/api/spot-map.ts"),
   ]),
   route("*", "routes/not-found.tsx"),
 ] satisfies RouteConfig;

@@ -16,7 +16,7 @@ import { WebSocketServer, WebSocket } from "ws";
 import { closeDb, migrateDb, openDb } from "~/db/client.server";
 import { answers } from "~/db/schema";
 import { seedDemo } from "../server/seed";
-import { joinPlayer, openStage, openTestRoom, untilShown } from "../tests/integration/rooms";
+import { joinPlayer, openStage, openTestRoom, spotOf, untilShown } from "../tests/integration/rooms";
 import type { TestSocket } from "../tests/integration/socket";
 
 const SECRET = "bench-secret-0123456789abcdef0123456789";
@@ -41,6 +41,7 @@ async function bootServer(databaseUrl: string) {
   const child = spawn("npx", ["tsx", "server/index.ts"], {
     env: { ...process.env, NODE_ENV: "production", PORT: String(port), HOST: "127.0.0.1", SESSION_SECRET: SECRET, SMTP_URL: "smtp://127.0.0.1:9", DATABASE_URL: databaseUrl },
     stdio: ["ignore", "ignore", "inherit"],
+    detached: true,
   });
   for (let i = 0; i < 200; i++) {
     try {
@@ -123,7 +124,7 @@ async function runFretcall(roomsN: number, playersN: number, promptsN: number): 
             const prompt = prompts[r]![k]!;
             const before = p.messages.length;
             const at = Date.now();
-            p.send({ type: "answer", promptId: prompt.promptId, spot: roomsList[r]!.config.prompts[index]!.home, tapAt: at });
+            p.send({ type: "answer", promptId: prompt.promptId, spot: spotOf(roomsList[r]!.config.prompts[index]!.home), tapAt: at });
             const a = await p.next("answer-ack", (m) => m.promptId === prompt.promptId, before, 60_000);
             ack.push(Date.now() - at);
             if (a.accepted) answered++;
@@ -136,8 +137,9 @@ async function runFretcall(roomsN: number, playersN: number, promptsN: number): 
   }
   for (const room of pads) for (const p of room) p.close();
   for (const s of stages) s.close();
-  server.child.kill("SIGTERM");
-  await new Promise((r) => server.child.once("exit", r));
+  const exited = new Promise((r) => server.child.once("exit", r));
+  process.kill(-server.child.pid!, "SIGTERM");
+  await exited;
   const [{ n }] = (await db.select({ n: count() }).from(answers)) as [{ n: number }];
   await closeDb(db);
   return { fanout, ack, answersPerSecond: answered / (answeringMs / 1000), stored: n, expected: roomsN * playersN * promptsN, memPerPlayerKiB };

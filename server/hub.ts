@@ -98,6 +98,8 @@ class LiveRoom {
   ) {}
 
   dispatch(event: RoomEvent, extra: { userId?: string | null } = {}) {
+    // Once the hub is closing, sockets going away are not news to record.
+    if (this.hub.closing) return;
     const now = Date.now();
     const before = this.state;
     const leadMs = leadFor([...this.pads.values()].map((c) => c.estimate));
@@ -182,8 +184,6 @@ class LiveRoom {
         const c = this.pads.get(a.playerId);
         return c ? [c] : [];
       }
-      case "players":
-        return [...this.pads.values()];
       case "everyone":
         return [...this.stage, ...this.pads.values()];
     }
@@ -225,6 +225,7 @@ function send(conn: Conn, text: string) {
 
 export class Hub {
   readonly writer: BatchWriter;
+  closing = false;
   private readonly live = new Map<string, Promise<LiveRoom | undefined>>();
 
   constructor(
@@ -420,6 +421,7 @@ export class Hub {
 
   /** Stops timers and waits until every accepted event is in the database. */
   async close() {
+    this.closing = true;
     for (const r of this.live.values()) (await r)?.stop();
     await Promise.all([...this.live.values()].map(async (r) => (await r)?.settled()));
     await this.writer.drain();

@@ -1,5 +1,5 @@
 // Shared building blocks. Every state carries a word or an icon as well as a colour.
-import type { ButtonHTMLAttributes, InputHTMLAttributes, ReactNode } from "react";
+import type { ButtonHTMLAttributes, InputHTMLAttributes, ReactNode, SelectHTMLAttributes } from "react";
 
 type Tone = "ink" | "brass" | "teal" | "brick" | "ghost";
 
@@ -23,29 +23,29 @@ export function Card({ children, className = "" }: { children: ReactNode; classN
   return <section className={`rounded-3xl border border-ink/10 bg-white/70 p-5 shadow-sm ${className}`}>{children}</section>;
 }
 
-/** A labelled input with its hint and error beneath it, wired for screen readers. */
-export function Field({
-  label,
-  name,
-  error,
-  hint,
-  id = `field-${name}`,
-  ...input
-}: InputHTMLAttributes<HTMLInputElement> & { label: string; name: string; error?: string; hint?: string }) {
+interface FieldFrameProps {
+  label: string;
+  id: string;
+  error?: string;
+  hint?: string;
+}
+
+/** Screen-reader wiring shared by every labelled control: which messages describe it, and whether it is invalid. */
+function fieldAria({ id, error, hint }: Omit<FieldFrameProps, "label">) {
   const describedBy = [error ? `${id}-error` : null, hint ? `${id}-hint` : null].filter(Boolean).join(" ");
+  return { id, "aria-invalid": error ? true : undefined, "aria-describedby": describedBy || undefined } as const;
+}
+
+const controlClass = (error?: string) =>
+  `mt-1 block min-h-11 w-full rounded-xl border-2 bg-white px-3 py-2 text-lg ${error ? "border-brick" : "border-ink/20 focus:border-sky"}`;
+
+function FieldFrame({ label, id, error, hint, children }: FieldFrameProps & { children: ReactNode }) {
   return (
     <div>
       <label htmlFor={id} className="font-medium">
         {label}
       </label>
-      <input
-        id={id}
-        name={name}
-        aria-invalid={error ? true : undefined}
-        aria-describedby={describedBy || undefined}
-        className={`mt-1 block min-h-11 w-full rounded-xl border-2 bg-white px-3 py-2 text-lg ${error ? "border-brick" : "border-ink/20 focus:border-sky"}`}
-        {...input}
-      />
+      {children}
       {hint ? (
         <p id={`${id}-hint`} className="mt-1 text-sm text-ink-soft">
           {hint}
@@ -58,6 +58,51 @@ export function Field({
         </p>
       ) : null}
     </div>
+  );
+}
+
+/** A labelled input with its hint and error beneath it, wired for screen readers. */
+export function Field({
+  label,
+  name,
+  error,
+  hint,
+  id = `field-${name}`,
+  ...input
+}: InputHTMLAttributes<HTMLInputElement> & { label: string; name: string; error?: string; hint?: string }) {
+  return (
+    <FieldFrame label={label} id={id} error={error} hint={hint}>
+      <input name={name} {...fieldAria({ id, error, hint })} className={controlClass(error)} {...input} />
+    </FieldFrame>
+  );
+}
+
+/** A labelled drop-down, with the same hint and error wiring as Field. */
+export function SelectField({
+  label,
+  name,
+  error,
+  hint,
+  id = `field-${name}`,
+  options,
+  ...select
+}: SelectHTMLAttributes<HTMLSelectElement> & {
+  label: string;
+  name: string;
+  error?: string;
+  hint?: string;
+  options: readonly { value: string; label: string }[];
+}) {
+  return (
+    <FieldFrame label={label} id={id} error={error} hint={hint}>
+      <select name={name} {...fieldAria({ id, error, hint })} className={controlClass(error)} {...select}>
+        {options.map((o) => (
+          <option key={o.value} value={o.value}>
+            {o.label}
+          </option>
+        ))}
+      </select>
+    </FieldFrame>
   );
 }
 
@@ -79,6 +124,24 @@ export function Notice({ tone, children }: { tone: keyof typeof noticeTones; chi
         {children}
       </span>
     </div>
+  );
+}
+
+const badgeTones = {
+  right: { box: "bg-teal text-white", icon: "✓" },
+  miss: { box: "bg-brick text-white", icon: "✗" },
+  info: { box: "bg-sky/20 text-ink", icon: "i" },
+  neutral: { box: "bg-ink/10 text-ink", icon: "•" },
+} as const;
+
+/** A small state label: always an icon and a word, never a colour alone. */
+export function Badge({ tone, children }: { tone: keyof typeof badgeTones; children: ReactNode }) {
+  const t = badgeTones[tone];
+  return (
+    <span className={`inline-flex items-center gap-1 rounded-full px-3 py-0.5 text-sm font-medium ${t.box}`}>
+      <span aria-hidden="true">{t.icon}</span>
+      {children}
+    </span>
   );
 }
 

@@ -1,6 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { seededRandom } from "~/music/pools";
 import {
+  CLOCK_KEEP,
   CLOCK_WINDOW,
   MAX_LEAD_MS,
   MIN_LEAD_MS,
@@ -52,8 +53,8 @@ describe("estimate", () => {
   });
 
   it("ignores high-delay samples beyond the kept ones", () => {
-    const good = Array.from({ length: 8 }, (_, i) => ({ t0: i * 1000, t1: i * 1000 + 520, t2: i * 1000 + 520, t3: i * 1000 + 40 }));
-    const spike = { t0: 9000, t1: 9900, t2: 9900, t3: 9400 }; // 400 ms round trip, offset 700
+    const good = Array.from({ length: CLOCK_KEEP }, (_, i) => ({ t0: i * 1000, t1: i * 1000 + 520, t2: i * 1000 + 520, t3: i * 1000 + 40 }));
+    const spike = { t0: 99_000, t1: 99_900, t2: 99_900, t3: 99_400 }; // 400 ms round trip, offset 700
     const e = estimate(withSamples([...good, spike]))!;
     expect(e.offsetMs).toBe(500);
     expect(e.worstDelayMs).toBe(40);

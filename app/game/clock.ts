@@ -11,16 +11,17 @@
  *   t2 − t3 ≤ true offset ≤ t1 − t0,
  * an interval of width `delay` around its offset. The estimate keeps the CLOCK_KEEP
  * lowest-delay samples of the last CLOCK_WINDOW (low delay = little room for queueing error;
- * recent = phone clocks drift) and takes the middle of the intersection of their intervals,
- * which is tighter than any single sample. If the intervals do not meet (the pad's clock was
- * stepped), it falls back to the offset of the lowest-delay sample.
+ * recent = phone clocks drift by 20–50 ppm, a few ms over 24 samples taken 2 s apart) and takes
+ * the middle of the intersection of their intervals, which is tighter than any single sample.
+ * If the intervals do not meet (the pad's clock was stepped), it falls back to the offset of
+ * the lowest-delay sample.
  *
  * The server never trusts the pad's arithmetic: it records the t1/t2 it sent and forms a sample
  * only when the pad reports the t3 of a pong the server really sent (see recordPong/reportPong).
  */
 
-export const CLOCK_WINDOW = 16;
-export const CLOCK_KEEP = 8;
+export const CLOCK_WINDOW = 24;
+export const CLOCK_KEEP = 12;
 /** Pongs remembered while waiting for the pad to report their arrival. */
 export const PENDING_PONGS = 4;
 /** Slack over the worst kept round trip allowed for the uplink of an answer. */

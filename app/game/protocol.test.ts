@@ -1,4 +1,5 @@
 import { describe, expect, it } from "vitest";
+import { seededRandom } from "~/music/pools";
 import {
   CLOSE_CODES,
   ERROR_CODES,
@@ -90,6 +91,26 @@ describe("parseClientMessage: malformed messages", () => {
       error: { code: ERROR_CODES.badVersion, message: expect.stringMatching(/Reload the page/) },
       close: CLOSE_CODES.badVersion,
     });
+  });
+});
+
+describe("parseClientMessage: garbage never throws", () => {
+  it("survives 2000 random frames: bytes, mangled JSON, deep nesting", () => {
+    const rand = seededRandom(99);
+    const good = JSON.stringify({ type: "answer", promptId: "p1", spot: { string: 1, fret: 5 }, tapAt: 1 });
+    const frames: (string | Uint8Array)[] = ["[".repeat(2000) + "]".repeat(2000), '{"type":"answer","spot":' + "[".repeat(1000)];
+    for (let i = 0; i < 2000; i++) {
+      if (i % 2 === 0) frames.push(Uint8Array.from({ length: Math.floor(rand() * 64) }, () => Math.floor(rand() * 256)));
+      else {
+        const chars = [...good];
+        chars[Math.floor(rand() * chars.length)] = String.fromCharCode(Math.floor(rand() * 128));
+        frames.push(chars.join(""));
+      }
+    }
+    for (const frame of frames) {
+      const result = parseClientMessage(frame);
+      if (!result.ok) expect(result.error.message.length).toBeGreaterThan(0);
+    }
   });
 });
 

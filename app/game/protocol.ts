@@ -79,7 +79,7 @@ const roomCode = z
   .max(32)
   .transform(normaliseRoomCode)
   .refine(isRoomCode, "not a room code");
-export const spotSchema = z.strictObject({
+const spotSchema = z.strictObject({
   string: z.int().min(1).max(12),
   fret: z.int().min(0).max(MAX_FRETS),
 });
@@ -218,8 +218,11 @@ function validate<S extends z.ZodType>(schema: S, types: readonly string[], data
   return fail(ERROR_CODES.badMessage, `Bad "${type}" message — ${problems.join("; ")}.`);
 }
 
-const CLIENT_TYPES = ["hello", "join", "ping", "answer", "host", "remove"];
-const SERVER_TYPES = serverMessageSchema.options.map((o) => ("shape" in o ? o.shape.type.value : o.options[0].shape.type.value));
+/** The `type` values a schema accepts, read from the schema itself so error messages never go stale. */
+type Option = { shape: { type: { value: string } } } | { options: readonly Option[] };
+const typesOf = (options: readonly Option[]): string[] => [...new Set(options.flatMap((o) => ("options" in o ? typesOf(o.options) : [o.shape.type.value])))];
+const CLIENT_TYPES = typesOf(clientMessageSchema.options as readonly Option[]);
+const SERVER_TYPES = typesOf(serverMessageSchema.options as readonly Option[]);
 
 /** Parses one client frame. Never throws: garbage of any kind comes back as a ProtocolError. */
 export function parseClientMessage(raw: string | Uint8Array | ArrayBuffer): ParseResult<ClientMessage> {

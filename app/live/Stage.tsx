@@ -107,7 +107,7 @@ export function Stage(props: StageProps) {
             </span>
           </div>
           {shown === "prompt" ? <Countdown showAt={toLocal(state.prompt.showAt)} deadline={toLocal(state.prompt.deadline)} paused={state.paused} /> : null}
-          <div className="flex min-h-[36vh] items-center justify-center rounded-3xl bg-white shadow">
+          <div data-written={state.prompt.written} className="flex min-h-[36vh] items-center justify-center rounded-3xl bg-white shadow">
             <Staff notes={[{ written: state.prompt.written, accidental: state.prompt.printedAccidental }]} keyFifths={state.prompt.keyFifths} size="stage" />
           </div>
           {state.progress ? (

@@ -4,7 +4,7 @@ import { answers, roomPlayers, rooms } from "~/db/schema";
 import { CLOSE_CODES, MAX_MESSAGE_BYTES, PROTOCOL_VERSION, RATE_LIMIT_BURST } from "~/game/protocol";
 import { seedDemo } from "../../server/seed";
 import { startTestServer, type TestServer } from "./harness";
-import { joinPlayer, openStage, openTestRoom, untilShown } from "./rooms";
+import { joinPlayer, openStage, openTestRoom, spotOf, untilShown } from "./rooms";
 import { TestSocket } from "./socket";
 
 let server: TestServer;
@@ -33,14 +33,14 @@ describe("a full Sprint round with 30 scripted players", () => {
       await Promise.all(
         players.map(async ({ pad }, i) => {
           await pad.next("prompt", (m) => m.index === index);
-          pad.send({ type: "answer", promptId: prompt.promptId, spot: i % 2 === 0 ? note.home : { string: 6, fret: 15 }, tapAt: Date.now() });
+          pad.send({ type: "answer", promptId: prompt.promptId, spot: i % 2 === 0 ? spotOf(note.home) : { string: 6, fret: 15 }, tapAt: Date.now() });
           const ack = await pad.next("answer-ack", (m) => m.promptId === prompt.promptId);
           expect(ack.accepted).toBe(true);
         }),
       );
       const reveal = await stage.next("reveal", (m) => m.promptId === prompt.promptId);
       expect(reveal.answered).toBe(30);
-      expect(reveal.home).toEqual(note.home);
+      expect(reveal.home).toEqual(spotOf(note.home));
       stage.send({ type: "host", action: "next" });
       if (index > 0 && (index + 1) % room.config.standingsEvery === 0 && index + 1 < room.config.prompts.length) {
         await stage.next("standings", (m) => !m.final);
@@ -150,10 +150,12 @@ describe("reconnecting", () => {
     const room = await openTestRoom(server.services.db, { prompts: 3 });
     const stage = await openStage(server.url, secret, room);
     const { pad, you } = await joinPlayer(server.url, room.code, "Wren");
+    // A second player who hasn't answered keeps the prompt open while Wren is away.
+    const other = await joinPlayer(server.url, room.code, "Yara");
     stage.send({ type: "host", action: "start" });
     const prompt = await pad.next("prompt");
     await untilShown(prompt.showAt);
-    pad.send({ type: "answer", promptId: prompt.promptId, spot: room.config.prompts[0]!.home, tapAt: Date.now() });
+    pad.send({ type: "answer", promptId: prompt.promptId, spot: spotOf(room.config.prompts[0]!.home), tapAt: Date.now() });
     const ack = await pad.next("answer-ack");
     pad.close();
     await stage.next("roster", (m) => m.players.some((p) => p.playerId === you.playerId && !p.online));
@@ -165,6 +167,7 @@ describe("reconnecting", () => {
     expect(restored).toMatchObject({ accepted: true, total: (ack as { total: number }).total });
     await stage.next("roster", (m) => m.players.some((p) => p.playerId === you.playerId && p.online));
     again.close();
+    other.pad.close();
     stage.close();
   });
 });

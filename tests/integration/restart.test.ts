@@ -8,7 +8,7 @@ import { closeDb, openDb } from "~/db/client.server";
 import { answers } from "~/db/schema";
 import { PROTOCOL_VERSION } from "~/game/protocol";
 import { seedDemo } from "../../server/seed";
-import { joinPlayer, openStage, openTestRoom, untilShown } from "./rooms";
+import { joinPlayer, openStage, openTestRoom, spotOf, untilShown } from "./rooms";
 import { TestSocket } from "./socket";
 
 const SECRET = "restart-test-secret-0123456789abcdef0123";
@@ -32,6 +32,8 @@ async function boot(port: number): Promise<ChildProcess> {
       SMTP_URL: "smtp://127.0.0.1:9",
     },
     stdio: ["ignore", "ignore", "inherit"],
+    // Its own process group, so a kill reaches the server itself and not only npx.
+    detached: true,
   });
   for (let i = 0; i < 100; i++) {
     try {
@@ -45,8 +47,15 @@ async function boot(port: number): Promise<ChildProcess> {
 }
 
 const children: ChildProcess[] = [];
+const killGroup = (child: ChildProcess, signal: NodeJS.Signals) => {
+  try {
+    process.kill(-child.pid!, signal);
+  } catch {
+    // already gone
+  }
+};
 afterAll(() => {
-  for (const c of children) c.kill("SIGKILL");
+  for (const c of children) killGroup(c, "SIGKILL");
 });
 
 describe("kill and restart mid-round", () => {
@@ -67,7 +76,7 @@ describe("kill and restart mid-round", () => {
     const first = await stage.next("prompt", (m) => m.index === 0);
     await untilShown(first.showAt);
     for (const { pad, you } of players) {
-      pad.send({ type: "answer", promptId: first.promptId, spot: room.config.prompts[0]!.home, tapAt: Date.now() });
+      pad.send({ type: "answer", promptId: first.promptId, spot: spotOf(room.config.prompts[0]!.home), tapAt: Date.now() });
       const ack = await pad.next("answer-ack", (m) => m.promptId === first.promptId);
       if (ack.accepted) {
         acked.push(`${you.playerId}:0`);
@@ -80,15 +89,16 @@ describe("kill and restart mid-round", () => {
     await untilShown(second.showAt);
     // Two players answer the second prompt, then the process dies without warning.
     for (const { pad, you } of players.slice(0, 2)) {
-      pad.send({ type: "answer", promptId: second.promptId, spot: room.config.prompts[1]!.home, tapAt: Date.now() });
+      pad.send({ type: "answer", promptId: second.promptId, spot: spotOf(room.config.prompts[1]!.home), tapAt: Date.now() });
       const ack = await pad.next("answer-ack", (m) => m.promptId === second.promptId);
       if (ack.accepted) {
         acked.push(`${you.playerId}:1`);
         totals.set(you.playerId, ack.total);
       }
     }
-    child.kill("SIGKILL");
-    await new Promise((r) => child.once("exit", r));
+    const exited = new Promise((r) => child.once("exit", r));
+    killGroup(child, "SIGKILL");
+    await exited;
 
     const stored = await db.select().from(answers).where(eq(answers.roomId, room.id));
     expect(stored.map((a) => `${a.playerId}:${a.promptIndex}`).sort()).toEqual([...acked].sort());
@@ -110,7 +120,7 @@ describe("kill and restart mid-round", () => {
       return stage2.next("standings", (m) => m.final);
     })();
     for (const row of standings.points) expect(row.points).toBe(totals.get(row.playerId) ?? 0);
-    child.kill("SIGTERM");
+    killGroup(child, "SIGTERM");
     await closeDb(db);
   }, 60_000);
 });

@@ -63,3 +63,6 @@ export async function untilShown(showAt: number) {
   const wait = showAt - Date.now() + 5;
   if (wait > 0) await new Promise((r) => setTimeout(r, wait));
 }
+
+/** Only what a pad sends: the protocol refuses extra fields. */
+export const spotOf = ({ string, fret }: { string: number; fret: number }) => ({ string, fret });

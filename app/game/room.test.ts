@@ -1,0 +1,533 @@
+import { describe, expect, it } from "vitest";
+import { spotsFor, type Spot } from "~/music/fretboard";
+import { seededRandom, type ReadingSpec } from "~/music/pools";
+import { resolveTuning } from "~/music/tuning";
+import { CLOSE_CODES, ERROR_CODES, HOST_ACTIONS, serverMessageSchema, type HostAction, type Phase, type ServerMessage } from "./protocol";
+import { initialState, LATE_GRACE_MS, playerBySeat, reduce, replay, snapshot, type Effect, type RoomEvent, type RoomRecord, type RoomState } from "./room";
+import { drawnPrompts, roomConfig, tunePrompts, type PromptNote, type RoomConfig } from "./roomConfig";
+import { summarise } from "./standings";
+
+const SPEC: ReadingSpec = { position: 5, tuning: "standard", frets: 15, reading: "guitar", keyFifths: 0, accidentals: "naturals", ledgerLines: false };
+const T0 = 1_000_000;
+const COUNTDOWN = 3_000;
+const ANSWER = 10_000;
+
+type Settings = Parameters<typeof roomConfig>[1];
+
+function config(settings: Partial<Settings> = {}, prompts: PromptNote[] = drawnPrompts(SPEC, 6, 42)): RoomConfig {
+  return roomConfig(SPEC, { code: "KMNPRT", mode: "sprint", countdownMs: COUNTDOWN, answerMs: ANSWER, standingsEvery: 0, ...settings }, prompts);
+}
+
+const home = (n: PromptNote): Spot => ({ string: n.home.string, fret: n.home.fret });
+const same = (a: Spot, b: Spot) => a.string === b.string && a.fret === b.fret;
+const spots = (n: PromptNote) => spotsFor(n.written, { tuning: resolveTuning("standard"), frets: SPEC.frets, reading: "guitar" });
+const otherSpot = (n: PromptNote): Spot | undefined => spots(n).find((s) => !same(s, home(n)));
+/** A half step above the home spot: always the wrong pitch. */
+const wrongSpot = (n: PromptNote): Spot => ({ string: n.home.string, fret: n.home.fret + 1 });
+
+/** Drives the reducer like the hub would, checking every outgoing message against the protocol schema. */
+class Room {
+  state: RoomState;
+  records: RoomRecord[] = [];
+  effects: Effect[] = [];
+  now = T0;
+
+  constructor(readonly config: RoomConfig) {
+    this.state = initialState(config);
+  }
+
+  do(event: RoomEvent, at = this.now, leadMs?: number): Effect[] {
+    this.now = at;
+    const step = reduce(this.state, event, leadMs === undefined ? { now: at } : { now: at, leadMs });
+    for (const e of step.effects) {
+      if (e.kind === "persist") this.records.push(e.record);
+      if (e.kind === "send") serverMessageSchema.parse(e.message);
+    }
+    expect(step.effects.filter((e) => e.kind === "persist").length).toBeLessThanOrEqual(1);
+    if (step.effects.some((e) => e.kind === "persist")) expect(step.effects[0]!.kind).toBe("persist");
+    this.state = step.state;
+    this.effects = step.effects;
+    return step.effects;
+  }
+
+  join(id: string, nickname = id, at = this.now) {
+    return this.do({ type: "join", playerId: id, seat: `seat-${id}-0123456789abcdef`, nickname }, at);
+  }
+  host(action: HostAction, at = this.now, priorPoints?: Record<string, number>) {
+    return this.do(priorPoints ? { type: "host", action, priorPoints } : { type: "host", action }, at);
+  }
+  tap(id: string, spot: Spot, at = this.now, promptId = this.state.run!.promptId) {
+    return this.do({ type: "answer", playerId: id, promptId, spot, tapAt: at }, at);
+  }
+  /** Jump to the moment the current prompt is shown, plus `after` ms. */
+  shown(after = 0) {
+    return this.state.run!.showAt + after;
+  }
+  note(): PromptNote {
+    return this.config.prompts[this.state.run!.index]!;
+  }
+  sent(type?: ServerMessage["type"]) {
+    return this.effects.flatMap((e) => (e.kind === "send" && (type === undefined || e.message.type === type) ? [e] : []));
+  }
+  player(id: string) {
+    return this.state.players.find((p) => p.id === id)!;
+  }
+}
+
+function errorOf(effects: Effect[]): string | undefined {
+  for (const e of effects) {
+    if (e.kind !== "send") continue;
+    if (e.message.type === "error") return e.message.code;
+    if (e.message.type === "answer-ack" && !e.message.accepted) return e.message.code;
+  }
+  return undefined;
+}
+
+function started(settings: Partial<Settings> = {}, players = ["ana", "ben"], prompts?: PromptNote[]): Room {
+  const room = new Room(config(settings, prompts));
+  for (const p of players) room.join(p);
+  room.host("start");
+  return room;
+}
+
+describe("lobby", () => {
+  it("welcomes a player with a seat and tells everyone the roster", () => {
+    const room = new Room(config());
+    const effects = room.join("p1", "  Sam  ");
+    expect(effects[0]).toMatchObject({ kind: "persist" });
+    const welcome = room.sent("welcome")[0]!;
+    expect(welcome.to).toEqual({ to: "player", playerId: "p1" });
+    expect(welcome.message).toMatchObject({ role: "player", phase: "lobby", you: { playerId: "p1", nickname: "Sam", seat: "seat-p1-0123456789abcdef", team: null } });
+    expect(room.sent("roster").map((e) => e.to)).toEqual([{ to: "everyone" }]);
+    expect(playerBySeat(room.state, "seat-p1-0123456789abcdef")?.id).toBe("p1");
+  });
+
+  it("de-duplicates nicknames and refuses bad ones without changing state", () => {
+    const room = new Room(config());
+    room.join("p1", "Sam");
+    room.join("p2", "sam");
+    expect(room.player("p2").nickname).toBe("sam 2");
+    const before = room.state;
+    const effects = room.join("p3", "x");
+    expect(errorOf(effects)).toBe(ERROR_CODES.badNickname);
+    expect(effects.some((e) => e.kind === "persist")).toBe(false);
+    expect(room.state).toBe(before);
+  });
+
+  it("a locked room refuses joins until unlocked", () => {
+    const room = new Room(config());
+    room.host("lock");
+    expect(errorOf(room.join("p1"))).toBe(ERROR_CODES.roomLocked);
+    room.host("unlock");
+    expect(errorOf(room.join("p1"))).toBeUndefined();
+  });
+
+  it("a full room refuses joins", () => {
+    const room = new Room(config({ maxPlayers: 2 }));
+    room.join("a1");
+    room.join("a2");
+    expect(errorOf(room.join("a3"))).toBe(ERROR_CODES.roomFull);
+  });
+
+  it("cannot start without players", () => {
+    const room = new Room(config());
+    expect(errorOf(room.host("start"))).toBe(ERROR_CODES.noPlayers);
+    expect(room.state.phase).toBe("lobby");
+  });
+
+  it("never mutates the state it is given", () => {
+    const room = started();
+    const frozen = structuredClone(room.state);
+    const before = room.state;
+    room.tap("ana", home(room.note()), room.shown(500));
+    expect(before).toEqual(frozen);
+  });
+});
+
+describe("prompt and answers", () => {
+  it("start schedules the first prompt after the countdown (or the network lead, if longer)", () => {
+    const room = started();
+    expect(room.state.phase).toBe("prompt");
+    const prompt = room.sent("prompt")[0]!;
+    expect(prompt.to).toEqual({ to: "everyone" });
+    expect(prompt.message).toMatchObject({ promptId: "p1", index: 0, total: 6, showAt: T0 + COUNTDOWN, deadline: T0 + COUNTDOWN + ANSWER, spotsToFind: null });
+
+    const slow = new Room(config({ countdownMs: 0 }));
+    slow.join("ana");
+    slow.do({ type: "host", action: "start" }, T0, 800);
+    expect(slow.state.run!.showAt).toBe(T0 + 800);
+  });
+
+  it("scores a home-spot answer and acknowledges it", () => {
+    const room = started();
+    room.tap("ana", home(room.note()), room.shown(1_000));
+    const ack = room.sent("answer-ack")[0]!;
+    expect(ack.to).toEqual({ to: "player", playerId: "ana" });
+    expect(ack.message).toMatchObject({ accepted: true, points: 950, total: 950, streak: 1, reactionMs: 1_000, diagnosis: { kind: "home-spot", pitchRight: true } });
+    expect(room.sent("answered")[0]).toMatchObject({ to: { to: "stage" }, message: { count: 1, of: 2 } });
+  });
+
+  it.each<[string, (r: Room) => Effect[], string]>([
+    ["during the countdown", (r) => r.tap("ana", home(r.note()), r.shown(-10)), ERROR_CODES.notOpen],
+    ["a second answer", (r) => (r.tap("ana", home(r.note()), r.shown(100)), r.tap("ana", home(r.note()), r.shown(200))), ERROR_CODES.alreadyAnswered],
+    ["for another prompt", (r) => r.tap("ana", home(r.note()), r.shown(100), "p9"), ERROR_CODES.wrongPrompt],
+    ["tapped after the deadline", (r) => r.tap("ana", home(r.note()), r.state.run!.deadline + 1), ERROR_CODES.tooLate],
+    ["after the grace period", (r) => r.tap("ana", home(r.note()), r.state.run!.deadline + LATE_GRACE_MS), ERROR_CODES.tooLate],
+    ["from someone who never joined", (r) => r.tap("zed", home(r.note()), r.shown(100)), ERROR_CODES.notJoined],
+    ["off the neck", (r) => r.tap("ana", { string: 7, fret: 3 }, r.shown(100)), ERROR_CODES.spotOffNeck],
+    ["beyond the last fret", (r) => r.tap("ana", { string: 1, fret: 16 }, r.shown(100)), ERROR_CODES.spotOffNeck],
+    ["while paused", (r) => (r.host("pause", r.shown(100)), r.tap("ana", home(r.note()), r.shown(200))), ERROR_CODES.paused],
+  ])("refuses an answer %s with a clear code", (_, act, code) => {
+    const room = started();
+    const effects = act(room);
+    expect(errorOf(effects)).toBe(code);
+    const ack = effects.find((e) => e.kind === "send" && e.message.type === "answer-ack");
+    expect(ack).toMatchObject({ message: { accepted: false, message: expect.any(String) } });
+  });
+
+  it("accepts an answer tapped before the deadline that arrives within the grace period", () => {
+    const room = started();
+    const deadline = room.state.run!.deadline;
+    const effects = room.do({ type: "answer", playerId: "ana", promptId: "p1", spot: home(room.note()), tapAt: deadline - 5 }, deadline + 200);
+    expect(errorOf(effects)).toBeUndefined();
+    expect(room.state.answers[0]!.reactionMs).toBe(ANSWER - 5);
+  });
+
+  it("closes as soon as every online player has answered, offline players aside", () => {
+    const room = started({}, ["ana", "ben", "cy"]);
+    room.do({ type: "offline", playerId: "cy" });
+    room.tap("ana", home(room.note()), room.shown(300));
+    expect(room.state.phase).toBe("prompt");
+    room.tap("ben", wrongSpot(room.note()), room.shown(400));
+    expect(room.state.phase).toBe("reveal");
+    const reveal = room.sent("reveal")[0]!.message;
+    expect(reveal).toMatchObject({ answered: 2, of: 3, home: home(room.note()) });
+    if (reveal.type !== "reveal") throw new Error("expected a reveal");
+    expect(reveal.counts["home-spot"]).toBe(1);
+    expect(reveal.counts["no-answer"]).toBe(1);
+    expect(reveal.heat).toHaveLength(2);
+    expect(reveal.otherSpots.some((s) => same(s, home(room.note())))).toBe(false);
+  });
+
+  it("closes at the deadline: online non-answerers lose their streak, offline ones keep it", () => {
+    const room = started({}, ["ana", "ben", "cy"]);
+    for (const id of ["ana", "ben", "cy"]) room.tap(id, home(room.note()), room.shown(100));
+    room.host("next");
+    room.do({ type: "offline", playerId: "cy" });
+    room.tap("ana", home(room.note()), room.shown(100));
+    const wake = room.state.run!.deadline + LATE_GRACE_MS;
+    expect(reduce(room.state, { type: "tick" }, { now: wake - 1 }).effects).toEqual([]);
+    room.do({ type: "tick" }, wake);
+    expect(room.state.phase).toBe("reveal");
+    expect([room.player("ana").streak, room.player("ben").streak, room.player("cy").streak]).toEqual([2, 0, 1]);
+  });
+
+  it("partial points for the right pitch at another spot keep the streak", () => {
+    const prompts = drawnPrompts(SPEC, 40, 7).filter((n) => otherSpot(n) !== undefined).slice(0, 2);
+    const room = started({}, ["ana"], prompts);
+    room.tap("ana", home(room.note()), room.shown(0));
+    room.host("next");
+    room.tap("ana", otherSpot(room.note())!, room.shown(0));
+    expect(room.state.answers[1]).toMatchObject({ verdict: "partial", points: 500, streak: 1, diagnosis: { kind: "other-spot" } });
+  });
+
+  it("with home spot only off, any spot of the right pitch scores in full", () => {
+    const prompts = drawnPrompts(SPEC, 40, 7).filter((n) => otherSpot(n) !== undefined).slice(0, 1);
+    const room = started({ homeOnly: false }, ["ana"], prompts);
+    room.tap("ana", otherSpot(room.note())!, room.shown(0));
+    expect(room.state.answers[0]).toMatchObject({ verdict: "right", points: 1000, streak: 1 });
+  });
+});
+
+describe("phase transitions", () => {
+  const reach: Record<Exclude<Phase, "lobby">, (r: Room) => void> = {
+    prompt: () => {},
+    reveal: (r) => r.host("skip"),
+    standings: (r) => (r.host("skip"), r.host("next")),
+    paused: (r) => r.host("pause"),
+    ended: (r) => r.host("end"),
+  };
+  const legal: Record<Phase, HostAction[]> = {
+    lobby: ["start", "lock", "unlock", "end"],
+    prompt: ["pause", "skip", "lock", "unlock", "end"],
+    reveal: ["pause", "next", "lock", "unlock", "end"],
+    standings: ["pause", "next", "lock", "unlock", "end"],
+    paused: ["resume", "lock", "unlock", "end"],
+    ended: [],
+  };
+  const cases = (Object.keys(legal) as Phase[]).flatMap((phase) => HOST_ACTIONS.map((action) => [phase, action, legal[phase].includes(action)] as const));
+
+  it.each(cases)("%s + %s → accepted %s", (phase, action, ok) => {
+    const room = new Room(config({ standingsEvery: 1 }));
+    room.join("ana");
+    if (phase !== "lobby") {
+      room.host("start");
+      reach[phase](room);
+    }
+    expect(room.state.phase).toBe(phase);
+    const before = room.state;
+    const effects = room.host(action);
+    if (ok) {
+      expect(errorOf(effects)).toBeUndefined();
+      expect(effects[0]).toMatchObject({ kind: "persist" });
+    } else {
+      expect(errorOf(effects)).toBe(phase === "ended" ? ERROR_CODES.roomEnded : ERROR_CODES.wrongPhase);
+      expect(room.state).toBe(before);
+    }
+  });
+
+  it("shows standings every N prompts and ends after the last reveal", () => {
+    const room = started({ standingsEvery: 2 }, ["ana"], drawnPrompts(SPEC, 3, 1));
+    const seen: Phase[] = [];
+    while (room.state.phase !== "ended") {
+      seen.push(room.state.phase);
+      if (room.state.phase === "prompt") room.tap("ana", home(room.note()), room.shown(0));
+      else room.host("next");
+    }
+    expect(seen).toEqual(["prompt", "reveal", "prompt", "reveal", "standings", "prompt", "reveal"]);
+    expect(room.sent("standings").map((e) => e.message)).toMatchObject([{ final: true }, { final: true }]);
+    expect(room.sent("ended")[0]!.message).toMatchObject({ reason: "finished", summaries: [{ playerId: "ana", answered: 3, correct: 3 }] });
+    expect(room.effects.at(-1)).toEqual({ kind: "close", to: { to: "everyone" }, code: CLOSE_CODES.roomGone });
+  });
+
+  it("reveal and standings move on by themselves with autoAdvanceMs", () => {
+    const room = started({ autoAdvanceMs: 5_000, standingsEvery: 1 }, ["ana"], drawnPrompts(SPEC, 2, 1));
+    room.tap("ana", home(room.note()), room.shown(0));
+    const revealAt = room.now;
+    expect(reduce(room.state, { type: "tick" }, { now: revealAt }).wakeAt).toBe(revealAt + 5_000);
+    room.do({ type: "tick" }, revealAt + 5_000);
+    expect(room.state.phase).toBe("standings");
+    room.do({ type: "tick" }, revealAt + 10_000);
+    expect(room.state.phase).toBe("prompt");
+    expect(room.state.run!.index).toBe(1);
+  });
+
+  it("pause and resume: fresh countdown, open time already used counts towards reaction time", () => {
+    const room = started({}, ["ana", "ben"]);
+    room.host("pause", room.shown(4_000));
+    expect(room.sent("paused")).toHaveLength(1);
+    expect(reduce(room.state, { type: "tick" }, { now: room.now + 60_000 }).wakeAt).toBeNull();
+    const resumeAt = room.now + 60_000;
+    room.host("resume", resumeAt);
+    expect(room.sent().map((e) => e.message.type)).toEqual(["resumed", "prompt"]);
+    expect(room.state.run).toMatchObject({ showAt: resumeAt + COUNTDOWN, deadline: resumeAt + COUNTDOWN + ANSWER - 4_000, creditedMs: 4_000 });
+    room.tap("ana", home(room.note()), room.shown(1_000));
+    expect(room.state.answers[0]!.reactionMs).toBe(5_000);
+  });
+
+  it("skip reveals at once, keeps points given and breaks no streak", () => {
+    const room = started({}, ["ana", "ben"]);
+    room.tap("ana", home(room.note()), room.shown(0));
+    room.tap("ben", home(room.note()), room.shown(0));
+    room.host("next");
+    room.tap("ana", home(room.note()), room.shown(0));
+    room.host("skip");
+    expect(room.state.phase).toBe("reveal");
+    expect([room.player("ana").streak, room.player("ben").streak]).toEqual([2, 1]);
+  });
+
+  it("removing a player closes their socket, frees the seat and can close the prompt", () => {
+    const room = started({}, ["ana", "ben"]);
+    room.tap("ana", home(room.note()), room.shown(0));
+    const effects = room.do({ type: "remove", playerId: "ben" });
+    expect(effects).toContainEqual({ kind: "close", to: { to: "player", playerId: "ben" }, code: CLOSE_CODES.removed });
+    expect(room.state.phase).toBe("reveal");
+    expect(playerBySeat(room.state, "seat-ben-0123456789abcdef")).toBeUndefined();
+    expect(errorOf(room.do({ type: "online", playerId: "ben" }))).toBe(ERROR_CODES.unknownPlayer);
+    expect(summarise(room.state).map((s) => s.playerId)).toEqual(["ana"]);
+  });
+
+  it("a reconnecting pad gets the prompt and its own answer back", () => {
+    const room = started({}, ["ana", "ben"]);
+    room.tap("ana", home(room.note()), room.shown(700));
+    room.do({ type: "offline", playerId: "ana" });
+    room.do({ type: "online", playerId: "ana" });
+    expect(room.sent().filter((e) => e.to.to === "player").map((e) => e.message.type)).toEqual(["welcome", "prompt", "answer-ack"]);
+    expect(snapshot(room.state, { role: "host" }, room.now).map((m) => m.type)).toEqual(["welcome", "roster", "prompt"]);
+    expect(snapshot(room.state, { role: "player", playerId: null }, room.now)[0]).toMatchObject({ type: "welcome", you: null });
+  });
+
+  it("restart after a crash marks everyone offline and pauses play", () => {
+    const room = started();
+    room.do({ type: "restart" });
+    expect(room.state.phase).toBe("paused");
+    expect(room.state.players.every((p) => !p.online)).toBe(true);
+  });
+});
+
+describe("modes", () => {
+  it("Tune walk: the tune's notes in order, name revealed only at the end", () => {
+    const notes = drawnPrompts(SPEC, 5, 3).map((n) => n.written);
+    const room = new Room(config({ mode: "tune-walk", tuneName: "Lantern Hill" }, tunePrompts(SPEC, notes)));
+    room.join("ana");
+    room.host("start");
+    const written: string[] = [];
+    while (room.state.phase !== "ended") {
+      if (room.state.phase === "prompt") {
+        written.push(room.note().written);
+        expect(JSON.stringify(room.sent())).not.toContain("Lantern");
+        room.tap("ana", home(room.note()), room.shown(0));
+      } else room.host("next");
+    }
+    expect(written).toEqual(notes);
+    expect(room.sent("ended")[0]!.message).toMatchObject({ tuneName: "Lantern Hill" });
+  });
+
+  it("Full neck: the class covers every spot; new finds score, repeats don't, a miss ends a turn", () => {
+    const prompts = drawnPrompts(SPEC, 40, 9).filter((n) => spots(n).length >= 3).slice(0, 1);
+    const room = started({ mode: "full-neck" }, ["ana", "ben", "cy"], prompts);
+    const all = spots(room.note());
+    expect(room.sent("prompt")[0]!.message).toMatchObject({ spotsToFind: all.length });
+
+    room.tap("ana", all[0]!, room.shown(0));
+    expect(room.state.answers[0]).toMatchObject({ points: 1000, found: "new", streak: 0 });
+    expect(room.sent("progress")[0]!.message).toMatchObject({ found: [all[0]], total: all.length });
+    room.tap("ben", all[0]!, room.shown(100));
+    expect(room.state.answers[1]).toMatchObject({ points: 0, found: "already" });
+    expect(errorOf(room.tap("ana", all[0]!, room.shown(200)))).toBe(ERROR_CODES.alreadyAnswered);
+    room.tap("cy", wrongSpot(room.note()), room.shown(300));
+    expect(errorOf(room.tap("cy", all[1]!, room.shown(400)))).toBe(ERROR_CODES.turnOver);
+
+    for (const [i, spot] of all.slice(1).entries()) {
+      expect(room.state.phase).toBe("prompt");
+      room.tap(i % 2 === 0 ? "ana" : "ben", spot, room.shown(1_000 + i));
+    }
+    expect(room.state.phase).toBe("reveal");
+    expect(room.player("cy").points).toBe(0);
+    expect(room.player("ana").points + room.player("ben").points).toBeGreaterThan(0);
+  });
+
+  it.each<["points" | "round-robin", Record<string, number>, Record<string, number>]>([
+    ["round-robin", {}, { a: 0, b: 1, c: 0, d: 1, e: 0 }],
+    // snake on prior points: d(90) e(70) | c(50) a(30) | b(10) → teams 0 1 | 1 0 | 0
+    ["points", { a: 30, b: 10, c: 50, d: 90, e: 70 }, { d: 0, e: 1, c: 1, a: 0, b: 0 }],
+  ])("Teams assigned at start by %s", (balance, prior, expected) => {
+    const room = new Room(config({ mode: "teams", teams: { count: 2, balance } }));
+    for (const id of ["a", "b", "c", "d", "e"]) room.join(id, `Kid ${id}`);
+    room.host("start", room.now, prior);
+    expect(Object.fromEntries(room.state.players.map((p) => [p.id, p.team]))).toEqual(expected);
+  });
+
+  it("Teams: late joiners fill the smallest team; team score is the mean of members' points", () => {
+    const room = new Room(config({ mode: "teams", teams: { count: 2, balance: "round-robin" } }));
+    for (const id of ["a", "b", "c"]) room.join(id, `Kid ${id}`);
+    room.host("start");
+    room.join("d", "Kid d");
+    expect(room.player("d").team).toBe(1);
+    room.tap("a", home(room.note()), room.shown(0)); // team 0: 1000
+    room.tap("b", home(room.note()), room.shown(5_000)); // team 1: 750
+    room.tap("c", wrongSpot(room.note()), room.shown(0)); // team 0: 0
+    room.tap("d", home(room.note()), room.shown(10_000)); // team 1: 500
+    room.host("end");
+    const teams = room.sent("standings")[0]!.message;
+    expect(teams).toMatchObject({ teams: [{ team: 1, name: "Saddle", points: 625, members: 2 }, { team: 0, name: "Nut", points: 500, members: 2 }] });
+  });
+});
+
+describe("summaries and standings", () => {
+  it("points, accuracy, median reaction time, longest streak; ties share a rank", () => {
+    const room = started({}, ["ana", "ben"], drawnPrompts(SPEC, 4, 5));
+    // [right?, reaction ms] for ana and ben on each prompt
+    const plan: [boolean, number][][] = [
+      [[true, 1_000], [true, 1_000]],
+      [[true, 2_000], [true, 2_000]],
+      [[false, 3_000], [true, 3_000]],
+      [[true, 4_000], [false, 4_000]],
+    ];
+    for (const row of plan) {
+      row.forEach(([right, reaction], i) => {
+        room.tap(i === 0 ? "ana" : "ben", right ? home(room.note()) : wrongSpot(room.note()), room.shown(reaction));
+      });
+      room.host("next");
+    }
+    expect(room.state.phase).toBe("ended");
+    expect(summarise(room.state)).toEqual([
+      { playerId: "ana", nickname: "ana", points: expect.any(Number), answered: 4, correct: 3, accuracy: 0.75, medianReactionMs: 2_000, longestStreak: 2 },
+      { playerId: "ben", nickname: "ben", points: expect.any(Number), answered: 4, correct: 3, accuracy: 0.75, medianReactionMs: 2_000, longestStreak: 3 },
+    ]);
+    const final = room.sent("standings")[0]!.message;
+    if (final.type !== "standings") throw new Error("expected standings");
+    expect(final.streaks.map((s) => [s.playerId, s.longestStreak])).toEqual([["ben", 3], ["ana", 2]]);
+    const points = Object.fromEntries(final.points.map((r) => [r.playerId, r]));
+    expect(points.ben!.points).toBeGreaterThan(points.ana!.points);
+    expect(final.points[0]!.rank).toBe(1);
+
+    const tie = started({}, ["ana", "ben"], drawnPrompts(SPEC, 1, 5));
+    tie.tap("ana", home(tie.note()), tie.shown(500));
+    tie.tap("ben", home(tie.note()), tie.shown(500));
+    tie.host("end");
+    const tied = tie.sent("standings")[0]!.message;
+    expect(tied).toMatchObject({ points: [{ rank: 1 }, { rank: 1 }] });
+  });
+
+  it("a player's own end message carries only their summary", () => {
+    const room = started({}, ["ana", "ben"]);
+    room.host("end");
+    const ends = room.sent("ended");
+    expect(ends.find((e) => e.to.to === "stage")!.message).toMatchObject({ reason: "host", summaries: [{}, {}] });
+    expect(ends.find((e) => e.to.to === "player" && e.to.playerId === "ben")!.message).toMatchObject({ summaries: [{ playerId: "ben" }] });
+  });
+});
+
+describe("replay", () => {
+  /** A messy seeded class: late joins, dropped phones, pauses, random taps, double taps, late taps. */
+  function playMessyRoom(seed: number, settings: Partial<Settings>): Room {
+    const rand = seededRandom(seed);
+    const room = new Room(config({ standingsEvery: 3, ...settings }, drawnPrompts(SPEC, 8, seed)));
+    const ids = ["p1", "p2", "p3", "p4", "p5", "p6"];
+    for (const id of ids.slice(0, 4)) room.join(id, `Kid ${id}`, (room.now += 1_000));
+    room.host("start", room.now, { p1: 300, p2: 900, p3: 100, p4: 500 });
+    for (let step = 0; step < 400 && room.state.phase !== "ended"; step++) {
+      const r = rand();
+      room.now += Math.floor(rand() * 1_500);
+      const id = ids[Math.floor(rand() * ids.length)]!;
+      const known = room.state.players.some((p) => p.id === id);
+      if (!known) room.join(id, `Kid ${id}`);
+      else if (r < 0.05) room.do({ type: rand() < 0.5 ? "offline" : "online", playerId: id });
+      else if (r < 0.07) room.host(room.state.phase === "paused" ? "resume" : "pause");
+      else if (r < 0.08) room.host("skip");
+      else if (room.state.phase === "prompt" || room.state.phase === "paused") {
+        const n = room.note();
+        const choice = [home(n), wrongSpot(n), ...spots(n)][Math.floor(rand() * (2 + spots(n).length))]!;
+        const tapAt = Math.max(0, room.now - Math.floor(rand() * 200));
+        room.do({ type: "answer", playerId: id, promptId: room.state.run!.promptId, spot: choice, tapAt }, room.now, Math.floor(rand() * 600));
+      } else if (room.state.phase === "reveal" || room.state.phase === "standings") room.host("next");
+      room.do({ type: "tick" });
+    }
+    return room;
+  }
+
+  it.each<[string, Partial<Settings>]>([
+    ["Sprint", {}],
+    ["Sprint, home spot only off", { homeOnly: false }],
+    ["Full neck", { mode: "full-neck" }],
+    ["Teams", { mode: "teams", teams: { count: 2, balance: "points" } }],
+    ["Sprint with auto-advance", { autoAdvanceMs: 4_000 }],
+  ])("%s: replaying the persisted records rebuilds identical scores and streaks", (_, settings) => {
+    for (const seed of [11, 12, 13]) {
+      const live = playMessyRoom(seed, settings);
+      expect(live.state.answers.length).toBeGreaterThan(10);
+      // The records go through SQLite as JSON.
+      const stored = JSON.parse(JSON.stringify(live.records)) as RoomRecord[];
+      const rebuilt = replay(live.config, stored);
+      expect(rebuilt).toEqual(live.state);
+      expect(summarise(rebuilt)).toEqual(summarise(live.state));
+    }
+  });
+
+  it("resumes after a crash mid-game: rebuilt prefix + the rest of the events = the uninterrupted game", () => {
+    const live = playMessyRoom(21, {});
+    const cut = Math.floor(live.records.length / 2);
+    const resumed = live.records.slice(cut).reduce((s, r) => reduce(s, r.event, r.env).state, replay(live.config, live.records.slice(0, cut)));
+    expect(resumed).toEqual(live.state);
+  });
+
+  it("refused events and idle ticks are not persisted", () => {
+    const room = started();
+    const count = room.records.length;
+    room.tap("zed", home(room.note()), room.shown(0));
+    room.do({ type: "tick" }, room.shown(0));
+    room.host("resume");
+    expect(room.records).toHaveLength(count);
+  });
+});

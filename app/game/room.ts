@@ -1,0 +1,585 @@
+/**
+ * The room state machine, as a pure reducer: reduce(state, event, env) → { state, effects, wakeAt }.
+ *
+ *   lobby ──start──▶ prompt ──all answered / time up / skip──▶ reveal ──next──▶ prompt …
+ *                      │                                         │ every `standingsEvery` prompts
+ *                      │                                         ▼
+ *                      │                                     standings ──next──▶ prompt …
+ *   prompt, reveal, standings ──pause──▶ paused ──resume──▶ (where it was)
+ *   any phase ──end (or next after the last reveal)──▶ ended
+ *
+ * "prompt" has two moments, told apart by the clock rather than by state: the countdown until
+ * showAt, when answers are refused, and the open window from showAt to the deadline.
+ *
+ * Driving it: the hub turns every socket message, connect and disconnect into a RoomEvent, calls
+ * reduce with the current server time, then carries out the effects in order — "persist" first
+ * (append the record to the room's log in SQLite), then "send" and "close". It keeps one timer at
+ * `wakeAt` and sends a "tick" when it fires. Everything the reducer decides depends only on
+ * (state, event, env), so replaying the persisted records (replay()) rebuilds the same state —
+ * same scores, same streaks — after a crash.
+ */
+import { spotsFor, type Spot } from "~/music/fretboard";
+import { diagnose, MISTAKE_LABELS, type Diagnosis, type MistakeKind } from "~/music/mistakes";
+import { resolveTuning } from "~/music/tuning";
+import { reactionTime, scheduleShowAt } from "./clock";
+import { cleanNickname, uniqueNickname } from "./nickname";
+import {
+  CLOSE_CODES,
+  ERROR_CODES,
+  type CloseCode,
+  type ErrorCode,
+  type HostAction,
+  type Phase,
+  type ServerMessage,
+  type ServerMessageOf,
+} from "./protocol";
+import type { PromptNote, RoomConfig } from "./roomConfig";
+import { scoreAnswer, scoreFind, verdictOf, type Verdict } from "./scoring";
+import { standings, summarise } from "./standings";
+
+/** Answers may arrive this long after the deadline if they were tapped before it (radio latency). */
+export const LATE_GRACE_MS = 300;
+
+// ---- state ---------------------------------------------------------------------------------
+
+export interface Player {
+  id: string;
+  nickname: string;
+  /** Bearer secret that lets this phone take its seat back after a reconnect. */
+  seat: string;
+  online: boolean;
+  removed: boolean;
+  team: number | null;
+  points: number;
+  streak: number;
+  longestStreak: number;
+}
+
+export interface Answer {
+  playerId: string;
+  promptId: string;
+  index: number;
+  spot: Spot;
+  /** Tap time in server clock (already bounded by clock.ts) and receive time. */
+  tapAt: number;
+  at: number;
+  reactionMs: number;
+  diagnosis: Diagnosis;
+  verdict: Verdict;
+  points: number;
+  streak: number;
+  /** Full neck: whether this spot was new to the class. */
+  found: "new" | "already" | null;
+}
+
+export interface PromptRun {
+  index: number;
+  promptId: string;
+  showAt: number;
+  deadline: number;
+  /** Open time used before a pause; counts towards reaction time after resume. */
+  creditedMs: number;
+  /** Full neck: spots found so far, and players whose miss ended their turn. */
+  found: Spot[];
+  out: string[];
+  /** Set when the prompt closes, so a reveal rebuilt later shows the same counts. */
+  closed: { of: number; unanswered: number } | null;
+}
+
+export interface RoomState {
+  config: RoomConfig;
+  phase: Phase;
+  locked: boolean;
+  players: Player[];
+  answers: Answer[];
+  run: PromptRun | null;
+  phaseSince: number;
+  paused: { from: "prompt" | "reveal" | "standings"; at: number } | null;
+  ended: "finished" | "host" | null;
+}
+
+export function initialState(config: RoomConfig): RoomState {
+  return { config, phase: "lobby", locked: false, players: [], answers: [], run: null, phaseSince: 0, paused: null, ended: null };
+}
+
+// ---- inputs and outputs --------------------------------------------------------------------
+
+export type RoomEvent =
+  | { type: "join"; playerId: string; seat: string; nickname: string }
+  | { type: "online"; playerId: string }
+  | { type: "offline"; playerId: string }
+  | { type: "answer"; playerId: string; promptId: string; spot: Spot; tapAt: number }
+  /** priorPoints (by player id) is read on start, to balance Teams. */
+  | { type: "host"; action: HostAction; priorPoints?: Record<string, number> }
+  | { type: "remove"; playerId: string }
+  /** The server came back after a crash: every socket is gone, play pauses until the host resumes. */
+  | { type: "restart" }
+  | { type: "tick" };
+
+export interface RoomEnv {
+  now: number;
+  /** Network lead for a prompt scheduled by this event (clock.leadFor over the connected pads). */
+  leadMs?: number;
+}
+
+export interface RoomRecord {
+  env: RoomEnv;
+  event: RoomEvent;
+}
+
+/** "everyone" = the stage and every connected pad of the room. */
+export type Audience = { to: "stage" } | { to: "player"; playerId: string } | { to: "everyone" };
+
+export type Effect =
+  | { kind: "persist"; record: RoomRecord }
+  | { kind: "send"; to: Audience; message: ServerMessage }
+  | { kind: "close"; to: Audience; code: CloseCode };
+
+export interface Step {
+  state: RoomState;
+  effects: Effect[];
+  /** When to send the next "tick", or null if nothing is timed. */
+  wakeAt: number | null;
+}
+
+// ---- reducer -------------------------------------------------------------------------------
+
+const STAGE: Audience = { to: "stage" };
+const EVERYONE: Audience = { to: "everyone" };
+const player = (playerId: string): Audience => ({ to: "player", playerId });
+
+/** A working copy: the handlers below mutate it; the caller's state is never touched. */
+interface Ctx {
+  s: RoomState;
+  env: RoomEnv;
+  out: Effect[];
+  send: (to: Audience, message: ServerMessage) => void;
+}
+
+export function reduce(state: RoomState, event: RoomEvent, env: RoomEnv): Step {
+  const s: RoomState = { ...state, players: state.players.map((p) => ({ ...p })), run: state.run && { ...state.run } };
+  const out: Effect[] = [];
+  const ctx: Ctx = { s, env, out, send: (to, message) => out.push({ kind: "send", to, message }) };
+  const timed = applyDue(ctx);
+  const accepted = handle(ctx, event);
+  if (!timed && (!accepted || event.type === "tick")) return { state, effects: out, wakeAt: wakeAt(state) };
+  return { state: s, effects: [{ kind: "persist", record: { env, event } }, ...out], wakeAt: wakeAt(s) };
+}
+
+/** Rebuilds a room from its config and persisted records (then send { type: "restart" }). */
+export function replay(config: RoomConfig, records: readonly RoomRecord[]): RoomState {
+  return records.reduce((state, r) => reduce(state, r.event, r.env).state, initialState(config));
+}
+
+export function wakeAt(s: RoomState): number | null {
+  if (s.phase === "prompt" && s.run) return s.run.deadline + LATE_GRACE_MS;
+  if ((s.phase === "reveal" || s.phase === "standings") && s.config.autoAdvanceMs !== null) return s.phaseSince + s.config.autoAdvanceMs;
+  return null;
+}
+
+function applyDue(ctx: Ctx): boolean {
+  const due = wakeAt(ctx.s);
+  if (due === null || ctx.env.now < due) return false;
+  if (ctx.s.phase === "prompt") closePrompt(ctx, false);
+  else advance(ctx);
+  return true;
+}
+
+/** Returns whether the event was accepted; refusals only send an error. */
+function handle(ctx: Ctx, e: RoomEvent): boolean {
+  switch (e.type) {
+    case "join":
+      return join(ctx, e);
+    case "online":
+    case "offline":
+      return setOnline(ctx, e.playerId, e.type === "online");
+    case "answer":
+      return answer(ctx, e);
+    case "host":
+      return host(ctx, e.action, e.priorPoints ?? {});
+    case "remove":
+      return remove(ctx, e.playerId);
+    case "restart":
+      for (const p of ctx.s.players) p.online = false;
+      if (ctx.s.phase === "prompt" || ctx.s.phase === "reveal" || ctx.s.phase === "standings") pause(ctx);
+      return true;
+    case "tick":
+      return true;
+  }
+}
+
+function refuse(ctx: Ctx, to: Audience, code: ErrorCode, message: string): false {
+  ctx.send(to, { type: "error", code, message });
+  return false;
+}
+
+const active = (s: RoomState) => s.players.filter((p) => !p.removed);
+const findPlayer = (s: RoomState, id: string) => s.players.find((p) => p.id === id && !p.removed);
+
+// ---- players -------------------------------------------------------------------------------
+
+function join(ctx: Ctx, e: Extract<RoomEvent, { type: "join" }>): boolean {
+  const { s } = ctx;
+  const to = player(e.playerId);
+  if (s.players.some((p) => p.id === e.playerId)) return setOnline(ctx, e.playerId, true);
+  if (s.phase === "ended") return refuse(ctx, to, ERROR_CODES.roomEnded, "This room has ended.");
+  if (s.locked) return refuse(ctx, to, ERROR_CODES.roomLocked, "The teacher has locked this room.");
+  if (active(s).length >= s.config.maxPlayers) return refuse(ctx, to, ERROR_CODES.roomFull, `This room is full (${s.config.maxPlayers} players).`);
+  const clean = cleanNickname(e.nickname);
+  if (!clean.ok) return refuse(ctx, to, ERROR_CODES.badNickname, clean.message);
+  const nickname = uniqueNickname(clean.nickname, active(s).map((p) => p.nickname));
+  const team = s.config.teams !== null && s.phase !== "lobby" ? smallestTeam(s, s.config.teams.count) : null;
+  s.players.push({ id: e.playerId, nickname, seat: e.seat, online: true, removed: false, team, points: 0, streak: 0, longestStreak: 0 });
+  catchUp(ctx, e.playerId);
+  return true;
+}
+
+function setOnline(ctx: Ctx, playerId: string, online: boolean): boolean {
+  const p = findPlayer(ctx.s, playerId);
+  if (!p) return refuse(ctx, player(playerId), ERROR_CODES.unknownPlayer, "That seat is no longer in this room. Join again.");
+  p.online = online;
+  if (online) catchUp(ctx, playerId);
+  else {
+    ctx.send(EVERYONE, roster(ctx.s));
+    closeIfDone(ctx);
+  }
+  return true;
+}
+
+/** The pad's snapshot, with the roster going to everyone instead (it just changed for all). */
+function catchUp(ctx: Ctx, playerId: string): void {
+  for (const message of snapshot(ctx.s, { role: "player", playerId }, ctx.env.now)) {
+    if (message.type !== "roster") ctx.send(player(playerId), message);
+  }
+  ctx.send(EVERYONE, roster(ctx.s));
+}
+
+function remove(ctx: Ctx, playerId: string): boolean {
+  const p = findPlayer(ctx.s, playerId);
+  if (!p) return refuse(ctx, STAGE, ERROR_CODES.unknownPlayer, "No such player in this room.");
+  p.removed = true;
+  p.online = false;
+  ctx.out.push({ kind: "close", to: player(playerId), code: CLOSE_CODES.removed });
+  ctx.send(EVERYONE, roster(ctx.s));
+  closeIfDone(ctx);
+  return true;
+}
+
+/** The seat a reconnecting phone presents; removed players have none. */
+export function playerBySeat(s: RoomState, seat: string): Player | undefined {
+  return s.players.find((p) => p.seat === seat && !p.removed);
+}
+
+// ---- host ----------------------------------------------------------------------------------
+
+function host(ctx: Ctx, action: HostAction, priorPoints: Record<string, number>): boolean {
+  const { s } = ctx;
+  const wrong = (what: string) => refuse(ctx, STAGE, ERROR_CODES.wrongPhase, `Cannot ${what} during ${s.phase}.`);
+  if (s.phase === "ended") return refuse(ctx, STAGE, ERROR_CODES.roomEnded, "This room has ended.");
+  switch (action) {
+    case "start":
+      if (s.phase !== "lobby") return wrong("start");
+      if (active(s).length === 0) return refuse(ctx, STAGE, ERROR_CODES.noPlayers, "Wait for at least one player to join.");
+      if (s.config.teams !== null) assignTeams(s, s.config.teams, priorPoints);
+      openPrompt(ctx, 0);
+      return true;
+    case "pause":
+      if (s.phase !== "prompt" && s.phase !== "reveal" && s.phase !== "standings") return wrong("pause");
+      pause(ctx);
+      ctx.send(EVERYONE, { type: "paused" });
+      return true;
+    case "resume":
+      if (s.phase !== "paused") return wrong("resume");
+      resume(ctx);
+      return true;
+    case "skip":
+      if (s.phase !== "prompt") return wrong("skip");
+      closePrompt(ctx, true);
+      return true;
+    case "next":
+      if (s.phase !== "reveal" && s.phase !== "standings") return wrong("move on");
+      advance(ctx);
+      return true;
+    case "end":
+      end(ctx, "host");
+      return true;
+    case "lock":
+    case "unlock":
+      s.locked = action === "lock";
+      ctx.send(EVERYONE, roster(s));
+      return true;
+  }
+}
+
+function pause(ctx: Ctx): void {
+  const { s } = ctx;
+  s.paused = { from: s.phase as "prompt" | "reveal" | "standings", at: ctx.env.now };
+  s.phase = "paused";
+}
+
+/** A paused prompt comes back with a fresh countdown and the open time it had left. */
+function resume(ctx: Ctx): void {
+  const { s, env } = ctx;
+  const paused = s.paused!;
+  s.phase = paused.from;
+  s.paused = null;
+  s.phaseSince = env.now;
+  ctx.send(EVERYONE, { type: "resumed" });
+  if (paused.from === "prompt") {
+    const run = s.run!;
+    run.creditedMs += Math.max(0, Math.min(paused.at, run.deadline) - run.showAt);
+    run.showAt = scheduleShowAt(env.now, env.leadMs ?? 0, s.config.countdownMs);
+    run.deadline = run.showAt + s.config.answerMs - run.creditedMs;
+    ctx.send(EVERYONE, promptMessage(s));
+  }
+}
+
+function advance(ctx: Ctx): void {
+  const { s } = ctx;
+  const next = s.run!.index + 1;
+  const every = s.config.standingsEvery;
+  if (next >= s.config.prompts.length) end(ctx, "finished");
+  else if (s.phase === "reveal" && every > 0 && next % every === 0) {
+    s.phase = "standings";
+    s.phaseSince = ctx.env.now;
+    ctx.send(EVERYONE, standings(s, false));
+  } else openPrompt(ctx, next);
+}
+
+function end(ctx: Ctx, reason: "finished" | "host"): void {
+  const { s } = ctx;
+  s.phase = "ended";
+  s.ended = reason;
+  s.paused = null;
+  s.phaseSince = ctx.env.now;
+  for (const message of endMessages(s, STAGE)) ctx.send(STAGE, message);
+  for (const p of active(s)) for (const message of endMessages(s, player(p.id))) ctx.send(player(p.id), message);
+  ctx.out.push({ kind: "close", to: EVERYONE, code: CLOSE_CODES.roomGone });
+}
+
+// ---- teams ---------------------------------------------------------------------------------
+
+/** Snake draft (0,1,2,2,1,0,…) on earlier points, or plain round-robin in join order. */
+function assignTeams(s: RoomState, teams: NonNullable<RoomConfig["teams"]>, priorPoints: Record<string, number>): void {
+  const players = active(s);
+  const order = teams.balance === "points" ? [...players].sort((a, b) => (priorPoints[b.id] ?? 0) - (priorPoints[a.id] ?? 0)) : players;
+  order.forEach((p, i) => {
+    const lap = Math.floor(i / teams.count);
+    const seat = i % teams.count;
+    p.team = teams.balance === "points" && lap % 2 === 1 ? teams.count - 1 - seat : seat;
+  });
+}
+
+/** Late joiners go to the team with fewest members (lowest number on a tie). */
+function smallestTeam(s: RoomState, count: number): number {
+  const sizes = Array.from({ length: count }, (_, t) => active(s).filter((p) => p.team === t).length);
+  return sizes.indexOf(Math.min(...sizes));
+}
+
+// ---- prompts and answers -------------------------------------------------------------------
+
+const note = (s: RoomState): PromptNote => s.config.prompts[s.run!.index]!;
+const sameSpot = (a: Spot, b: Spot) => a.string === b.string && a.fret === b.fret;
+const allSpots = (s: RoomState, n: PromptNote) => spotsFor(n.written, { tuning: resolveTuning(s.config.tuning), frets: s.config.frets, reading: s.config.reading });
+const fullNeck = (s: RoomState) => s.config.mode === "full-neck";
+
+function openPrompt(ctx: Ctx, index: number): void {
+  const { s, env } = ctx;
+  const showAt = scheduleShowAt(env.now, env.leadMs ?? 0, s.config.countdownMs);
+  s.run = { index, promptId: `p${index + 1}`, showAt, deadline: showAt + s.config.answerMs, creditedMs: 0, found: [], out: [], closed: null };
+  s.phase = "prompt";
+  s.phaseSince = env.now;
+  ctx.send(EVERYONE, promptMessage(s));
+}
+
+function answer(ctx: Ctx, e: Extract<RoomEvent, { type: "answer" }>): boolean {
+  const { s, env } = ctx;
+  const run = s.run;
+  const no = (code: ErrorCode, message: string): false => {
+    ctx.send(player(e.playerId), { type: "answer-ack", promptId: e.promptId, accepted: false, code, message });
+    return false;
+  };
+  const p = findPlayer(s, e.playerId);
+  if (!p) return no(ERROR_CODES.notJoined, "Join the room before answering.");
+  if (run === null || run.promptId !== e.promptId) return no(ERROR_CODES.wrongPrompt, "That answer is for a different prompt.");
+  if (s.phase === "paused" && s.paused?.from === "prompt") return no(ERROR_CODES.paused, "The round is paused.");
+  if (s.phase !== "prompt" || e.tapAt > run.deadline) return no(ERROR_CODES.tooLate, "Time was up for this prompt.");
+  if (env.now < run.showAt) return no(ERROR_CODES.notOpen, "The note is not showing yet.");
+  const tuning = resolveTuning(s.config.tuning);
+  if (e.spot.string > tuning.strings.length || e.spot.fret > s.config.frets) {
+    return no(ERROR_CODES.spotOffNeck, `That spot is not on this neck (${tuning.strings.length} strings, ${s.config.frets} frets).`);
+  }
+  const mine = s.answers.filter((a) => a.promptId === run.promptId && a.playerId === p.id);
+  if (fullNeck(s)) {
+    if (run.out.includes(p.id)) return no(ERROR_CODES.turnOver, "A miss ended your turn on this prompt.");
+    if (mine.some((a) => sameSpot(a.spot, e.spot))) return no(ERROR_CODES.alreadyAnswered, "You already tapped that spot.");
+  } else if (mine.length > 0) {
+    return no(ERROR_CODES.alreadyAnswered, "You already answered this prompt.");
+  }
+
+  const n = note(s);
+  const reactionMs = Math.min(s.config.answerMs, run.creditedMs + reactionTime(e.tapAt, run.showAt, s.config.answerMs));
+  const diagnosis = diagnose({ note: n, keyFifths: n.keyFifths, tapped: e.spot, tuning, reading: s.config.reading, homeOnly: s.config.homeOnly && !fullNeck(s) });
+  let scored: { verdict: Verdict; points: number; streak: number; found: Answer["found"] };
+  if (fullNeck(s)) {
+    const fresh = diagnosis.pitchRight && !run.found.some((f) => sameSpot(f, e.spot));
+    if (fresh) run.found = [...run.found, e.spot];
+    if (!diagnosis.pitchRight) run.out = [...run.out, p.id];
+    scored = {
+      verdict: diagnosis.pitchRight ? "right" : "wrong",
+      points: fresh ? scoreFind(reactionMs, s.config.answerMs) : 0,
+      streak: p.streak,
+      found: diagnosis.pitchRight ? (fresh ? "new" : "already") : null,
+    };
+  } else {
+    const verdict = verdictOf(diagnosis, s.config.homeOnly);
+    const score = scoreAnswer({ verdict, reactionMs, answerMs: s.config.answerMs, streakBefore: p.streak });
+    scored = { verdict, points: score.points, streak: score.streak, found: null };
+  }
+  p.points += scored.points;
+  p.streak = scored.streak;
+  p.longestStreak = Math.max(p.longestStreak, p.streak);
+  const record: Answer = { playerId: p.id, promptId: run.promptId, index: run.index, spot: e.spot, tapAt: e.tapAt, at: env.now, reactionMs, diagnosis, ...scored };
+  s.answers = [...s.answers, record];
+
+  ctx.send(player(p.id), ackMessage(record, p));
+  ctx.send(STAGE, { type: "answered", promptId: run.promptId, count: answeredCount(s), of: active(s).length });
+  if (scored.found === "new") ctx.send(EVERYONE, progressMessage(s));
+  closeIfDone(ctx);
+  return true;
+}
+
+const answeredCount = (s: RoomState) => new Set(s.answers.filter((a) => a.promptId === s.run!.promptId).map((a) => a.playerId)).size;
+
+/** Closes the prompt early when nothing more can happen: everyone online answered (or, in Full neck, all spots found or everyone is out). */
+function closeIfDone(ctx: Ctx): void {
+  const { s } = ctx;
+  if (s.phase !== "prompt") return;
+  const run = s.run!;
+  const waiting = active(s).filter((p) => p.online);
+  const done = fullNeck(s)
+    ? run.found.length === allSpots(s, note(s)).length || (waiting.length > 0 && waiting.every((p) => run.out.includes(p.id)))
+    : waiting.length > 0 && waiting.every((p) => s.answers.some((a) => a.promptId === run.promptId && a.playerId === p.id));
+  if (done) closePrompt(ctx, false);
+}
+
+/** A skipped prompt keeps the points already given but breaks nobody's streak. */
+function closePrompt(ctx: Ctx, skipped: boolean): void {
+  const { s } = ctx;
+  const run = s.run!;
+  const answeredIds = new Set(s.answers.filter((a) => a.promptId === run.promptId).map((a) => a.playerId));
+  const missing = active(s).filter((p) => !answeredIds.has(p.id));
+  if (!skipped && !fullNeck(s)) for (const p of missing) if (p.online) p.streak = 0;
+  run.closed = { of: active(s).length, unanswered: missing.length };
+  s.phase = "reveal";
+  s.phaseSince = ctx.env.now;
+  ctx.send(EVERYONE, revealMessage(s));
+}
+
+// ---- messages ------------------------------------------------------------------------------
+
+function roster(s: RoomState): ServerMessageOf<"roster"> {
+  return {
+    type: "roster",
+    locked: s.locked,
+    max: s.config.maxPlayers,
+    players: active(s).map((p) => ({ playerId: p.id, nickname: p.nickname, online: p.online, team: p.team })),
+  };
+}
+
+function promptMessage(s: RoomState): ServerMessageOf<"prompt"> {
+  const run = s.run!;
+  const n = note(s);
+  return {
+    type: "prompt",
+    promptId: run.promptId,
+    index: run.index,
+    total: s.config.prompts.length,
+    mode: s.config.mode,
+    written: n.written,
+    keyFifths: n.keyFifths,
+    printedAccidental: n.printedAccidental,
+    ledger: n.ledger,
+    showAt: run.showAt,
+    deadline: run.deadline,
+    answerMs: s.config.answerMs,
+    spotsToFind: fullNeck(s) ? allSpots(s, n).length : null,
+  };
+}
+
+function ackMessage(a: Answer, p: Player): ServerMessageOf<"answer-ack"> {
+  return {
+    type: "answer-ack",
+    promptId: a.promptId,
+    accepted: true,
+    points: a.points,
+    total: p.points,
+    streak: a.streak,
+    reactionMs: a.reactionMs,
+    diagnosis: { kind: a.diagnosis.kind, pitchRight: a.diagnosis.pitchRight, semitones: a.diagnosis.semitones, message: a.diagnosis.message },
+    found: a.found,
+  };
+}
+
+function progressMessage(s: RoomState): ServerMessageOf<"progress"> {
+  return { type: "progress", promptId: s.run!.promptId, found: s.run!.found, total: allSpots(s, note(s)).length };
+}
+
+function revealMessage(s: RoomState): ServerMessageOf<"reveal"> {
+  const run = s.run!;
+  const n = note(s);
+  const taps = s.answers.filter((a) => a.promptId === run.promptId);
+  const counts = Object.fromEntries([...Object.keys(MISTAKE_LABELS), "no-answer"].map((k) => [k, 0])) as Record<MistakeKind | "no-answer", number>;
+  for (const a of taps) counts[a.diagnosis.kind] += 1;
+  counts["no-answer"] = run.closed!.unanswered;
+  const heat = new Map<string, { string: number; fret: number; count: number }>();
+  for (const a of taps) {
+    const key = `${a.spot.string}:${a.spot.fret}`;
+    heat.set(key, { ...a.spot, count: (heat.get(key)?.count ?? 0) + 1 });
+  }
+  return {
+    type: "reveal",
+    promptId: run.promptId,
+    written: n.written,
+    home: { string: n.home.string, fret: n.home.fret },
+    otherSpots: allSpots(s, n).filter((spot) => !sameSpot(spot, n.home)),
+    heat: [...heat.values()].sort((a, b) => a.string - b.string || a.fret - b.fret),
+    counts,
+    answered: new Set(taps.map((a) => a.playerId)).size,
+    of: run.closed!.of,
+  };
+}
+
+/** Final standings, then the summaries: all of them for the stage, only their own for a player. */
+function endMessages(s: RoomState, to: Audience): ServerMessage[] {
+  const summaries = summarise(s).filter((x) => to.to !== "player" || x.playerId === to.playerId);
+  return [standings(s, true), { type: "ended", reason: s.ended!, tuneName: s.config.tuneName, summaries }];
+}
+
+/**
+ * Everything a stage or pad needs on (re)connecting, starting with welcome: the roster, then what
+ * is on screen now (the prompt and the player's own acks, the reveal, standings, pause, or the end).
+ * A pad that has not joined yet passes playerId null.
+ */
+export function snapshot(s: RoomState, who: { role: "host" } | { role: "player"; playerId: string | null }, now: number): ServerMessage[] {
+  const p = who.role === "player" && who.playerId !== null ? findPlayer(s, who.playerId) : undefined;
+  const welcome: ServerMessage = {
+    type: "welcome",
+    role: who.role,
+    room: s.config.code,
+    phase: s.phase,
+    serverTime: now,
+    you: p ? { playerId: p.id, nickname: p.nickname, seat: p.seat, team: p.team } : null,
+  };
+  const messages: ServerMessage[] = [welcome, roster(s)];
+  const shown = s.phase === "paused" ? s.paused!.from : s.phase;
+  if (shown === "prompt") {
+    messages.push(promptMessage(s));
+    if (fullNeck(s)) messages.push(progressMessage(s));
+    if (p) for (const a of s.answers.filter((x) => x.promptId === s.run!.promptId && x.playerId === p.id)) messages.push(ackMessage(a, p));
+  } else if (shown === "reveal") messages.push(revealMessage(s));
+  else if (shown === "standings") messages.push(standings(s, false));
+  else if (shown === "ended") messages.push(...endMessages(s, who.role === "host" ? STAGE : player(p?.id ?? "")));
+  if (s.phase === "paused") messages.push({ type: "paused" });
+  return messages;
+}

@@ -1,0 +1,84 @@
+import type { Browser, Page } from "@playwright/test";
+import { expect, shot, signIn, test } from "./fixtures";
+
+const PHONE = { viewport: { width: 390, height: 844 }, isMobile: true, hasTouch: true };
+
+async function hostRound(page: Page, mode: "Sprint" | "Full neck", prompts: number) {
+  await signIn(page, "rafe@larkspur.example");
+  await page.goto("/host");
+  await page.getByLabel(new RegExp(mode)).check();
+  await page.getByLabel("Number of notes").fill(String(prompts));
+  await page.getByLabel("Seconds per note").fill("20");
+  await page.getByRole("button", { name: "Open the room" }).click();
+  await expect(page).toHaveURL(/\/stage\//);
+  const code = (await page.getByLabel(/^Room code/).first().getAttribute("aria-label"))!.replace(/Room code |\s/g, "");
+  return code;
+}
+
+async function joinOnPhone(browser: Browser, code: string, nickname: string) {
+  const context = await browser.newContext(PHONE);
+  const page = await context.newPage();
+  await page.goto("/join");
+  await page.getByLabel("Room code").fill(code.toLowerCase());
+  await page.getByRole("button", { name: "Join" }).click();
+  await expect(page).toHaveURL(new RegExp(`/play/${code}`));
+  await page.getByLabel("Nickname").fill(nickname);
+  await page.getByRole("button", { name: "Join" }).click();
+  await expect(page.getByText("You're in. Watch the class screen.")).toBeVisible();
+  return page;
+}
+
+/** The written note on the stage, and where it is played, from the public API. */
+async function currentNote(stage: Page) {
+  const written = await stage.locator("[data-written]").getAttribute("data-written");
+  const map = await (await stage.request.get("/api/v1/spot-map?position=5&tuning=standard")).json();
+  const spots = await (await stage.request.get(`/api/v1/spots?note=${encodeURIComponent(written!)}&tuning=standard&frets=15`)).json();
+  const home = map.spots.find((s: { written: string }) => s.written === written) ?? map.spots.find((s: { writtenMidi?: number }) => s.writtenMidi === spots.midi + 12);
+  return { written: written!, home: home as { string: number; fret: number }, spots: spots.spots as { string: number; fret: number }[] };
+}
+
+const tapSpot = (pad: Page, spot: { string: number; fret: number }) =>
+  pad.getByRole("button", { name: `string ${spot.string}, fret ${spot.fret}`, exact: true }).click();
+
+test("a teacher and three phones play a whole Sprint round", async ({ page: stage, browser }) => {
+  const code = await hostRound(stage, "Sprint", 3);
+  const pads = await Promise.all(["Ash", "Bea", "Cy"].map((n) => joinOnPhone(browser, code, n)));
+  await expect(stage.getByText("Players (3)")).toBeVisible();
+  await shot(stage, "stage-lobby");
+  await stage.getByRole("button", { name: "▶ Start" }).click();
+  for (let i = 0; i < 3; i++) {
+    await expect(stage.getByText(`Note ${i + 1} of 3`)).toBeVisible();
+    const note = await currentNote(stage);
+    for (const pad of pads) await expect(pad.getByText("Find the note on the class screen")).toBeVisible({ timeout: 10_000 });
+    await tapSpot(pads[0]!, note.home);
+    await tapSpot(pads[1]!, { string: note.home.string === 1 ? 2 : note.home.string - 1, fret: note.home.fret });
+    await tapSpot(pads[2]!, note.home);
+    await expect(pads[0]!.getByText("Home spot!")).toBeVisible();
+    if (i === 0) {
+      await shot(pads[0]!, "pad-right");
+      await shot(pads[1]!, "pad-wrong");
+    }
+    await expect(stage.getByText("3/3")).toBeVisible();
+    if (i === 0) await shot(stage, "stage-reveal");
+    await stage.getByRole("button", { name: "Next ▶" }).click();
+  }
+  await expect(stage.getByText("Round complete")).toBeVisible();
+  await expect(stage.getByText("Final standings")).toBeVisible();
+  await shot(stage, "stage-final");
+  await expect(pads[0]!.getByText(/3 of 3 home spots/)).toBeVisible();
+  await stage.getByRole("link", { name: "See note-by-note results" }).click();
+  await expect(stage.getByRole("heading", { name: "Longest streaks" })).toBeVisible();
+  await shot(stage, "results");
+});
+
+test("a Full neck round: the class covers every spot of a pitch together", async ({ page: stage, browser }) => {
+  const code = await hostRound(stage, "Full neck", 1);
+  const pads = await Promise.all(["Dee", "Eli"].map((n) => joinOnPhone(browser, code, n)));
+  await stage.getByRole("button", { name: "▶ Start" }).click();
+  const note = await currentNote(stage);
+  for (const pad of pads) await expect(pad.getByText("Find the note on the class screen")).toBeVisible({ timeout: 10_000 });
+  // Each phone takes every other spot; the pads scroll to reach frets outside the position.
+  for (const [i, spot] of note.spots.entries()) await tapSpot(pads[i % 2]!, spot);
+  await expect(stage.getByText(`Spots found: ${note.spots.length} of ${note.spots.length}`)).toBeVisible();
+  await shot(stage, "stage-full-neck");
+});
