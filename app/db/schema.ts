@@ -91,6 +91,9 @@ export const rooms = sqliteTable(
       .notNull()
       .references(() => users.id, { onDelete: "cascade" }),
     classId: text("class_id").references(() => classes.id, { onDelete: "set null" }),
+    // What the round was hosted from, for the class review (the config itself is self-contained).
+    readingSetId: text("reading_set_id").references(() => readingSets.id, { onDelete: "set null" }),
+    tuneId: text("tune_id").references(() => tunes.id, { onDelete: "set null" }),
     title: text("title").notNull(),
     mode: text("mode").notNull(),
     // The position the round reads in: pads zoom their fretboard to it.
@@ -163,4 +166,98 @@ export const answers = sqliteTable(
     primaryKey({ columns: [t.roomId, t.playerId, t.promptIndex, t.string, t.fret] }),
     index("answers_room_prompt_idx").on(t.roomId, t.promptIndex),
   ],
+);
+
+// ---- teacher workspace -----------------------------------------------------------------------
+
+/** An e-mailed link to set a password and join a class; only a hash of the token is kept. */
+export const invitations = sqliteTable(
+  "invitations",
+  {
+    tokenHash: text("token_hash").primaryKey(),
+    userId: text("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    classId: text("class_id")
+      .notNull()
+      .references(() => classes.id, { onDelete: "cascade" }),
+    invitedBy: text("invited_by").references(() => users.id, { onDelete: "set null" }),
+    expiresAt: integer("expires_at", { mode: "timestamp_ms" }).notNull(),
+    acceptedAt: integer("accepted_at", { mode: "timestamp_ms" }),
+    // A resend replaces the link: the old one stops working.
+    revokedAt: integer("revoked_at", { mode: "timestamp_ms" }),
+    createdAt: createdAt(),
+  },
+  (t) => [index("invitations_user_idx").on(t.userId)],
+);
+
+/** A saved description of what to read; `spec` holds the reading spec and round settings. */
+export const readingSets = sqliteTable(
+  "reading_sets",
+  {
+    id: text("id").primaryKey(),
+    orgId: text("org_id")
+      .notNull()
+      .references(() => organisations.id, { onDelete: "cascade" }),
+    classId: text("class_id").references(() => classes.id, { onDelete: "cascade" }),
+    name: text("name").notNull(),
+    spec: text("spec", { mode: "json" }).notNull(),
+    createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+    updatedAt: integer("updated_at", { mode: "timestamp_ms" }),
+  },
+  (t) => [index("reading_sets_org_idx").on(t.orgId), index("reading_sets_class_idx").on(t.classId)],
+);
+
+/** A class's own home-spot map for a position and tuning, replacing the default one. */
+export const spotMaps = sqliteTable(
+  "spot_maps",
+  {
+    classId: text("class_id")
+      .notNull()
+      .references(() => classes.id, { onDelete: "cascade" }),
+    position: integer("position").notNull(),
+    tuning: text("tuning").notNull(),
+    map: text("map", { mode: "json" }).notNull(),
+    updatedBy: text("updated_by").references(() => users.id, { onDelete: "set null" }),
+    updatedAt: integer("updated_at", { mode: "timestamp_ms" }).notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.classId, t.position, t.tuning] })],
+);
+
+/** A melody for Tune walks and rhythm passes: uploaded MusicXML, reduced to one line of notes. */
+export const tunes = sqliteTable(
+  "tunes",
+  {
+    id: text("id").primaryKey(),
+    orgId: text("org_id")
+      .notNull()
+      .references(() => organisations.id, { onDelete: "cascade" }),
+    title: text("title").notNull(),
+    composer: text("composer").notNull().default(""),
+    keyFifths: integer("key_fifths").notNull(),
+    beatsPerBar: integer("beats_per_bar").notNull(),
+    // [{ pitch, beats, bar }]: the shape app/tunes/builtin.ts uses.
+    notes: text("notes", { mode: "json" }).notNull(),
+    createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+  },
+  (t) => [index("tunes_org_idx").on(t.orgId)],
+);
+
+/** Personal API tokens for the JSON API; only a hash is kept, shown once when created. */
+export const apiTokens = sqliteTable(
+  "api_tokens",
+  {
+    id: text("id").primaryKey(),
+    userId: text("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    name: text("name").notNull(),
+    tokenHash: text("token_hash").notNull(),
+    lastUsedAt: integer("last_used_at", { mode: "timestamp_ms" }),
+    revokedAt: integer("revoked_at", { mode: "timestamp_ms" }),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex("api_tokens_hash_unique").on(t.tokenHash), index("api_tokens_user_idx").on(t.userId)],
 );
