@@ -1,19 +1,28 @@
 import { data, redirect, type RouterContextProvider } from "react-router";
 import { services } from "~/context";
 import type { Role } from "~/db/schema";
+import { userIdForToken } from "./tokens.server";
 import { getUserById, type SessionUser } from "./users.server";
 
 type Ctx = Readonly<RouterContextProvider>;
 
-/** The signed-in user, or undefined. A cookie naming a deleted user counts as signed out. */
+const wantsJson = (request: Request) => new URL(request.url).pathname.startsWith("/api/");
+
+/**
+ * The signed-in user, or undefined: from the session cookie, or — for the JSON API only — from a
+ * personal API token (Authorization: Bearer …). A cookie naming a deleted user counts as signed out.
+ */
 export async function getOptionalUser(request: Request, context: Ctx): Promise<SessionUser | undefined> {
   const { sessions, db } = services(context);
+  const bearer = /^Bearer (\S+)$/.exec(request.headers.get("Authorization") ?? "")?.[1];
+  if (bearer && wantsJson(request)) {
+    const tokenUser = await userIdForToken(db, bearer);
+    return tokenUser ? getUserById(db, tokenUser) : undefined;
+  }
   const session = await sessions.getSession(request.headers.get("Cookie"));
   const userId = session.get("userId");
   return userId ? getUserById(db, userId) : undefined;
 }
-
-const wantsJson = (request: Request) => new URL(request.url).pathname.startsWith("/api/");
 
 /** Pages send a signed-out visitor to sign in (and back); the JSON API answers 401. */
 export async function requireUser(request: Request, context: Ctx): Promise<SessionUser> {
