@@ -10,6 +10,7 @@ export default [
   route("explore", "routes/explore.tsx"),
   route("teach", "routes/teacher/dashboard.tsx"),
   route("me", "routes/student/home.tsx"),
+  route("settings/tokens", "routes/settings.tsx"),
   route("host", "routes/live/host.tsx"),
   route("stage/:roomId", "routes/live/stage.tsx"),
   route("results/:roomId", "routes/live/results.tsx"),
