@@ -261,3 +261,101 @@ export const apiTokens = sqliteTable(
   },
   (t) => [uniqueIndex("api_tokens_hash_unique").on(t.tokenHash), index("api_tokens_user_idx").on(t.userId)],
 );
+
+// ---- between lessons ---------------------------------------------------------------------------
+
+/** A reading set or a tune set for a class (or chosen students) with a goal and a due date. */
+export const assignments = sqliteTable(
+  "assignments",
+  {
+    id: text("id").primaryKey(),
+    orgId: text("org_id")
+      .notNull()
+      .references(() => organisations.id, { onDelete: "cascade" }),
+    classId: text("class_id")
+      .notNull()
+      .references(() => classes.id, { onDelete: "cascade" }),
+    title: text("title").notNull(),
+    // One of: a saved reading set, a ready-made one (by preset id), or a tune (uploaded or built in).
+    readingSetId: text("reading_set_id").references(() => readingSets.id, { onDelete: "set null" }),
+    presetId: text("preset_id"),
+    tuneId: text("tune_id"),
+    goalNotes: integer("goal_notes").notNull(),
+    goalAccuracy: integer("goal_accuracy_pct").notNull(),
+    goalMedianMs: integer("goal_median_ms"),
+    dueAt: integer("due_at", { mode: "timestamp_ms" }).notNull(),
+    createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
+    remindedAt: integer("reminded_at", { mode: "timestamp_ms" }),
+    createdAt: createdAt(),
+  },
+  (t) => [index("assignments_class_idx").on(t.classId)],
+);
+
+/** Chosen students of an assignment; none means the whole class. */
+export const assignmentTargets = sqliteTable(
+  "assignment_targets",
+  {
+    assignmentId: text("assignment_id")
+      .notNull()
+      .references(() => assignments.id, { onDelete: "cascade" }),
+    userId: text("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+  },
+  (t) => [primaryKey({ columns: [t.assignmentId, t.userId] })],
+);
+
+/** Every answer a student gives in solo practice. `clientId` makes a resend after a dropped connection harmless. */
+export const practiceAnswers = sqliteTable(
+  "practice_answers",
+  {
+    userId: text("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    clientId: text("client_id").notNull(),
+    assignmentId: text("assignment_id").references(() => assignments.id, { onDelete: "set null" }),
+    source: text("source").notNull(),
+    position: integer("position").notNull(),
+    tuning: text("tuning").notNull(),
+    written: text("written").notNull(),
+    writtenMidi: integer("written_midi").notNull(),
+    string: integer("string").notNull(),
+    fret: integer("fret").notNull(),
+    kind: text("kind").notNull(),
+    pitchRight: integer("pitch_right", { mode: "boolean" }).notNull(),
+    reactionMs: integer("reaction_ms").notNull(),
+    at: integer("at", { mode: "timestamp_ms" }).notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.userId, t.clientId] }), index("practice_user_at_idx").on(t.userId, t.at)],
+);
+
+/** A rhythm pass over a tune: per-note timing results. */
+export const rhythmAttempts = sqliteTable(
+  "rhythm_attempts",
+  {
+    id: text("id").primaryKey(),
+    userId: text("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    tuneId: text("tune_id").notNull(),
+    tempo: integer("tempo").notNull(),
+    score: integer("score_pct").notNull(),
+    results: text("results", { mode: "json" }).notNull(),
+    at: integer("at", { mode: "timestamp_ms" }).notNull(),
+  },
+  (t) => [index("rhythm_user_idx").on(t.userId)],
+);
+
+/** What was mailed, so a notice, reminder or weekly digest goes out once. */
+export const mailLog = sqliteTable(
+  "mail_log",
+  {
+    kind: text("kind").notNull(),
+    subjectId: text("subject_id").notNull(),
+    userId: text("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    sentAt: integer("sent_at", { mode: "timestamp_ms" }).notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.kind, t.subjectId, t.userId] })],
+);
