@@ -35,7 +35,6 @@ export interface Diagnosis {
   message: string /* plain words */;
 }
 
-const SIGN_NAMES = { sharp: "sharp", flat: "flat", natural: "natural" } as const;
 const spotWords = (s: Spot) => `string ${s.string}, fret ${s.fret}`;
 const sameSpot = (a: Spot, b: Spot) => a.string === b.string && a.fret === b.fret;
 
@@ -110,7 +109,7 @@ export function diagnose(input: {
     if ([signature, 0, -written.alter].includes(playedAlter)) {
       return result(
         "accidental-miss",
-        `The ${SIGN_NAMES[note.printedAccidental]} sign before this note makes it ${wanted}; you played ${played}. ${home}`,
+        `The ${note.printedAccidental} sign before this note makes it ${wanted}; you played ${played}. ${home}`,
       );
     }
   }

@@ -1,0 +1,316 @@
+// MusicXML 4.0 (partwise, .musicxml/.xml or compressed .mxl) to a single melody line for Tune walk.
+import { Unzip, UnzipInflate } from "fflate";
+import { XMLParser, XMLValidator } from "fast-xml-parser";
+import { checkFifths, type PrintedAccidental } from "./keys";
+import { checkPitch, MusicError, pitchMidi, pitchToString, type Letter, type Pitch } from "./pitch";
+
+export interface TuneNote {
+  written: string /* ASCII spelling */;
+  writtenMidi: number;
+  pitch: Pitch;
+  bar: string /* the measure's number attribute, as printed */;
+  barIndex: number /* 0-based order of the measure */;
+  onset: number /* quarter notes from the start */;
+  duration: number /* quarter notes, ties merged */;
+  keyFifths: number;
+  printedAccidental: PrintedAccidental | null;
+}
+export interface Tune {
+  title: string | null;
+  part: string /* part name, or its id */;
+  bars: number;
+  notes: TuneNote[];
+}
+
+// Limits keep a hostile or mistaken upload from exhausting memory; real melodies are far smaller.
+export const MAX_FILE_BYTES = 5 * 1024 * 1024;
+export const MAX_XML_CHARS = 20 * 1024 * 1024;
+const MAX_ZIP_ENTRIES = 500;
+const MAX_NOTES = 20_000;
+// Fed to the inflater in small slices, so one push can expand to at most a few MB before the limit is checked.
+const ZIP_SLICE = 4096;
+
+type XmlNode = Record<string, unknown>;
+
+const parser = new XMLParser({
+  preserveOrder: true, // backup/forward only make sense in document order
+  ignoreAttributes: false,
+  attributeNamePrefix: "",
+  parseTagValue: false,
+  parseAttributeValue: false,
+  trimValues: true,
+});
+
+function tagOf(node: XmlNode): string | undefined {
+  return Object.keys(node).find((k) => k !== ":@");
+}
+function kids(node: XmlNode | undefined): XmlNode[] {
+  const tag = node && tagOf(node);
+  const value = tag ? node[tag] : undefined;
+  return Array.isArray(value) ? (value as XmlNode[]) : [];
+}
+function find(node: XmlNode | undefined, tag: string): XmlNode | undefined {
+  return kids(node).find((k) => tagOf(k) === tag);
+}
+function findAll(node: XmlNode | undefined, tag: string): XmlNode[] {
+  return kids(node).filter((k) => tagOf(k) === tag);
+}
+function textOf(node: XmlNode | undefined): string | undefined {
+  const t = kids(node).find((k) => "#text" in k)?.["#text"];
+  return t === undefined ? undefined : String(t);
+}
+function attr(node: XmlNode | undefined, name: string): string | undefined {
+  const value = (node?.[":@"] as Record<string, unknown> | undefined)?.[name];
+  return value === undefined ? undefined : String(value);
+}
+
+function parseXml(text: string, what: string): XmlNode[] {
+  if (text.length > MAX_XML_CHARS) throw new MusicError(`${what} is larger than ${MAX_XML_CHARS / 1024 / 1024} MB of text.`);
+  const valid = XMLValidator.validate(text);
+  if (valid !== true) throw new MusicError(`${what} is not well-formed XML (line ${valid.err.line}): ${valid.err.msg}`);
+  return parser.parse(text) as XmlNode[];
+}
+
+const ACCIDENTAL_NAMES: Readonly<Record<string, PrintedAccidental>> = {
+  sharp: "sharp",
+  flat: "flat",
+  natural: "natural",
+  "double-sharp": "double-sharp",
+  "sharp-sharp": "double-sharp",
+  "flat-flat": "double-flat",
+  "double-flat": "double-flat",
+};
+
+interface RawNote extends TuneNote {
+  tieStart: boolean;
+  tieStop: boolean;
+}
+
+function positiveNumber(text: string | undefined, what: string): number {
+  const n = Number(text);
+  if (text === undefined || !Number.isFinite(n) || n < 0) throw new MusicError(`${what} must be a number of zero or more, not ${JSON.stringify(text)}.`);
+  return n;
+}
+
+/** Every pitched, sounding note of one part, in document order, with times in quarter notes. */
+function readPart(part: XmlNode): { notes: RawNote[]; bars: number } {
+  const notes: RawNote[] = [];
+  let divisions: number | undefined;
+  let fifths = 0;
+  // MusicXML encodes sounding pitch under an octave clef, so guitar's treble-8vb (clef-octave-change −1) is read
+  // an octave up to get the written note; a part using <transpose> instead already encodes written pitch.
+  const clefShift = new Map<string, number>(); // staff number → octaves to add
+  let barStart = 0;
+  const measures = findAll(part, "measure");
+  measures.forEach((measure, barIndex) => {
+    const bar = attr(measure, "number") ?? String(barIndex + 1);
+    const where = `Bar ${bar}`;
+    let cursor = 0;
+    let longest = 0;
+    let lastOnset = 0;
+    const quarters = (node: XmlNode) => {
+      if (divisions === undefined) throw new MusicError(`${where}: a duration comes before <divisions> says how long a quarter note is.`);
+      return positiveNumber(textOf(find(node, "duration")), `${where}: duration`) / divisions;
+    };
+    for (const item of kids(measure)) {
+      const tag = tagOf(item);
+      if (tag === "attributes") {
+        const d = textOf(find(item, "divisions"));
+        if (d !== undefined) {
+          divisions = positiveNumber(d, `${where}: divisions`);
+          if (divisions === 0) throw new MusicError(`${where}: divisions must be more than 0.`);
+        }
+        const f = textOf(find(find(item, "key"), "fifths"));
+        if (f !== undefined) {
+          try {
+            fifths = checkFifths(Number(f));
+          } catch (error) {
+            throw new MusicError(`${where}: ${(error as Error).message}`);
+          }
+        }
+        for (const clef of findAll(item, "clef")) {
+          const change = Number(textOf(find(clef, "clef-octave-change")) ?? 0);
+          clefShift.set(attr(clef, "number") ?? "1", textOf(find(clef, "sign")) === "G" ? -change : 0);
+        }
+      } else if (tag === "backup") {
+        cursor -= quarters(item);
+        if (cursor < -1e-9) throw new MusicError(`${where}: <backup> goes back past the start of the bar.`);
+      } else if (tag === "forward") {
+        cursor += quarters(item);
+      } else if (tag === "note") {
+        // Grace and cue notes take no time in the melody a student plays.
+        if (find(item, "grace") || find(item, "cue")) continue;
+        const isChord = find(item, "chord") !== undefined;
+        const duration = quarters(item);
+        const onset = isChord ? lastOnset : cursor;
+        if (!isChord) {
+          lastOnset = cursor;
+          cursor += duration;
+        }
+        longest = Math.max(longest, cursor);
+        const pitchNode = find(item, "pitch");
+        if (!pitchNode) continue; // rests and unpitched (percussion) notes
+        const step = textOf(find(pitchNode, "step")) as Letter;
+        const alter = Number(textOf(find(pitchNode, "alter")) ?? 0);
+        if (!Number.isInteger(alter)) throw new MusicError(`${where}: microtonal alter ${alter} cannot be played on frets.`);
+        const soundOctave = Number(textOf(find(pitchNode, "octave")));
+        const shift = clefShift.get(textOf(find(item, "staff")) ?? "1") ?? 0;
+        const pitch = checkPitch({ letter: step, alter, octave: soundOctave + shift }, where);
+        const printed = textOf(find(item, "accidental"));
+        const ties = findAll(item, "tie").map((t) => attr(t, "type"));
+        notes.push({
+          written: pitchToString(pitch),
+          writtenMidi: pitchMidi(pitch),
+          pitch,
+          bar,
+          barIndex,
+          onset: barStart + onset,
+          duration,
+          keyFifths: fifths,
+          printedAccidental: printed === undefined ? null : (ACCIDENTAL_NAMES[printed] ?? null),
+          tieStart: ties.includes("start"),
+          tieStop: ties.includes("stop"),
+        });
+        if (notes.length > MAX_NOTES) throw new MusicError(`The first part has more than ${MAX_NOTES} notes.`);
+      }
+    }
+    barStart += longest;
+  });
+  return { notes, bars: measures.length };
+}
+
+const EPSILON = 1e-6;
+
+/** Merges tied notes into one, then keeps the highest note at each onset and drops lower voices under a held note. */
+function topLine(raw: RawNote[]): TuneNote[] {
+  const merged: RawNote[] = [];
+  for (const note of raw) {
+    const open = note.tieStop
+      ? merged.find((m) => m.tieStart && m.writtenMidi === note.writtenMidi && Math.abs(m.onset + m.duration - note.onset) < EPSILON)
+      : undefined;
+    if (open) {
+      open.duration += note.duration;
+      open.tieStart = note.tieStart;
+    } else {
+      merged.push({ ...note });
+    }
+  }
+  merged.sort((a, b) => a.onset - b.onset || b.writtenMidi - a.writtenMidi);
+  const line: TuneNote[] = [];
+  for (const note of merged) {
+    const last = line.at(-1);
+    if (last && Math.abs(last.onset - note.onset) < EPSILON) continue; // a lower note of the same chord
+    if (last && note.onset < last.onset + last.duration - EPSILON) {
+      if (note.writtenMidi < last.writtenMidi) continue; // an inner voice under a held melody note
+      last.duration = note.onset - last.onset; // the melody moves up before the held note ends
+    }
+    const { tieStart: _start, tieStop: _stop, ...kept } = note;
+    line.push(kept);
+  }
+  return line;
+}
+
+/** Reads the melody (top line of the first part) from MusicXML text. */
+export function parseMusicXml(text: string): Tune {
+  if (typeof text !== "string") throw new MusicError("A MusicXML score must be text.");
+  const doc = parseXml(text, "This MusicXML file");
+  const root = doc.find((n) => tagOf(n) === "score-partwise" || tagOf(n) === "score-timewise");
+  if (!root) throw new MusicError("This file is not a MusicXML score: it has no <score-partwise> element.");
+  if (tagOf(root) === "score-timewise") {
+    throw new MusicError("Timewise MusicXML is not supported: export the score as partwise MusicXML (the usual kind).");
+  }
+  const part = find(root, "part");
+  if (!part) throw new MusicError("This score has no parts.");
+  const id = attr(part, "id") ?? "";
+  const scorePart = findAll(find(root, "part-list"), "score-part").find((p) => attr(p, "id") === id);
+  const { notes, bars } = readPart(part);
+  const line = topLine(notes);
+  if (line.length === 0) throw new MusicError("The first part has no notes to read (only rests or percussion).");
+  return {
+    title: textOf(find(find(root, "work"), "work-title")) ?? textOf(find(root, "movement-title")) ?? null,
+    part: textOf(find(scorePart, "part-name")) ?? id,
+    bars,
+    notes: line,
+  };
+}
+
+function decodeText(bytes: Uint8Array, what: string): string {
+  // MusicXML is UTF-8 or UTF-16; the byte-order mark tells which.
+  const encoding = bytes[0] === 0xff && bytes[1] === 0xfe ? "utf-16le" : bytes[0] === 0xfe && bytes[1] === 0xff ? "utf-16be" : "utf-8";
+  try {
+    return new TextDecoder(encoding, { fatal: true }).decode(bytes);
+  } catch {
+    throw new MusicError(`${what} is not valid ${encoding.toUpperCase()} text.`);
+  }
+}
+
+/** The XML files of a .mxl archive; other entries (images, PDFs) are never inflated. */
+function unzipXml(bytes: Uint8Array): Map<string, Uint8Array> {
+  const chunks = new Map<string, Uint8Array[]>();
+  let total = 0;
+  let entries = 0;
+  let failure: MusicError | undefined;
+  const unzip = new Unzip((file) => {
+    if (++entries > MAX_ZIP_ENTRIES) {
+      failure ??= new MusicError(`This .mxl archive has more than ${MAX_ZIP_ENTRIES} files.`);
+      return;
+    }
+    if (!/\.(xml|musicxml)$/iu.test(file.name)) return;
+    const parts: Uint8Array[] = [];
+    chunks.set(file.name, parts);
+    file.ondata = (error, chunk) => {
+      if (error) {
+        failure ??= new MusicError(`"${file.name}" in the .mxl archive is damaged: ${error.message}`);
+        return;
+      }
+      total += chunk.length;
+      if (total > MAX_XML_CHARS) {
+        failure ??= new MusicError(`This .mxl archive unpacks to more than ${MAX_XML_CHARS / 1024 / 1024} MB.`);
+        file.terminate();
+        return;
+      }
+      parts.push(chunk);
+    };
+    file.start();
+  });
+  unzip.register(UnzipInflate);
+  try {
+    for (let i = 0; i < bytes.length && !failure; i += ZIP_SLICE) {
+      unzip.push(bytes.subarray(i, i + ZIP_SLICE), i + ZIP_SLICE >= bytes.length);
+    }
+  } catch (error) {
+    throw new MusicError(`This .mxl file is not a readable zip archive: ${(error as Error).message}`);
+  }
+  if (failure) throw failure;
+  if (entries === 0) throw new MusicError("This .mxl file is not a readable zip archive: no files found in it.");
+  const files = new Map<string, Uint8Array>();
+  for (const [name, parts] of chunks) {
+    const whole = new Uint8Array(parts.reduce((n, p) => n + p.length, 0));
+    parts.reduce((at, p) => (whole.set(p, at), at + p.length), 0);
+    files.set(name, whole);
+  }
+  return files;
+}
+
+/** Reads a compressed .mxl: META-INF/container.xml names the score inside. */
+export function parseMxl(bytes: Uint8Array): Tune {
+  const files = unzipXml(bytes);
+  const container = files.get("META-INF/container.xml");
+  if (!container) throw new MusicError("This .mxl archive has no META-INF/container.xml, so its score cannot be found.");
+  const doc = parseXml(decodeText(container, "META-INF/container.xml"), "META-INF/container.xml");
+  const rootfiles = findAll(find(doc.find((n) => tagOf(n) === "container"), "rootfiles"), "rootfile");
+  // The first rootfile is the score; later ones may be other renderings (e.g. PDF).
+  const path = rootfiles.map((r) => attr(r, "full-path")).find((p) => p !== undefined);
+  if (!path) throw new MusicError("META-INF/container.xml names no score (no <rootfile full-path=…>).");
+  const score = files.get(path);
+  if (!score) throw new MusicError(`The .mxl archive names "${path}" as its score, but does not contain it.`);
+  return parseMusicXml(decodeText(score, `"${path}"`));
+}
+
+/** An uploaded score file of either kind, told apart by content rather than by name. */
+export function parseScoreFile(bytes: Uint8Array): Tune {
+  if (!(bytes instanceof Uint8Array) || bytes.length === 0) throw new MusicError("The score file is empty.");
+  if (bytes.length > MAX_FILE_BYTES) throw new MusicError(`A score file may be at most ${MAX_FILE_BYTES / 1024 / 1024} MB.`);
+  const isZip = bytes[0] === 0x50 && bytes[1] === 0x4b && bytes[2] === 0x03 && bytes[3] === 0x04; // "PK\3\4"
+  return isZip ? parseMxl(bytes) : parseMusicXml(decodeText(bytes, "The score file"));
+}

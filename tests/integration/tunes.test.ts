@@ -1,0 +1,105 @@
+import { eq } from "drizzle-orm";
+import { zipSync, strToU8 } from "fflate";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { tunes } from "~/db/schema";
+import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
+import { seedDemo } from "../../server/seed";
+import { Client, startTestServer, type TestServer } from "./harness";
+
+// A two-bar melody in G major written for this test (MusicXML 4.0 partwise): F♯ comes from the key.
+const SCORE = `<?xml version="1.0" encoding="UTF-8"?>
+<score-partwise version="4.0">
+  <work><work-title>Quay Steps</work-title></work>
+  <part-list><score-part id="P1"><part-name>Guitar</part-name></score-part></part-list>
+  <part id="P1">
+    <measure number="1">
+      <attributes><divisions>1</divisions><key><fifths>1</fifths></key><time><beats>4</beats><beat-type>4</beat-type></time></attributes>
+      <note><pitch><step>G</step><octave>4</octave></pitch><duration>1</duration></note>
+      <note><pitch><step>A</step><octave>4</octave></pitch><duration>1</duration></note>
+      <note><pitch><step>B</step><octave>4</octave></pitch><duration>2</duration></note>
+    </measure>
+    <measure number="2">
+      <note><pitch><step>F</step><alter>1</alter><octave>5</octave></pitch><duration>2</duration></note>
+      <note><pitch><step>E</step><octave>3</octave></pitch><duration>1</duration></note>
+      <note><rest/><duration>1</duration></note>
+    </measure>
+  </part>
+</score-partwise>`;
+
+let server: TestServer;
+let teacher: Client;
+beforeAll(async () => {
+  server = await startTestServer();
+  await seedDemo(server.services.db);
+  teacher = new Client(server.url);
+  await teacher.post("/signin", { email: DEMO_SCHOOL.teachers[0].email, password: DEMO_PASSWORD });
+});
+afterAll(() => server.close());
+
+function upload(client: Client, name: string, bytes: Uint8Array | string, title = "") {
+  const form = new FormData();
+  form.set("score", new File([typeof bytes === "string" ? bytes : new Uint8Array(bytes)], name));
+  form.set("title", title);
+  return client.request("/teach/tunes", { method: "POST", body: form });
+}
+
+const stored = () => server.services.db.select().from(tunes).where(eq(tunes.orgId, DEMO_SCHOOL.id));
+
+describe("tune uploads", () => {
+  it("stores the melody of a .musicxml file, rests skipped, key applied, and previews it", async () => {
+    const res = await upload(teacher, "quay-steps.musicxml", SCORE);
+    expect(res.status).toBe(302);
+    const [tune] = await stored();
+    expect(tune).toMatchObject({ title: "Quay Steps", keyFifths: 1 });
+    expect(tune!.notes).toEqual([
+      { pitch: "G4", beats: 1, bar: 1 },
+      { pitch: "A4", beats: 1, bar: 1 },
+      { pitch: "B4", beats: 2, bar: 1 },
+      { pitch: "F#5", beats: 2, bar: 2 },
+      { pitch: "E3", beats: 1, bar: 2 },
+    ]);
+    // React separates interpolated text with <!-- --> in server HTML.
+    const page = async (q: string) => (await (await teacher.get(`${res.headers.get("location")}?${q}`)).text()).replace(/<!-- -->/g, "");
+    // The open low E (written E3) is in first position's reach, not in twelfth.
+    expect(await page("position=1")).toContain("Every note of bars 1–2 has a home spot in position 1.");
+    const low = await page("position=12");
+    expect(low).toContain("1 note falls outside position 12: E3 (bar 2)");
+  });
+
+  it("reads a compressed .mxl through META-INF/container.xml", async () => {
+    const mxl = zipSync({
+      "META-INF/container.xml": strToU8(`<?xml version="1.0"?><container><rootfiles><rootfile full-path="score.musicxml"/></rootfiles></container>`),
+      "score.musicxml": strToU8(SCORE),
+    });
+    expect((await upload(teacher, "quay.mxl", mxl, "Quay Steps (compressed)")).status).toBe(302);
+    expect((await stored()).map((t) => t.title)).toContain("Quay Steps (compressed)");
+  });
+
+  it.each([
+    ["notes.txt", "G4 A4 B4", "is not a MusicXML file"],
+    ["broken.musicxml", "<score-partwise><part", "Nothing was saved."],
+    ["letter.xml", `<?xml version="1.0"?><letter>hello</letter>`, "is not a MusicXML score"],
+    ["silent.musicxml", SCORE.replace(/<note><pitch>.*?<\/note>/gs, ""), "no notes"],
+    ["fake.mxl", zipSync({ "score.musicxml": strToU8(SCORE) }), "container.xml"],
+  ])("refuses %s with a clear message and stores nothing", async (name, bytes, message) => {
+    const before = (await stored()).length;
+    const res = await upload(teacher, name, bytes);
+    expect(res.status).toBe(200);
+    expect((await res.text()).replace(/&#x27;/g, "'")).toContain(message);
+    expect((await stored()).length).toBe(before);
+  });
+
+  it("refuses an archive that expands too far", async () => {
+    const bomb = zipSync({ "META-INF/container.xml": strToU8("x"), "big.xml": new Uint8Array(21 * 1024 * 1024) }, { level: 9 });
+    const res = await upload(teacher, "bomb.mxl", bomb);
+    expect(await res.text()).toMatch(/unpacks to more than/);
+  });
+
+  it("is for teachers: students get 403, strangers are sent to sign in", async () => {
+    const student = new Client(server.url);
+    await student.post("/signin", { email: DEMO_SCHOOL.studentWithSignIn.email, password: DEMO_PASSWORD });
+    expect((await student.get("/teach/tunes")).status).toBe(403);
+    expect((await upload(student, "x.musicxml", SCORE)).status).toBe(403);
+    expect((await new Client(server.url).get("/teach/tunes")).status).toBe(302);
+  });
+});
