@@ -1,29 +1,36 @@
 /**
  * Live-round load: N rooms × M scripted players over real WebSockets against the production
- * server (its own process), then the same prompt fan-out through a bare `ws` broadcast server
- * as a baseline, in the same run. Prints figures; asserts nothing.
+ * server (its own process group, its own SQLite file), then the same traffic through a bare `ws`
+ * server (also its own process) as a baseline, in the same run. Loopback only; every wait is
+ * bounded and the run stops itself. Prints figures; asserts nothing. This process is the load
+ * generator and shares the machine's cores with the server it measures.
  *
  *   npx tsx bench/live.ts [rooms=50] [players=40] [prompts=5]
- *   npx tsx bench/live.ts --scale        # grow players per room until p99 passes 100 ms
+ *   npx tsx bench/live.ts --scale        # 10, 25, 50, 100 … rooms of 40 until a p99 passes 100 ms
  */
-import { execSync, spawn } from "node:child_process";
-import { mkdtempSync, readFileSync } from "node:fs";
+import { spawn, type ChildProcess } from "node:child_process";
+import { mkdtempSync, readFileSync, rmSync } from "node:fs";
 import { createServer } from "node:net";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
-import { count } from "drizzle-orm";
-import { WebSocketServer, WebSocket } from "ws";
+import { performance } from "node:perf_hooks";
+import { count, inArray, sql } from "drizzle-orm";
+import { WebSocket, WebSocketServer } from "ws";
 import { closeDb, migrateDb, openDb } from "~/db/client.server";
 import { answers } from "~/db/schema";
 import { seedDemo } from "../server/seed";
 import { joinPlayer, openStage, openTestRoom, spotOf, untilShown } from "../tests/integration/rooms";
-import type { TestSocket } from "../tests/integration/socket";
 
 const SECRET = "bench-secret-0123456789abcdef0123456789";
+const LOOPBACK = "127.0.0.1";
+/** Longest wait for any one message; a run that stalls fails instead of hanging. */
+const WAIT_MS = 60_000;
+/** Rooms joining at once while setting up (set-up is not measured). */
+const JOIN_ROOMS_AT_ONCE = 10;
 
 const freePort = () =>
   new Promise<number>((resolve) => {
-    const s = createServer().listen(0, "127.0.0.1", () => {
+    const s = createServer().listen(0, LOOPBACK, () => {
       const { port } = s.address() as { port: number };
       s.close(() => resolve(port));
     });
@@ -35,194 +42,299 @@ function pct(values: number[], p: number) {
 }
 const fmt = (v: number) => `${v.toFixed(1)} ms`;
 const rssKiB = (pid: number) => Number(/VmRSS:\s+(\d+)/.exec(readFileSync(`/proc/${pid}/status`, "utf8"))![1]);
+const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
-async function bootServer(databaseUrl: string) {
-  const port = await freePort();
-  const child = spawn("npx", ["tsx", "server/index.ts"], {
-    env: { ...process.env, NODE_ENV: "production", PORT: String(port), HOST: "127.0.0.1", SESSION_SECRET: SECRET, SMTP_URL: "smtp://127.0.0.1:9", DATABASE_URL: databaseUrl },
-    stdio: ["ignore", "ignore", "inherit"],
-    detached: true,
-  });
-  for (let i = 0; i < 200; i++) {
-    try {
-      if ((await fetch(`http://127.0.0.1:${port}/healthz`)).ok) break;
-    } catch {
-      await new Promise((r) => setTimeout(r, 100));
-    }
+// ---- child processes -----------------------------------------------------------------------
+
+const children = new Set<ChildProcess>();
+const killGroup = (child: ChildProcess, signal: NodeJS.Signals) => {
+  try {
+    process.kill(-child.pid!, signal);
+  } catch {
+    // already gone
   }
-  return { url: `http://localhost:${port}`, child, serverPid: listeningPid(port) };
+};
+
+/** Node with the tsx loader, in its own process group so a kill reaches all of it. */
+function spawnNode(args: string[], env: Record<string, string>) {
+  const child = spawn(process.execPath, ["--import", "tsx", ...args], { env: { ...process.env, ...env }, stdio: ["ignore", "ignore", "inherit"], detached: true });
+  children.add(child);
+  child.once("exit", () => children.delete(child));
+  return child;
 }
 
-/** npx → tsx → node: the server is the process that listens on the port (ss names it). */
-function listeningPid(port: number): number {
-  const out = execSync(`ss -ltnpH 'sport = :${port}'`, { encoding: "utf8" });
-  return Number(/pid=(\d+)/.exec(out)?.[1] ?? 0);
+async function stop(child: ChildProcess) {
+  if (child.exitCode !== null || child.signalCode !== null) return;
+  const exited = new Promise((r) => child.once("exit", r));
+  killGroup(child, "SIGTERM");
+  // A graceful stop flushes the database; one that hangs is killed.
+  if ((await Promise.race([exited.then(() => true), sleep(15_000).then(() => false)])) === false) killGroup(child, "SIGKILL");
+  await exited;
 }
 
-interface Figures {
-  fanout: number[];
-  ack: number[];
-  answersPerSecond: number;
-  stored: number;
-  expected: number;
-  memPerPlayerKiB: number;
+/** Any HTTP answer means the port is up (the bare ws server answers plain HTTP with 426). */
+async function waitListening(url: string, ok = (res: Response) => res.ok) {
+  const until = Date.now() + 30_000;
+  while (Date.now() < until) {
+    try {
+      if (ok(await fetch(url))) return;
+    } catch {
+      // not listening yet
+    }
+    await sleep(100);
+  }
+  throw new Error(`${url} did not come up within 30 s`);
 }
 
-async function runFretcall(roomsN: number, playersN: number, promptsN: number): Promise<Figures> {
+// ---- the two sides ------------------------------------------------------------------------
+
+/** One prompt on one side: fan-out times (host action → pad), then ack times (answer → its ack). */
+interface Side {
+  prompt(index: number, fanout: number[], ack: number[]): Promise<void>;
+  close(): Promise<void>;
+}
+
+/** Resolves in batches of `size`, so set-up does not open thousands of sockets in one burst. */
+async function inBatches<T, R>(items: T[], size: number, run: (item: T) => Promise<R>): Promise<R[]> {
+  const out: R[] = [];
+  for (let i = 0; i < items.length; i += size) out.push(...(await Promise.all(items.slice(i, i + size).map(run))));
+  return out;
+}
+
+async function fretcall(roomsN: number, playersN: number, promptsN: number) {
   const dir = mkdtempSync(join(tmpdir(), "fretcall-bench-"));
   const databaseUrl = `file:${join(dir, "bench.db")}`;
   const db = await openDb(databaseUrl);
   await migrateDb(db);
   await seedDemo(db);
-  const server = await bootServer(databaseUrl);
-  const rssBefore = rssKiB(server.serverPid);
-  const roomsList = await Promise.all(Array.from({ length: roomsN }, () => openTestRoom(db, { prompts: promptsN, answerMs: 20_000, countdownMs: 0 })));
-  const stages: TestSocket[] = [];
-  const pads: TestSocket[][] = [];
-  for (const room of roomsList) {
-    stages.push(await openStage(server.url, SECRET, room));
-    const joined: TestSocket[] = [];
-    for (let i = 0; i < playersN; i += 20) {
-      const batch = await Promise.all(Array.from({ length: Math.min(20, playersN - i) }, (_, k) => joinPlayer(server.url, room.code, `P${i + k + 1}`)));
-      joined.push(...batch.map((b) => b.pad));
-    }
-    pads.push(joined);
-  }
-  await new Promise((r) => setTimeout(r, 500));
-  const memPerPlayerKiB = (rssKiB(server.serverPid) - rssBefore) / (roomsN * playersN);
-
-  const fanout: number[] = [];
-  const ack: number[] = [];
-  let answered = 0;
-  let answeringMs = 0;
-  for (let index = 0; index < promptsN; index++) {
-    const sentAt = Date.now();
-    const from = pads.map((room) => room.map((p) => p.messages.length));
-    const stageFrom = stages.map((s) => s.messages.length);
-    stages.forEach((s, r) => {
-      const wantsStandings = index > 0 && index % roomsList[r]!.config.standingsEvery === 0;
-      s.send({ type: "host", action: index === 0 ? "start" : "next" });
-      if (wantsStandings) s.send({ type: "host", action: "next" });
-    });
-    const prompts = await Promise.all(
-      pads.map((room, r) =>
-        Promise.all(
-          room.map(async (p, k) => {
-            const m = await p.next("prompt", (x) => x.index === index, from[r]![k], 60_000);
-            fanout.push(Date.now() - sentAt);
-            return m;
-          }),
-        ),
-      ),
+  const port = await freePort();
+  const url = `http://${LOOPBACK}:${port}`;
+  const server = spawnNode(["server/index.ts"], {
+    NODE_ENV: "production",
+    PORT: String(port),
+    HOST: LOOPBACK,
+    SESSION_SECRET: SECRET,
+    SMTP_URL: `smtp://${LOOPBACK}:9`,
+    DATABASE_URL: databaseUrl,
+  });
+  await waitListening(`${url}/healthz`);
+  const rssBefore = rssKiB(server.pid!);
+  const rooms = await Promise.all(Array.from({ length: roomsN }, () => openTestRoom(db, { prompts: promptsN, answerMs: 20_000, countdownMs: 0 })));
+  const joined = await inBatches(rooms, JOIN_ROOMS_AT_ONCE, async (room) => {
+    const stage = await openStage(url, SECRET, room);
+    const pads = await inBatches(
+      Array.from({ length: playersN }, (_, i) => `P${i + 1}`),
+      20,
+      async (name) => (await joinPlayer(url, room.code, name)).pad,
     );
-    await untilShown(Math.max(...prompts.flat().map((m) => m.showAt)));
-    const t0 = Date.now();
-    await Promise.all(
-      pads.map((room, r) =>
-        Promise.all(
-          room.map(async (p, k) => {
+    return { room, stage, pads };
+  });
+  await sleep(500);
+  const memPerPlayerKiB = (rssKiB(server.pid!) - rssBefore) / (roomsN * playersN);
+  let accepted = 0;
+  let answeringMs = 0;
+
+  const side: Side = {
+    async prompt(index, fanout, ack) {
+      const from = joined.map(({ stage, pads }) => ({ stage: stage.messages.length, pads: pads.map((p) => p.messages.length) }));
+      const sentAt = performance.now();
+      for (const { stage, room } of joined) {
+        stage.send({ type: "host", action: index === 0 ? "start" : "next" });
+        if (index > 0 && index % room.config.standingsEvery === 0) stage.send({ type: "host", action: "next" });
+      }
+      const prompts = await Promise.all(
+        joined.map(({ pads }, r) =>
+          Promise.all(
+            pads.map(async (p, k) => {
+              const m = await p.next("prompt", (x) => x.index === index, from[r]!.pads[k], WAIT_MS);
+              fanout.push(performance.now() - sentAt);
+              return m;
+            }),
+          ),
+        ),
+      );
+      await untilShown(Math.max(...prompts.flat().map((m) => m.showAt)));
+      const t0 = performance.now();
+      await Promise.all(
+        joined.flatMap(({ pads, room }, r) =>
+          pads.map(async (p, k) => {
             const prompt = prompts[r]![k]!;
             const before = p.messages.length;
-            const at = Date.now();
-            p.send({ type: "answer", promptId: prompt.promptId, spot: spotOf(roomsList[r]!.config.prompts[index]!.home), tapAt: at });
-            const a = await p.next("answer-ack", (m) => m.promptId === prompt.promptId, before, 60_000);
-            ack.push(Date.now() - at);
-            if (a.accepted) answered++;
+            const at = performance.now();
+            p.send({ type: "answer", promptId: prompt.promptId, spot: spotOf(room.config.prompts[index]!.home), tapAt: Date.now() });
+            const a = await p.next("answer-ack", (m) => m.promptId === prompt.promptId, before, WAIT_MS);
+            ack.push(performance.now() - at);
+            if (a.accepted) accepted++;
           }),
         ),
-      ),
-    );
-    answeringMs += Date.now() - t0;
-    await Promise.all(stages.map((s, r) => s.next("reveal", () => true, stageFrom[r], 60_000)));
-  }
-  for (const room of pads) for (const p of room) p.close();
-  for (const s of stages) s.close();
-  const exited = new Promise((r) => server.child.once("exit", r));
-  process.kill(-server.child.pid!, "SIGTERM");
-  await exited;
-  const [{ n }] = (await db.select({ n: count() }).from(answers)) as [{ n: number }];
-  await closeDb(db);
-  return { fanout, ack, answersPerSecond: answered / (answeringMs / 1000), stored: n, expected: roomsN * playersN * promptsN, memPerPlayerKiB };
+      );
+      answeringMs += performance.now() - t0;
+      await Promise.all(joined.map(({ stage }, r) => stage.next("reveal", () => true, from[r]!.stage, WAIT_MS)));
+    },
+    async close() {
+      for (const { stage, pads } of joined) for (const s of [stage, ...pads]) s.close();
+      await stop(server);
+    },
+  };
+
+  /** After close: what the database holds. Player ids are unique across rooms, so (player, prompt) names one expected answer. */
+  const stored = async () => {
+    const [row] = await db
+      .select({ n: count(), distinct: sql<number>`count(distinct ${answers.playerId} || ':' || ${answers.promptIndex})` })
+      .from(answers)
+      .where(inArray(answers.roomId, rooms.map((r) => r.id)));
+    await closeDb(db);
+    rmSync(dir, { recursive: true, force: true });
+    return { stored: row!.n, distinct: row!.distinct, expected: roomsN * playersN * promptsN, accepted, answersPerSecond: accepted / (answeringMs / 1000), memPerPlayerKiB };
+  };
+  return { side, stored };
 }
 
-/** Baseline: a bare ws server relaying a host's message to every socket in its room. */
-async function runBaseline(roomsN: number, playersN: number, promptsN: number) {
-  const port = await freePort();
-  const wss = new WebSocketServer({ port, host: "127.0.0.1" });
-  const members = new Map<string, Set<WebSocket>>();
+/** The least a hub can do: a host's frame goes to its room's players, a player's frame comes back as its "ack". */
+function bareServer(port: number) {
+  const wss = new WebSocketServer({ port, host: LOOPBACK });
+  const players = new Map<string, Set<WebSocket>>();
   wss.on("connection", (ws, req) => {
-    const room = new URL(req.url!, "http://x").searchParams.get("room")!;
-    if (!members.has(room)) members.set(room, new Set());
-    members.get(room)!.add(ws);
-    ws.on("message", (data) => {
-      const text = String(data);
-      for (const peer of members.get(room)!) if (peer !== ws) peer.send(text);
+    const q = new URL(req.url!, `http://${LOOPBACK}`).searchParams;
+    const room = q.get("room")!;
+    const host = q.get("role") === "host";
+    if (!host) {
+      if (!players.has(room)) players.set(room, new Set());
+      players.get(room)!.add(ws);
+    }
+    ws.on("message", (data: Buffer) => {
+      if (host) for (const p of players.get(room) ?? []) p.send(data, { binary: false });
+      else ws.send(data, { binary: false });
     });
   });
-  const open = (room: number) =>
-    new Promise<WebSocket>((resolve) => {
-      const ws = new WebSocket(`ws://127.0.0.1:${port}/?room=${room}`);
-      ws.once("open", () => resolve(ws));
-    });
-  const hosts: WebSocket[] = [];
-  const players: WebSocket[][] = [];
-  for (let r = 0; r < roomsN; r++) {
-    hosts.push(await open(r));
-    players.push(await Promise.all(Array.from({ length: playersN }, () => open(r))));
-  }
-  const fanout: number[] = [];
-  for (let i = 0; i < promptsN; i++) {
-    const sentAt = Date.now();
-    const arrived = players.flat().map(
-      (ws) =>
-        new Promise<void>((resolve) =>
-          ws.once("message", () => {
-            fanout.push(Date.now() - sentAt);
-            resolve();
-          }),
-        ),
-    );
-    for (const h of hosts) h.send(JSON.stringify({ type: "prompt", index: i, written: "E5", showAt: sentAt + 300 }));
-    await Promise.all(arrived);
-  }
-  for (const ws of [...hosts, ...players.flat()]) ws.close();
-  wss.close();
-  return fanout;
+  process.once("SIGTERM", () => process.exit(0));
 }
 
-async function report(roomsN: number, playersN: number, promptsN: number) {
-  const f = await runFretcall(roomsN, playersN, promptsN);
-  const base = await runBaseline(roomsN, playersN, promptsN);
-  const row = {
-    rooms: roomsN,
-    players: roomsN * playersN,
-    fanoutP50: pct(f.fanout, 50),
-    fanoutP99: pct(f.fanout, 99),
-    ackP50: pct(f.ack, 50),
-    ackP99: pct(f.ack, 99),
-    baseP50: pct(base, 50),
-    baseP99: pct(base, 99),
+/** Next frame on a raw socket, parsed as the pads parse theirs. */
+function nextFrame(ws: WebSocket) {
+  return new Promise<unknown>((resolve, reject) => {
+    const timer = setTimeout(() => reject(new Error("baseline: no frame in time")), WAIT_MS);
+    ws.once("message", (data) => {
+      clearTimeout(timer);
+      resolve(JSON.parse(String(data)));
+    });
+  });
+}
+
+async function baseline(roomsN: number, playersN: number, promptsN: number): Promise<Side> {
+  const port = await freePort();
+  const server = spawnNode(["bench/live.ts", "--bare-ws", String(port)], {});
+  await waitListening(`http://${LOOPBACK}:${port}/`, () => true);
+  const open = (room: number, role: "host" | "player") =>
+    new Promise<WebSocket>((resolve, reject) => {
+      const ws = new WebSocket(`ws://${LOOPBACK}:${port}/?room=${room}&role=${role}`);
+      ws.once("open", () => resolve(ws));
+      ws.once("error", reject);
+    });
+  const rooms = await inBatches(
+    Array.from({ length: roomsN }, (_, r) => r),
+    JOIN_ROOMS_AT_ONCE,
+    async (r) => ({ host: await open(r, "host"), players: await Promise.all(Array.from({ length: playersN }, () => open(r, "player"))) }),
+  );
+  // Frames the size of a real prompt and answer.
+  const prompt = (i: number) =>
+    JSON.stringify({ type: "prompt", promptId: `p${i + 1}`, index: i, total: promptsN, mode: "sprint", written: "E5", keyFifths: 0, printedAccidental: null, ledger: false, showAt: Date.now() + 300, deadline: Date.now() + 20_300, answerMs: 20_000, spotsToFind: null });
+  const answer = (i: number) => JSON.stringify({ type: "answer", promptId: `p${i + 1}`, spot: { string: 1, fret: 5 }, tapAt: Date.now() });
+  return {
+    async prompt(i, fanout, ack) {
+      const sentAt = performance.now();
+      const arrived = rooms.flatMap(({ players }) => players.map((ws) => nextFrame(ws).then(() => fanout.push(performance.now() - sentAt))));
+      for (const { host } of rooms) host.send(prompt(i));
+      await Promise.all(arrived);
+      await Promise.all(
+        rooms.flatMap(({ players }) =>
+          players.map(async (ws) => {
+            const at = performance.now();
+            const echoed = nextFrame(ws);
+            ws.send(answer(i));
+            await echoed;
+            ack.push(performance.now() - at);
+          }),
+        ),
+      );
+    },
+    async close() {
+      for (const { host, players } of rooms) for (const ws of [host, ...players]) ws.close();
+      await stop(server);
+    },
   };
-  console.log(`\n${roomsN} rooms × ${playersN} players (${row.players} sockets), ${promptsN} prompts`);
-  console.log(`  prompt fan-out   p50 ${fmt(row.fanoutP50)}   p99 ${fmt(row.fanoutP99)}   (host action → every pad, incl. the SQLite write)`);
-  console.log(`  answer ack       p50 ${fmt(row.ackP50)}   p99 ${fmt(row.ackP99)}   (incl. the SQLite write)`);
-  console.log(`  baseline fan-out p50 ${fmt(row.baseP50)}   p99 ${fmt(row.baseP99)}   (bare ws broadcast, same sockets)`);
-  console.log(`  ratio p99 fan-out ${(row.fanoutP99 / row.baseP99).toFixed(2)}×, ack ${(row.ackP99 / row.baseP99).toFixed(2)}× of baseline`);
-  console.log(`  answers stored   ${f.stored} of ${f.expected} expected (${f.stored === f.expected ? "none lost or duplicated" : "MISMATCH"}); ${f.answersPerSecond.toFixed(0)} answers/s while answering`);
-  console.log(`  server memory    ${f.memPerPlayerKiB.toFixed(1)} KiB per connected player`);
+}
+
+// ---- report --------------------------------------------------------------------------------
+
+/** Both sides are set up first, then play their prompts in turn, so both see the same machine. */
+async function report(roomsN: number, playersN: number, promptsN: number) {
+  const f = await fretcall(roomsN, playersN, promptsN);
+  const base = await baseline(roomsN, playersN, promptsN);
+  const fc = { fanout: [] as number[], ack: [] as number[] };
+  const bare = { fanout: [] as number[], ack: [] as number[] };
+  for (let i = 0; i < promptsN; i++) {
+    await f.side.prompt(i, fc.fanout, fc.ack);
+    await base.prompt(i, bare.fanout, bare.ack);
+  }
+  await f.side.close();
+  await base.close();
+  const db = await f.stored();
+  const row = {
+    players: roomsN * playersN,
+    fanoutP50: pct(fc.fanout, 50),
+    fanoutP99: pct(fc.fanout, 99),
+    ackP50: pct(fc.ack, 50),
+    ackP99: pct(fc.ack, 99),
+    baseFanoutP50: pct(bare.fanout, 50),
+    baseFanoutP99: pct(bare.fanout, 99),
+    baseAckP50: pct(bare.ack, 50),
+    baseAckP99: pct(bare.ack, 99),
+  };
+  const load = readFileSync("/proc/loadavg", "utf8").split(" ").slice(0, 3).join(" ");
+  console.log(`\n${roomsN} rooms × ${playersN} players (${row.players} pads), ${promptsN} prompts; load generator on the same cores (load average ${load})`);
+  console.log(`  prompt fan-out    p50 ${fmt(row.fanoutP50)}   p99 ${fmt(row.fanoutP99)}   (host action → every pad, incl. the SQLite write)`);
+  console.log(`  answer ack        p50 ${fmt(row.ackP50)}   p99 ${fmt(row.ackP99)}   (every pad answers at once; incl. the SQLite write)`);
+  console.log(`  baseline fan-out  p50 ${fmt(row.baseFanoutP50)}   p99 ${fmt(row.baseFanoutP99)}   (bare ws broadcast, same sockets)`);
+  console.log(`  baseline echo     p50 ${fmt(row.baseAckP50)}   p99 ${fmt(row.baseAckP99)}   (bare ws echo, same burst)`);
+  console.log(`  p99 ratio         fan-out ${(row.fanoutP99 / row.baseFanoutP99).toFixed(2)}×, ack ${(row.ackP99 / row.baseAckP99).toFixed(2)}× of baseline`);
+  console.log(
+    `  answers           ${db.accepted} acknowledged, ${db.stored} stored of ${db.expected} (lost ${db.expected - db.distinct}, duplicated ${db.stored - db.distinct}); ${db.answersPerSecond.toFixed(0)} answers/s stored while answering`,
+  );
+  console.log(`  server memory     ${db.memPerPlayerKiB.toFixed(1)} KiB RSS per connected player`);
   return row;
 }
 
 const args = process.argv.slice(2);
-if (args.includes("--scale")) {
-  for (const players of [40, 60, 80, 100, 140]) {
-    const row = await report(50, players, 3);
-    if (row.fanoutP99 > 100 || row.ackP99 > 100) {
-      console.log(`\np99 passed 100 ms at ${row.players} players`);
-      break;
+if (args[0] === "--bare-ws") bareServer(Number(args[1]));
+else {
+  const scale = args.includes("--scale");
+  // Bounded however the server behaves: children are killed and the run ends.
+  const watchdog = setTimeout(
+    () => {
+      console.error("bench: time limit reached, stopping");
+      for (const c of children) killGroup(c, "SIGKILL");
+      process.exit(2);
+    },
+    (scale ? 40 : 8) * 60_000,
+  );
+  try {
+    if (scale) {
+      let last: number | null = null;
+      for (const roomsN of [10, 25, 50, 100, 150, 200, 300]) {
+        const row = await report(roomsN, 40, 3);
+        if (row.fanoutP99 > 100 || row.ackP99 > 100) {
+          console.log(`\np99 passed 100 ms at ${row.players} pads${last === null ? "" : `; last size under it: ${last} pads`}`);
+          break;
+        }
+        last = row.players;
+      }
+    } else {
+      const [roomsN = 50, playersN = 40, promptsN = 5] = args.map(Number);
+      await report(roomsN, playersN, promptsN);
     }
+  } finally {
+    for (const c of children) killGroup(c, "SIGKILL");
+    clearTimeout(watchdog);
   }
-} else {
-  const [roomsN = 50, playersN = 40, promptsN = 5] = args.map(Number);
-  await report(roomsN, playersN, promptsN);
 }

@@ -4,7 +4,8 @@
  * transaction per batch — and only then carries out the sends, so nothing a phone was told is
  * ever lost. A room not in memory (after a restart) is rebuilt by replaying its log.
  */
-import { eq, sql } from "drizzle-orm";
+import type { InStatement, InValue } from "@libsql/client";
+import { eq, getTableColumns, getTableName, inArray, sql, type InferInsertModel, type Table } from "drizzle-orm";
 import { nanoid } from "nanoid";
 import type { IncomingMessage } from "node:http";
 import type { WebSocket, WebSocketServer } from "ws";
@@ -23,10 +24,12 @@ import {
   type RateBucket,
   type ServerMessage,
 } from "~/game/protocol";
+import { cleanNickname } from "~/game/nickname";
 import { initialState, playerBySeat, reduce, snapshot, type Audience, type Effect, type RoomEvent, type RoomState } from "~/game/room";
 import type { RoomConfig } from "~/game/roomConfig";
 import { loadRoomState } from "~/rooms/log.server";
 import { hostKeyMatches, openRoomByCode } from "~/rooms/rooms.server";
+import { stepRows, type StepRows } from "~/rooms/stepRows";
 
 interface Conn {
   ws: WebSocket;
@@ -37,21 +40,64 @@ interface Conn {
   room: LiveRoom | null;
   role: "host" | "player" | null;
   playerId: string | null;
+  /** Set once the socket's welcome is on its way: room messages before that would arrive ahead of it. */
+  listening: boolean;
+  /** One socket's messages are handled one at a time, in the order they came. */
+  queue: Promise<void>;
 }
 
-type Write = Parameters<Db["batch"]>[0][number];
+/** RFC 6455 §7.4.1: the server hit a condition it cannot go on from; clients reconnect. */
+const CLOSE_SERVER_ERROR = 1011;
 
-/** Collects the writes of every room that arrive in one turn of the event loop into one transaction. */
+/** What one reducer step adds to SQLite: its event records and the rows beside them. */
+interface StepWrites extends StepRows {
+  events: (typeof roomEvents.$inferInsert)[];
+  roomId: string;
+}
+
+/** Rows per multi-row INSERT: well under SQLite's 32 766 bound parameters for the widest table (13 columns). */
+const ROWS_PER_INSERT = 500;
+
+function chunks<T>(rows: T[]): T[][] {
+  const out: T[][] = [];
+  for (let i = 0; i < rows.length; i += ROWS_PER_INSERT) out.push(rows.slice(i, i + ROWS_PER_INSERT));
+  return out;
+}
+
+/**
+ * One multi-row INSERT built straight from the table's columns: for thousands of rows, drizzle's
+ * query builder cost more CPU than SQLite itself (profiled under bench/live.ts).
+ */
+function insertRows<T extends Table>(table: T, rows: InferInsertModel<T>[]): InStatement {
+  const columns = Object.entries(getTableColumns(table)).filter(([key]) => key in rows[0]!);
+  const tuple = `(${columns.map(() => "?").join(", ")})`;
+  return {
+    sql: `INSERT INTO "${getTableName(table)}" (${columns.map(([, c]) => `"${c.name}"`).join(", ")}) VALUES ${rows.map(() => tuple).join(", ")}`,
+    args: rows.flatMap((row) =>
+      columns.map(([key, c]) => {
+        const value = (row as Record<string, unknown>)[key];
+        return (value === null || value === undefined ? null : c.mapToDriverValue(value)) as InValue;
+      }),
+    ),
+  };
+}
+
+/**
+ * Collects the writes of every room that arrive in one turn of the event loop into one
+ * transaction, as a few multi-row INSERTs: one statement per table, not one per row, is what
+ * keeps a class-wide burst of answers cheap.
+ */
 class BatchWriter {
-  private pending: { writes: Write[]; done: (error?: unknown) => void }[] = [];
+  private pending: { writes: StepWrites; room: LiveRoom; done: (error: unknown) => void }[] = [];
   private scheduled = false;
   private flushing: Promise<void> = Promise.resolve();
 
   constructor(private readonly db: Db) {}
 
-  write(writes: Write[]): Promise<void> {
-    return new Promise((resolve, reject) => {
-      this.pending.push({ writes, done: (error) => (error ? reject(error) : resolve()) });
+  /** Resolves with null once committed, or with the error (never rejects: the room handles it in order). */
+  write(writes: StepWrites, room: LiveRoom): Promise<unknown> {
+    return new Promise((resolve) => {
+      this.pending.push({ writes, room, done: resolve });
       if (!this.scheduled) {
         this.scheduled = true;
         setImmediate(() => {
@@ -65,13 +111,28 @@ class BatchWriter {
   private async flush() {
     const jobs = this.pending;
     this.pending = [];
-    if (jobs.length === 0) return;
-    const all = jobs.flatMap((j) => j.writes) as [Write, ...Write[]];
+    // Later decisions of a room whose write failed were built on what was lost: never commit them.
+    const ok = jobs.filter((j) => !j.room.broken);
+    for (const j of jobs) if (j.room.broken) j.done(new Error("an earlier write of this room failed"));
+    if (ok.length === 0) return;
+    const ended = ok.filter((j) => j.writes.ended).map((j) => j.writes.roomId);
+    // Seats before answers: an answer's row refers to its seat's.
+    const ending = ended.length > 0 ? this.db.update(rooms).set({ endedAt: new Date() }).where(inArray(rooms.id, ended)).toSQL() : null;
+    const statements: InStatement[] = [
+      ...chunks(ok.flatMap((j) => j.writes.events)).map((rows) => insertRows(roomEvents, rows)),
+      ...chunks(ok.flatMap((j) => j.writes.players)).map((rows) => insertRows(roomPlayers, rows)),
+      ...chunks(ok.flatMap((j) => j.writes.answers)).map((rows) => insertRows(answers, rows)),
+      ...(ending ? [{ sql: ending.sql, args: ending.params as InValue[] }] : []),
+    ];
     try {
-      await this.db.batch(all);
-      for (const j of jobs) j.done();
+      // One transaction ("write" = BEGIN IMMEDIATE … COMMIT).
+      await this.db.$client.batch(statements, "write");
+      for (const j of ok) j.done(null);
     } catch (error) {
-      for (const j of jobs) j.done(error);
+      for (const j of ok) {
+        j.room.broken = true;
+        j.done(error);
+      }
     }
   }
 
@@ -85,6 +146,9 @@ class BatchWriter {
 class LiveRoom {
   readonly stage = new Set<Conn>();
   readonly pads = new Map<string, Conn>();
+  /** A write failed: this copy of the room is no longer what the database holds. */
+  broken = false;
+  private dropped = false;
   private timer: NodeJS.Timeout | null = null;
   /** Deliveries wait for their own write and for every earlier delivery, so order is kept. */
   private tail: Promise<void> = Promise.resolve();
@@ -97,83 +161,63 @@ class LiveRoom {
     private seq: number,
   ) {}
 
-  dispatch(event: RoomEvent, extra: { userId?: string | null } = {}) {
-    // Once the hub is closing, sockets going away are not news to record.
-    if (this.hub.closing) return;
-    const now = Date.now();
+  /** `now` is only given for a restart, which happens when the room last recorded something. */
+  dispatch(event: RoomEvent, extra: { userId?: string | null; now?: number } = {}) {
+    // Once the hub is closing, sockets going away are not news to record; a broken copy records nothing more.
+    if (this.hub.closing || this.broken) return;
+    const now = extra.now ?? Date.now();
     const before = this.state;
     const leadMs = leadFor([...this.pads.values()].map((c) => c.estimate));
     const step = reduce(before, event, { now, leadMs });
     this.state = step.state;
     const writes = this.writesFor(before, step.state, step.effects, extra.userId ?? null);
-    const written = writes.length > 0 ? this.hub.writer.write(writes) : Promise.resolve();
+    const written = writes ? this.hub.writer.write(writes, this) : Promise.resolve(null);
     const effects = step.effects.filter((e) => e.kind !== "persist");
-    this.tail = this.tail
-      .then(() => written)
-      .then(
-        () => this.deliver(effects),
-        (error: unknown) => this.recover(error),
-      );
+    const ended = writes?.ended === true;
+    this.inOrder(async () => {
+      const error = await written;
+      if (error) return this.fail(error);
+      this.deliver(effects);
+      if (ended) this.hub.forget(this);
+    });
     this.schedule(step.wakeAt);
   }
 
-  private writesFor(before: RoomState, after: RoomState, effects: Effect[], userId: string | null): Write[] {
-    const { db } = this.hub;
-    const writes: Write[] = [];
+  /** Runs `step` after every earlier delivery, so nothing overtakes an event that is still being written. */
+  inOrder(step: () => void | Promise<void>) {
+    this.tail = this.tail.then(step).catch((error: unknown) => console.error(`room ${this.code}: delivery failed`, error));
+  }
+
+  private writesFor(before: RoomState, after: RoomState, effects: Effect[], userId: string | null): StepWrites | null {
+    const events: StepWrites["events"] = [];
     for (const effect of effects) {
       if (effect.kind !== "persist") continue;
       this.seq += 1;
-      writes.push(db.insert(roomEvents).values({ roomId: this.id, seq: this.seq, at: effect.record.env.now, event: effect.record }));
+      events.push({ roomId: this.id, seq: this.seq, at: effect.record.env.now, event: effect.record });
     }
-    for (const p of after.players.slice(before.players.length)) {
-      writes.push(db.insert(roomPlayers).values({ id: p.id, roomId: this.id, nickname: p.nickname, userId }));
-    }
-    const prompts = after.config.prompts;
-    for (const a of after.answers.slice(before.answers.length)) {
-      const note = prompts[a.index]!;
-      writes.push(
-        db.insert(answers).values({
-          roomId: this.id,
-          playerId: a.playerId,
-          promptIndex: a.index,
-          written: note.written,
-          writtenMidi: note.writtenMidi,
-          string: a.spot.string,
-          fret: a.spot.fret,
-          kind: a.diagnosis.kind,
-          pitchRight: a.diagnosis.pitchRight,
-          points: a.points,
-          reactionMs: Math.round(a.reactionMs),
-          streak: a.streak,
-          at: a.at,
-        }),
-      );
-    }
-    if (after.phase === "ended" && before.phase !== "ended") {
-      writes.push(db.update(rooms).set({ endedAt: new Date() }).where(eq(rooms.id, this.id)));
-    }
-    return writes;
+    return events.length > 0 ? { roomId: this.id, events, ...stepRows(this.id, before, after, userId) } : null;
   }
 
   private deliver(effects: Effect[]) {
-    // Serialise each message once, however many sockets get it.
-    const cache = new Map<ServerMessage, string>();
+    // Serialise and encode each message once, however many sockets get it.
+    const cache = new Map<ServerMessage, Buffer>();
     const text = (m: ServerMessage) => {
       let t = cache.get(m);
-      if (t === undefined) cache.set(m, (t = JSON.stringify(m)));
+      if (t === undefined) cache.set(m, (t = Buffer.from(JSON.stringify(m))));
       return t;
     };
     for (const effect of effects) {
       if (effect.kind === "persist") continue;
       for (const conn of this.audience(effect.to)) {
+        if (!conn.listening) continue;
         if (effect.kind === "send") send(conn, text(effect.message));
         else if (effect.kind === "close") {
-          conn.ws.close(effect.code, "removed by the teacher");
+          conn.ws.close(effect.code, effect.code === CLOSE_CODES.removed ? "removed by the teacher" : "the room has ended");
           if (conn.playerId) this.pads.delete(conn.playerId);
+          conn.playerId = null;
         }
       }
     }
-    if (this.state.phase === "ended") this.hub.forget(this);
   }
 
   private audience(a: Audience): Conn[] {
@@ -189,17 +233,16 @@ class LiveRoom {
     }
   }
 
-  /** A failed write: what the reducer decided was not kept, so rebuild from the log and resync everyone. */
-  private async recover(error: unknown) {
-    console.error(`room ${this.code}: write failed, rebuilding from the database`, error);
-    const loaded = await loadRoomState(this.hub.db, this.id);
-    if (!loaded) return;
-    this.state = loaded.state;
-    this.seq = loaded.seq;
-    const now = Date.now();
-    for (const c of this.stage) for (const m of snapshot(this.state, { role: "host" }, now)) send(c, JSON.stringify(m));
-    for (const [playerId, c] of this.pads) for (const m of snapshot(this.state, { role: "player", playerId }, now)) send(c, JSON.stringify(m));
-    for (const c of this.stage) send(c, JSON.stringify(errorMessage(ERROR_CODES.badMessage, "The last action could not be saved; please do it again.")));
+  /**
+   * A failed write: what the reducer decided was not kept. Drop this copy; its sockets reconnect
+   * and the next hello rebuilds the room from the log (paused, as after a restart).
+   */
+  private fail(error: unknown) {
+    if (this.dropped) return;
+    this.dropped = true;
+    console.error(`room ${this.code}: write failed, dropping the room until it is rebuilt from the database`, error);
+    this.hub.forget(this);
+    for (const c of this.audience({ to: "everyone" })) c.ws.close(CLOSE_SERVER_ERROR, "could not save; reconnect");
   }
 
   private schedule(wakeAt: number | null) {
@@ -219,8 +262,9 @@ class LiveRoom {
 
 const errorMessage = (code: ErrorCode, message: string): ServerMessage => ({ type: "error", code, message });
 
-function send(conn: Conn, text: string) {
-  if (conn.ws.readyState === conn.ws.OPEN) conn.ws.send(text);
+/** A text frame; a Buffer is sent as it is (already UTF-8). */
+function send(conn: Conn, text: string | Buffer) {
+  if (conn.ws.readyState === conn.ws.OPEN) conn.ws.send(text, { binary: false });
 }
 
 export class Hub {
@@ -238,15 +282,34 @@ export class Hub {
 
   attach(wss: WebSocketServer) {
     wss.on("connection", (ws: WebSocket, req: IncomingMessage) => {
-      const conn: Conn = { ws, bucket: newRateBucket(Date.now()), clock: emptyClock(), estimate: null, userId: null, room: null, role: null, playerId: null };
-      // Messages wait for the session look-up, so a signed-in student's join is linked to the account.
-      const ready = this.userIdOf(req).then((id) => void (conn.userId = id));
+      const conn: Conn = {
+        ws,
+        bucket: newRateBucket(Date.now()),
+        clock: emptyClock(),
+        estimate: null,
+        userId: null,
+        room: null,
+        role: null,
+        playerId: null,
+        listening: false,
+        // Messages wait for the session look-up, so a signed-in student's join is linked to the account.
+        queue: this.userIdOf(req).then((id) => void (conn.userId = id)),
+      };
       ws.on("message", (data: Buffer, isBinary: boolean) => {
+        // A socket being closed (rate limit, replaced, removed) has nothing more to say.
+        if (ws.readyState !== ws.OPEN) return;
         const receivedAt = Date.now();
-        ready.then(() => this.onMessage(conn, isBinary ? data : data.toString("utf8"), receivedAt)).catch((error: unknown) => {
-          console.error("hub: message failed", error);
-          send(conn, JSON.stringify(errorMessage(ERROR_CODES.badMessage, "The server could not handle that message.")));
-        });
+        // Counted on arrival, so a flood is refused without queueing behind slower messages.
+        const taken = takeToken(conn.bucket, receivedAt);
+        conn.bucket = taken.bucket;
+        if (taken.verdict === "close") return ws.close(CLOSE_CODES.rateLimited, "too many messages");
+        if (taken.verdict === "refuse") return send(conn, JSON.stringify(errorMessage(ERROR_CODES.rateLimited, "Slow down: too many messages.")));
+        conn.queue = conn.queue
+          .then(() => this.onMessage(conn, isBinary ? data : data.toString("utf8"), receivedAt))
+          .catch((error: unknown) => {
+            console.error("hub: message failed", error);
+            send(conn, JSON.stringify(errorMessage(ERROR_CODES.badMessage, "The server could not handle that message.")));
+          });
       });
       ws.on("close", () => this.leave(conn));
       ws.on("error", () => ws.terminate());
@@ -263,10 +326,6 @@ export class Hub {
   }
 
   private async onMessage(conn: Conn, raw: string | Buffer, receivedAt: number) {
-    const taken = takeToken(conn.bucket, receivedAt);
-    conn.bucket = taken.bucket;
-    if (taken.verdict === "close") return conn.ws.close(CLOSE_CODES.rateLimited, "too many messages");
-    if (taken.verdict === "refuse") return send(conn, JSON.stringify(errorMessage(ERROR_CODES.rateLimited, "Slow down: too many messages.")));
     const parsed = parseClientMessage(typeof raw === "string" ? raw : new Uint8Array(raw));
     if (!parsed.ok) {
       send(conn, JSON.stringify(errorMessage(parsed.error.code, parsed.error.message)));
@@ -305,28 +364,28 @@ export class Hub {
       send(conn, JSON.stringify(errorMessage(ERROR_CODES.roomNotFound, "No open room has that code. Check the code on the class screen.")));
       return conn.ws.close(CLOSE_CODES.roomGone, "no such room");
     }
-    const now = Date.now();
-    if (m.role === "host") {
-      if (!hostKeyMatches(this.secret, room.id, m.hostKey)) {
-        send(conn, JSON.stringify(errorMessage(ERROR_CODES.unauthorised, "That stage key is not valid for this room.")));
-        return conn.ws.close(CLOSE_CODES.unauthorised, "bad host key");
-      }
-      this.leave(conn);
-      conn.room = room;
-      conn.role = "host";
-      room.stage.add(conn);
-      for (const msg of snapshot(room.state, { role: "host" }, now)) send(conn, JSON.stringify(msg));
-      return;
+    if (m.role === "host" && !hostKeyMatches(this.secret, room.id, m.hostKey)) {
+      send(conn, JSON.stringify(errorMessage(ERROR_CODES.unauthorised, "That stage key is not valid for this room.")));
+      return conn.ws.close(CLOSE_CODES.unauthorised, "bad host key");
     }
-    const seated = m.seat ? playerBySeat(room.state, m.seat) : undefined;
-    if (m.seat && !seated) {
+    const seated = m.role === "player" && m.seat ? playerBySeat(room.state, m.seat) : undefined;
+    if (m.role === "player" && m.seat && !seated) {
       send(conn, JSON.stringify(errorMessage(ERROR_CODES.unknownPlayer, "That seat is no longer in this room. Join again.")));
     }
     this.leave(conn);
     conn.room = room;
-    conn.role = "player";
+    conn.role = m.role;
     if (seated) return this.takeSeat(conn, room, seated.id);
-    for (const msg of snapshot(room.state, { role: "player", playerId: null }, now)) send(conn, JSON.stringify(msg));
+    if (m.role === "host") room.stage.add(conn);
+    // The room as it is once every event before this hello is written and delivered.
+    const state = room.state;
+    const who = m.role === "host" ? ({ role: "host" } as const) : ({ role: "player", playerId: null } as const);
+    room.inOrder(() => {
+      if (conn.room !== room) return;
+      conn.listening = m.role === "host";
+      for (const msg of snapshot(state, who, Date.now())) send(conn, JSON.stringify(msg));
+      if (state.phase === "ended") conn.ws.close(CLOSE_CODES.roomGone, "the room has ended");
+    });
   }
 
   private takeSeat(conn: Conn, room: LiveRoom, playerId: string) {
@@ -335,31 +394,38 @@ export class Hub {
       previous.playerId = null;
       previous.ws.close(CLOSE_CODES.replaced, "seat taken by another connection");
     }
-    conn.playerId = playerId;
-    room.pads.set(playerId, conn);
+    this.seat(conn, room, playerId);
     room.dispatch({ type: "online", playerId });
   }
 
+  /** The socket holds the seat at once; room messages reach it from the event that welcomes it on. */
+  private seat(conn: Conn, room: LiveRoom, playerId: string) {
+    conn.playerId = playerId;
+    room.pads.set(playerId, conn);
+    room.inOrder(() => void (conn.listening = conn.room === room));
+  }
+
   private async join(conn: Conn, code: string, typed: string) {
-    const room = conn.room?.code === code ? conn.room : await this.room(code);
+    const room = await this.room(code);
     if (!room) return send(conn, JSON.stringify(errorMessage(ERROR_CODES.roomNotFound, "No open room has that code. Check the code on the class screen.")));
     if (conn.playerId && room.pads.get(conn.playerId) === conn) {
       return send(conn, JSON.stringify(errorMessage(ERROR_CODES.badMessage, "This phone has already joined the room.")));
     }
-    // A signed-in student plays under their own name, linked to their account.
+    // A signed-in student plays under their own name, linked to their account; a name that is
+    // not a valid nickname (too long, odd characters) must not lock them out, so the typed one is used then.
     const account = conn.userId ? await this.studentName(conn.userId) : undefined;
     this.leave(conn);
     const playerId = nanoid(12);
     conn.room = room;
     conn.role = "player";
-    conn.playerId = playerId;
-    room.pads.set(playerId, conn);
-    room.dispatch({ type: "join", playerId, seat: nanoid(32), nickname: account ?? typed }, { userId: account ? conn.userId : null });
-    // A refused join leaves no seat behind.
+    this.seat(conn, room, playerId);
+    const nickname = account !== undefined && cleanNickname(account).ok ? account : typed;
+    room.dispatch({ type: "join", playerId, seat: nanoid(32), nickname }, { userId: account !== undefined ? conn.userId : null });
+    // A refused join leaves no seat behind (the pad still gets the refusal, delivered in order).
     if (!room.state.players.some((p) => p.id === playerId)) {
-      void room.settled().then(() => {
+      conn.playerId = null;
+      room.inOrder(() => {
         if (room.pads.get(playerId) === conn) room.pads.delete(playerId);
-        conn.playerId = null;
       });
     }
   }
@@ -381,7 +447,7 @@ export class Hub {
   private leave(conn: Conn) {
     const room = conn.room;
     if (!room) return;
-    if (conn.role === "host") room.stage.delete(conn);
+    room.stage.delete(conn);
     if (conn.playerId && room.pads.get(conn.playerId) === conn) {
       room.pads.delete(conn.playerId);
       if (room.state.players.some((p) => p.id === conn.playerId && !p.removed)) room.dispatch({ type: "offline", playerId: conn.playerId });
@@ -389,6 +455,7 @@ export class Hub {
     conn.room = null;
     conn.role = null;
     conn.playerId = null;
+    conn.listening = false;
   }
 
   /** The live room for a code: from memory, or rebuilt from SQLite (then told the server restarted). */
@@ -397,9 +464,9 @@ export class Hub {
     if (!found) {
       found = this.loadRoom(code);
       this.live.set(code, found);
-      void found.then((r) => {
-        if (!r) this.live.delete(code);
-      });
+      // A code that is not open now (or failed to load) is looked up afresh next time.
+      const drop = () => void (this.live.get(code) === found && this.live.delete(code));
+      found.then((r) => r ?? drop(), drop);
     }
     return found;
   }
@@ -410,13 +477,17 @@ export class Hub {
     const loaded = await loadRoomState(this.db, row.id);
     const state = loaded?.state ?? initialState(row.config as RoomConfig);
     const room = new LiveRoom(this, row.id, row.code, state, loaded?.seq ?? 0);
-    if ((loaded?.seq ?? 0) > 0) room.dispatch({ type: "restart" });
+    // The room stopped with the server, so it pauses as of its last record: time the server was
+    // down is not taken from the prompt in progress (nor does the prompt close for it).
+    if (loaded?.lastAt != null) room.dispatch({ type: "restart" }, { now: loaded.lastAt });
     return room;
   }
 
   forget(room: LiveRoom) {
     room.stop();
-    this.live.delete(room.code);
+    const entry = this.live.get(room.code);
+    // Only if no newer copy of the room has been loaded since.
+    void entry?.then((r) => r === room && this.live.get(room.code) === entry && this.live.delete(room.code));
   }
 
   /** Stops timers and waits until every accepted event is in the database. */

@@ -9,6 +9,7 @@ import { pathToFileURL } from "node:url";
 import { closeDb, migrateDb, openDb } from "~/db/client.server";
 import { loadEnv, type Env } from "~/env.server";
 import { createMailer } from "~/mail/mailer.server";
+import { startMailSchedule } from "~/practice/mail.server";
 import { createServices, type Services } from "~/services.server";
 import type { createAppHandler } from "./app";
 import { startMailCatcher } from "./mail-catcher";
@@ -43,6 +44,8 @@ export async function startServer(overrides: Record<string, string | undefined> 
   const catcher = env.mailCapture ? await startMailCatcher(env.MAIL_DIR) : undefined;
   const mailer = createMailer(catcher?.url ?? env.SMTP_URL!, env.MAIL_FROM);
   const services = createServices(env, db, mailer);
+  // Assignment notices, reminders and weekly digests (app/practice/mail.server.ts).
+  const practiceMail = startMailSchedule(db, mailer, env.PUBLIC_URL);
   const hub = new Hub(db, env.SESSION_SECRET, services.sessions);
 
   const app = express();
@@ -129,6 +132,7 @@ export async function startServer(overrides: Record<string, string | undefined> 
       server.closeAllConnections();
       await stopped;
       await closeVite();
+      await practiceMail.stop();
       services.mailer.close();
       await catcher?.close();
       await closeDb(db);

@@ -2,6 +2,10 @@ import { eq } from "drizzle-orm";
 import { hashPassword } from "~/auth/password.server";
 import { closeDb, migrateDb, openDb, type Db } from "~/db/client.server";
 import { classes, memberships, organisations, users } from "~/db/schema";
+import { seedDemoAssignments } from "~/demo/assignments";
+import { seedHistory } from "~/demo/history";
+import { seedDemoPractice } from "~/demo/practice";
+import { seedReading } from "~/demo/reading";
 import { DEMO_PASSWORD, DEMO_SCHOOL as S } from "~/demo/school";
 import { loadEnv } from "~/env.server";
 
@@ -35,6 +39,10 @@ export async function seedDemo(db: Db) {
       ...students.map((s) => ({ classId: s.classId, userId: s.id, role: "student" as const })),
     ]),
   ]);
+  await seedReading(db);
+  await seedHistory(db);
+  await seedDemoAssignments(db);
+  await seedDemoPractice(db);
 }
 
 export function demoSignIns() {

@@ -1,16 +1,15 @@
 import { and, eq, isNull } from "drizzle-orm";
 import { nanoid } from "nanoid";
-import { createHash, randomBytes } from "node:crypto";
 import type { Db } from "~/db/client.server";
 import { apiTokens } from "~/db/schema";
+import { hashToken as hash, newToken } from "./secret-token.server";
 
 // The prefix makes a leaked token easy to recognise in logs and secret scanners.
 const PREFIX = "fcl_";
-const hash = (token: string) => createHash("sha256").update(token).digest("hex");
 
 /** Creates a token; the plain value is returned once and never stored. */
 export async function createApiToken(db: Db, userId: string, name: string) {
-  const token = `${PREFIX}${randomBytes(24).toString("base64url")}`;
+  const token = `${PREFIX}${newToken(24)}`;
   const id = nanoid();
   await db.insert(apiTokens).values({ id, userId, name, tokenHash: hash(token) });
   return { id, token };

@@ -1,9 +1,9 @@
 import { and, eq, gt, isNull } from "drizzle-orm";
 import { nanoid } from "nanoid";
-import { createHash, randomBytes } from "node:crypto";
 import type { Db } from "~/db/client.server";
 import { organisations, passwordResets, users, type Role } from "~/db/schema";
 import { hashPassword, verifyPassword } from "./password.server";
+import { hashToken, newToken } from "./secret-token.server";
 
 export interface SessionUser {
   id: string;
@@ -67,7 +67,6 @@ export async function checkCredentials(db: Db, email: string, password: string) 
 }
 
 const RESET_TTL_MS = 60 * 60 * 1000;
-const hashToken = (token: string) => createHash("sha256").update(token).digest("hex");
 
 /** Creates a one-time reset token for an account with an e-mail; the caller mails it. */
 export async function createPasswordReset(db: Db, email: string, now = Date.now()) {
@@ -76,7 +75,7 @@ export async function createPasswordReset(db: Db, email: string, now = Date.now(
     .from(users)
     .where(eq(users.email, normaliseEmail(email)));
   if (!user) return undefined;
-  const token = randomBytes(32).toString("base64url");
+  const token = newToken();
   await db.insert(passwordResets).values({
     tokenHash: hashToken(token),
     userId: user.id,

@@ -1,4 +1,4 @@
-import { Form, Link, NavLink } from "react-router";
+import { Form, Link, NavLink, useMatches } from "react-router";
 import type { Role } from "~/db/schema";
 
 interface ShellUser {
@@ -15,6 +15,7 @@ const navFor: Record<Role, { to: string; label: string }[]> = {
   teacher: [
     { to: "/teach", label: "Teach" },
     { to: "/host", label: "Host a round" },
+    { to: "/teach/sets", label: "Reading sets" },
     { to: "/explore", label: "Neck explorer" },
   ],
   student: [
@@ -29,6 +30,10 @@ export function BrandMark({ className = "h-8 w-8" }: { className?: string }) {
   return <img src="/favicon.svg" alt="" aria-hidden="true" className={className} />;
 }
 
+/** Routes that export `handle = IMMERSIVE` (the stage, the pad) get the whole screen: a slim bar, no menu. */
+export const IMMERSIVE = { immersive: true } as const;
+const isImmersive = (handle: unknown) => (handle as Partial<typeof IMMERSIVE> | undefined)?.immersive === true;
+
 export function AppShell({
   user,
   showOutbox,
@@ -38,6 +43,21 @@ export function AppShell({
   showOutbox: boolean;
   children: React.ReactNode;
 }) {
+  const immersive = useMatches().some((m) => isImmersive(m.handle));
+  if (immersive) {
+    return (
+      <div className="flex min-h-dvh flex-col">
+        {/* A phone on its side needs the height for the neck more than for the brand. */}
+        <header className="no-print border-b-4 border-brass bg-rosewood px-3 py-1 text-paper [@media(max-height:500px)]:hidden">
+          <Link to="/" className="inline-flex items-center gap-2 font-display text-lg font-semibold tracking-wide">
+            <BrandMark className="h-6 w-6" />
+            Fretcall
+          </Link>
+        </header>
+        <main className="w-full flex-1 px-3 py-3 sm:px-5">{children}</main>
+      </div>
+    );
+  }
   const links = user
     ? navFor[user.role]
     : [

@@ -39,8 +39,10 @@ const KINDS: Record<SpotKind, { fill: string; icon: Icon; words: string }> = {
 export interface FretboardProps {
   tuning: Tuning;
   frets: number;
-  /** Zooms to this position's four frets (with a margin); the rest of the neck scrolls. */
+  /** Marks this position's four frets and zooms to them (with a margin); the rest of the neck scrolls. */
   position?: number;
+  /** Fits the whole neck instead of zooming, the position still marked: a wide screen showing every spot of a pitch. */
+  wholeNeck?: boolean;
   leftHanded?: boolean;
   highlights?: Highlight[];
   heat?: HeatSpot[];
@@ -63,6 +65,7 @@ export function Fretboard({
   tuning,
   frets,
   position,
+  wholeNeck = false,
   leftHanded = false,
   highlights = [],
   heat = [],
@@ -81,7 +84,15 @@ export function Fretboard({
   const [viewportWidth, setViewportWidth] = useState(360);
   const strings = tuning.strings.length;
   const zoom = position === undefined ? undefined : { first: position, last: Math.min(frets, position + 3) };
-  const layout = fretboardLayout({ strings, frets, size, leftHanded, viewportWidth, window: zoom, fretLabels });
+  const layout = fretboardLayout({
+    strings,
+    frets,
+    size,
+    leftHanded,
+    viewportWidth,
+    window: wholeNeck ? undefined : zoom,
+    fretLabels,
+  });
   const metrics = SIZE_METRICS[size];
 
   useEffect(() => {
@@ -160,11 +171,14 @@ export function Fretboard({
             viewBox={`0 0 ${layout.width} ${layout.height}`}
             role={interactive ? "group" : "img"}
             aria-label={interactive ? `${name}${disabled ? ", locked" : ""}` : summary}
-            className={`block select-none ${disabled ? "opacity-60" : ""}`}
+            className="block select-none"
             style={{ fontSize: metrics.font }}
           >
-            <Board layout={layout} zoom={zoom} strings={strings} />
-            {fretLabels ? <FretLabels layout={layout} frets={frets} zoom={zoom} /> : null}
+            {/* A locked board dims, but the marks on it (the answer, your tap) stay at full strength. */}
+            <g opacity={disabled ? 0.6 : 1}>
+              <Board layout={layout} zoom={zoom} strings={strings} />
+              {fretLabels ? <FretLabels layout={layout} frets={frets} zoom={zoom} /> : null}
+            </g>
             {heat.map((h) => (
               <HeatMark
                 key={`heat-${spotKey(h)}`}
@@ -203,7 +217,7 @@ export function Fretboard({
                         width={c.width - 4}
                         height={c.height - 4}
                         rx={8}
-                        className="fill-none stroke-sky opacity-0 group-hover:opacity-50 group-focus-visible:opacity-100"
+                        className="fill-none stroke-sky opacity-0 group-focus-visible:opacity-100 [@media(hover:hover)]:group-hover:opacity-50"
                         strokeWidth={3}
                       />
                     </g>

@@ -34,7 +34,8 @@ function SpeakerIcon({ muted }: { muted: boolean }) {
   );
 }
 
-export function SoundControl({ className = "" }: { className?: string }) {
+/** `compact` keeps only the mute button, for a bar that has no room; the full control sits elsewhere on the page. */
+export function SoundControl({ className = "", compact = false }: { className?: string; compact?: boolean }) {
   const { volumeDb, muted } = useSoundPrefs();
   const id = useId();
   return (
@@ -48,25 +49,29 @@ export function SoundControl({ className = "" }: { className?: string }) {
         <SpeakerIcon muted={muted} />
         {muted ? "Sound off" : "Sound on"}
       </button>
-      <label htmlFor={id} className="flex min-h-11 items-center gap-2">
-        Volume
-        <input
-          id={id}
-          type="range"
-          min={MIN_VOLUME_DB}
-          max={MAX_VOLUME_DB}
-          step={1}
-          value={volumeDb}
-          disabled={muted}
-          aria-valuetext={`${volumeDb} decibels${volumeDb === MAX_VOLUME_DB ? ", the highest allowed" : ""}`}
-          onChange={(e) => setSoundPrefs({ volumeDb: Number(e.target.value) })}
-          className="w-32 accent-teal disabled:opacity-50"
-        />
-        <output htmlFor={id} className="w-16 tabular-nums text-ink-soft">
-          {String(volumeDb).replace("-", "−")} dB
-        </output>
-      </label>
-      <p className="text-sm text-ink-soft">Keep headphone volume moderate.</p>
+      {compact ? null : (
+        <>
+          <label htmlFor={id} className="flex min-h-11 items-center gap-2">
+            Volume
+            <input
+              id={id}
+              type="range"
+              min={MIN_VOLUME_DB}
+              max={MAX_VOLUME_DB}
+              step={1}
+              value={volumeDb}
+              disabled={muted}
+              aria-valuetext={`${volumeDb} decibels${volumeDb === MAX_VOLUME_DB ? ", the highest allowed" : ""}`}
+              onChange={(e) => setSoundPrefs({ volumeDb: Number(e.target.value) })}
+              className="w-32 accent-teal disabled:opacity-50"
+            />
+            <output htmlFor={id} className="w-16 tabular-nums text-ink-soft">
+              {String(volumeDb).replace("-", "−")} dB
+            </output>
+          </label>
+          <p className="text-sm text-ink-soft">Keep headphone volume moderate.</p>
+        </>
+      )}
     </div>
   );
 }

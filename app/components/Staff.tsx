@@ -4,11 +4,15 @@ import type { PrintedAccidental } from "~/music/keys";
 import { toPitch, type Pitch } from "~/music/pitch";
 import { accidentalFor, staffWords } from "./staffText";
 
-export type StaffSize = "stage" | "card" | "phone";
+export type StaffSize = "stage" | "reveal" | "card" | "phone";
 
-/** Heights, so the placeholder and the drawing take the same room: the stage's note reads from the back row. */
+/**
+ * Heights, so the placeholder and the drawing take the same room. The stage's prompt fills well over a third of
+ * the screen so it reads from the back row; at the reveal it shrinks to leave room for the neck.
+ */
 const SIZE_CLASS: Record<StaffSize, string> = {
-  stage: "h-[32vh] min-h-48",
+  stage: "h-[58vh] min-h-56",
+  reveal: "h-[26vh] min-h-40",
   card: "h-40",
   phone: "h-28",
 };

@@ -6,8 +6,9 @@ export type FretboardSize = "page" | "pad" | "stage";
 /** Pixel sizes per preset; every cell is at least 44 px each way (WCAG 2.5.5 target size) so phones can tap it. */
 export const SIZE_METRICS: Readonly<Record<FretboardSize, { stringGap: number; minCell: number; font: number }>> = {
   page: { stringGap: 44, minCell: 44, font: 14 },
-  pad: { stringGap: 52, minCell: 44, font: 16 },
-  stage: { stringGap: 64, minCell: 56, font: 22 },
+  pad: { stringGap: 60, minCell: 44, font: 16 },
+  // The stage shows the whole neck on a projector: cells as small as a page's, lettering for the back row.
+  stage: { stringGap: 50, minCell: 44, font: 22 },
 };
 
 const SINGLE_DOTS = [3, 5, 7, 9, 15, 17, 19, 21];

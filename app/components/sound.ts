@@ -157,15 +157,28 @@ async function startEngine(context: AudioContext): Promise<Engine> {
 }
 
 /**
+ * Creates and resumes the audio context; call it from a click or key handler. A page whose sound comes without a
+ * gesture of its own (the stage's reveal) calls this on the teacher's clicks, then plays once soundUnlocked().
+ */
+export function unlockSound(): AudioContext | null {
+  if (typeof AudioContext === "undefined") return null;
+  unlocked ??= new AudioContext();
+  void unlocked.resume();
+  // Returned for anything else that sounds (the rhythm pass's click), so Tone.js keeps to this one context.
+  return unlocked;
+}
+
+export const soundUnlocked = (): boolean => unlocked?.state === "running";
+
+/**
  * Plays a sounding MIDI pitch. Call it from a click or key handler: the audio context is created and resumed
  * right there, inside the gesture, because Safari refuses audio that starts after an await.
  */
 export function playSounding(midi: number): Promise<void> {
-  if (getSoundPrefs().muted || typeof AudioContext === "undefined") return Promise.resolve();
-  if (!unlocked) unlocked = new AudioContext();
-  void unlocked.resume();
+  const context = getSoundPrefs().muted ? null : unlockSound();
+  if (!context) return Promise.resolve();
   // A failed start (say, the chunk could not load offline) is forgotten so the next tap tries again.
-  engine ??= startEngine(unlocked).catch((error: unknown) => {
+  engine ??= startEngine(context).catch((error: unknown) => {
     engine = null;
     throw error;
   });

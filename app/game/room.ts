@@ -154,12 +154,14 @@ interface Ctx {
   env: RoomEnv;
   out: Effect[];
   send: (to: Audience, message: ServerMessage) => void;
+  /** Players already copied in this step (see own()). */
+  owned: Set<Player>;
 }
 
 export function reduce(state: RoomState, event: RoomEvent, env: RoomEnv): Step {
-  const s: RoomState = { ...state, players: state.players.map((p) => ({ ...p })), run: state.run && { ...state.run } };
+  const s: RoomState = { ...state, players: [...state.players], run: state.run && { ...state.run } };
   const out: Effect[] = [];
-  const ctx: Ctx = { s, env, out, send: (to, message) => out.push({ kind: "send", to, message }) };
+  const ctx: Ctx = { s, env, out, send: (to, message) => out.push({ kind: "send", to, message }), owned: new Set() };
   const timed = applyDue(ctx);
   const accepted = handle(ctx, event);
   if (!timed && (!accepted || event.type === "tick")) return { state, effects: out, wakeAt: wakeAt(state) };
@@ -200,12 +202,21 @@ function handle(ctx: Ctx, e: RoomEvent): boolean {
     case "remove":
       return remove(ctx, e.playerId);
     case "restart":
-      for (const p of ctx.s.players) p.online = false;
+      for (const p of ctx.s.players) own(ctx, p).online = false;
       if (ctx.s.phase === "prompt" || ctx.s.phase === "reveal" || ctx.s.phase === "standings") pause(ctx);
       return true;
     case "tick":
       return true;
   }
+}
+
+/** The player's working copy, made on its first change: an event copies only the players it changes, not the class. */
+function own(ctx: Ctx, p: Player): Player {
+  if (ctx.owned.has(p)) return p;
+  const copy = { ...p };
+  ctx.s.players[ctx.s.players.indexOf(p)] = copy;
+  ctx.owned.add(copy);
+  return copy;
 }
 
 function refuse(ctx: Ctx, to: Audience, code: ErrorCode, message: string): false {
@@ -235,9 +246,9 @@ function join(ctx: Ctx, e: Extract<RoomEvent, { type: "join" }>): boolean {
 }
 
 function setOnline(ctx: Ctx, playerId: string, online: boolean): boolean {
-  const p = findPlayer(ctx.s, playerId);
-  if (!p) return refuse(ctx, player(playerId), ERROR_CODES.unknownPlayer, "That seat is no longer in this room. Join again.");
-  p.online = online;
+  const found = findPlayer(ctx.s, playerId);
+  if (!found) return refuse(ctx, player(playerId), ERROR_CODES.unknownPlayer, "That seat is no longer in this room. Join again.");
+  own(ctx, found).online = online;
   if (online) catchUp(ctx, playerId);
   else {
     ctx.send(EVERYONE, roster(ctx.s));
@@ -255,8 +266,9 @@ function catchUp(ctx: Ctx, playerId: string): void {
 }
 
 function remove(ctx: Ctx, playerId: string): boolean {
-  const p = findPlayer(ctx.s, playerId);
-  if (!p) return refuse(ctx, STAGE, ERROR_CODES.unknownPlayer, "No such player in this room.");
+  const found = findPlayer(ctx.s, playerId);
+  if (!found) return refuse(ctx, STAGE, ERROR_CODES.unknownPlayer, "No such player in this room.");
+  const p = own(ctx, found);
   p.removed = true;
   p.online = false;
   ctx.out.push({ kind: "close", to: player(playerId), code: CLOSE_CODES.removed });
@@ -280,7 +292,7 @@ function host(ctx: Ctx, action: HostAction, priorPoints: Record<string, number>)
     case "start":
       if (s.phase !== "lobby") return wrong("start");
       if (active(s).length === 0) return refuse(ctx, STAGE, ERROR_CODES.noPlayers, "Wait for at least one player to join.");
-      if (s.config.teams !== null) assignTeams(s, s.config.teams, priorPoints);
+      if (s.config.teams !== null) assignTeams(ctx, s.config.teams, priorPoints);
       openPrompt(ctx, 0);
       return true;
     case "pause":
@@ -360,8 +372,8 @@ function end(ctx: Ctx, reason: "finished" | "host"): void {
 // ---- teams ---------------------------------------------------------------------------------
 
 /** Snake draft (0,1,2,2,1,0,…) on earlier points, or plain round-robin in join order. */
-function assignTeams(s: RoomState, teams: NonNullable<RoomConfig["teams"]>, priorPoints: Record<string, number>): void {
-  const players = active(s);
+function assignTeams(ctx: Ctx, teams: NonNullable<RoomConfig["teams"]>, priorPoints: Record<string, number>): void {
+  const players = active(ctx.s).map((p) => own(ctx, p));
   const order = teams.balance === "points" ? [...players].sort((a, b) => (priorPoints[b.id] ?? 0) - (priorPoints[a.id] ?? 0)) : players;
   order.forEach((p, i) => {
     const lap = Math.floor(i / teams.count);
@@ -379,6 +391,17 @@ function smallestTeam(s: RoomState, count: number): number {
 // ---- prompts and answers -------------------------------------------------------------------
 
 const note = (s: RoomState): PromptNote => s.config.prompts[s.run!.index]!;
+
+/**
+ * The answers to the prompt in progress. Answers are only taken for that prompt, so they are the
+ * tail of `s.answers`: found in O(class size) however long the round has run.
+ */
+function promptAnswers(s: RoomState): Answer[] {
+  const id = s.run!.promptId;
+  let i = s.answers.length;
+  while (i > 0 && s.answers[i - 1]!.promptId === id) i--;
+  return s.answers.slice(i);
+}
 const sameSpot = (a: Spot, b: Spot) => a.string === b.string && a.fret === b.fret;
 const allSpots = (s: RoomState, n: PromptNote) => spotsFor(n.written, { tuning: resolveTuning(s.config.tuning), frets: s.config.frets, reading: s.config.reading });
 const fullNeck = (s: RoomState) => s.config.mode === "full-neck";
@@ -409,7 +432,7 @@ function answer(ctx: Ctx, e: Extract<RoomEvent, { type: "answer" }>): boolean {
   if (e.spot.string > tuning.strings.length || e.spot.fret > s.config.frets) {
     return no(ERROR_CODES.spotOffNeck, `That spot is not on this neck (${tuning.strings.length} strings, ${s.config.frets} frets).`);
   }
-  const mine = s.answers.filter((a) => a.promptId === run.promptId && a.playerId === p.id);
+  const mine = promptAnswers(s).filter((a) => a.playerId === p.id);
   if (fullNeck(s)) {
     if (run.out.includes(p.id)) return no(ERROR_CODES.turnOver, "A miss ended your turn on this prompt.");
     if (mine.some((a) => sameSpot(a.spot, e.spot))) return no(ERROR_CODES.alreadyAnswered, "You already tapped that spot.");
@@ -436,20 +459,21 @@ function answer(ctx: Ctx, e: Extract<RoomEvent, { type: "answer" }>): boolean {
     const score = scoreAnswer({ verdict, reactionMs, answerMs: s.config.answerMs, streakBefore: p.streak });
     scored = { verdict, points: score.points, streak: score.streak, found: null };
   }
-  p.points += scored.points;
-  p.streak = scored.streak;
-  p.longestStreak = Math.max(p.longestStreak, p.streak);
+  const me = own(ctx, p);
+  me.points += scored.points;
+  me.streak = scored.streak;
+  me.longestStreak = Math.max(me.longestStreak, me.streak);
   const record: Answer = { playerId: p.id, promptId: run.promptId, index: run.index, spot: e.spot, tapAt: e.tapAt, at: env.now, reactionMs, diagnosis, ...scored };
   s.answers = [...s.answers, record];
 
-  ctx.send(player(p.id), ackMessage(record, p));
-  ctx.send(STAGE, { type: "answered", promptId: run.promptId, count: answeredCount(s), of: active(s).length });
+  ctx.send(player(p.id), ackMessage(record, me));
+  ctx.send(STAGE, { type: "answered", promptId: run.promptId, count: answeredIds(s).size, of: active(s).length });
   if (scored.found === "new") ctx.send(EVERYONE, progressMessage(s));
   closeIfDone(ctx);
   return true;
 }
 
-const answeredCount = (s: RoomState) => new Set(s.answers.filter((a) => a.promptId === s.run!.promptId).map((a) => a.playerId)).size;
+const answeredIds = (s: RoomState) => new Set(promptAnswers(s).map((a) => a.playerId));
 
 /** Closes the prompt early when nothing more can happen: everyone online answered (or, in Full neck, all spots found or everyone is out). */
 function closeIfDone(ctx: Ctx): void {
@@ -457,9 +481,10 @@ function closeIfDone(ctx: Ctx): void {
   if (s.phase !== "prompt") return;
   const run = s.run!;
   const waiting = active(s).filter((p) => p.online);
+  const answered = answeredIds(s);
   const done = fullNeck(s)
     ? run.found.length === allSpots(s, note(s)).length || (waiting.length > 0 && waiting.every((p) => run.out.includes(p.id)))
-    : waiting.length > 0 && waiting.every((p) => s.answers.some((a) => a.promptId === run.promptId && a.playerId === p.id));
+    : waiting.length > 0 && waiting.every((p) => answered.has(p.id));
   if (done) closePrompt(ctx, false);
 }
 
@@ -467,9 +492,9 @@ function closeIfDone(ctx: Ctx): void {
 function closePrompt(ctx: Ctx, skipped: boolean): void {
   const { s } = ctx;
   const run = s.run!;
-  const answeredIds = new Set(s.answers.filter((a) => a.promptId === run.promptId).map((a) => a.playerId));
-  const missing = active(s).filter((p) => !answeredIds.has(p.id));
-  if (!skipped && !fullNeck(s)) for (const p of missing) if (p.online) p.streak = 0;
+  const answered = answeredIds(s);
+  const missing = active(s).filter((p) => !answered.has(p.id));
+  if (!skipped && !fullNeck(s)) for (const p of missing) if (p.online) own(ctx, p).streak = 0;
   run.closed = { of: active(s).length, unanswered: missing.length };
   s.phase = "reveal";
   s.phaseSince = ctx.env.now;
@@ -528,7 +553,7 @@ function progressMessage(s: RoomState): ServerMessageOf<"progress"> {
 function revealMessage(s: RoomState): ServerMessageOf<"reveal"> {
   const run = s.run!;
   const n = note(s);
-  const taps = s.answers.filter((a) => a.promptId === run.promptId);
+  const taps = promptAnswers(s);
   const counts = Object.fromEntries([...Object.keys(MISTAKE_LABELS), "no-answer"].map((k) => [k, 0])) as Record<MistakeKind | "no-answer", number>;
   for (const a of taps) counts[a.diagnosis.kind] += 1;
   counts["no-answer"] = run.closed!.unanswered;
@@ -576,7 +601,7 @@ export function snapshot(s: RoomState, who: { role: "host" } | { role: "player";
   if (shown === "prompt") {
     messages.push(promptMessage(s));
     if (fullNeck(s)) messages.push(progressMessage(s));
-    if (p) for (const a of s.answers.filter((x) => x.promptId === s.run!.promptId && x.playerId === p.id)) messages.push(ackMessage(a, p));
+    if (p) for (const a of promptAnswers(s).filter((x) => x.playerId === p.id)) messages.push(ackMessage(a, p));
   } else if (shown === "reveal") messages.push(revealMessage(s));
   else if (shown === "standings") messages.push(standings(s, false));
   else if (shown === "ended") messages.push(...endMessages(s, who.role === "host" ? STAGE : player(p?.id ?? "")));

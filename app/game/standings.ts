@@ -7,7 +7,8 @@ export const TEAM_NAMES = ["Nut", "Saddle", "Bridge", "Headstock", "Soundhole", 
 
 const inRoom = (state: RoomState): Player[] => state.players.filter((p) => !p.removed);
 
-function median(values: number[]): number | null {
+/** Middle value (mean of the middle two for an even count); null when there are none. */
+export function median(values: number[]): number | null {
   if (values.length === 0) return null;
   const sorted = [...values].sort((a, b) => a - b);
   const mid = Math.floor(sorted.length / 2);

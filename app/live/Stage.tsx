@@ -1,19 +1,22 @@
 /**
  * The stage: the teacher's projected screen. Sized for the back of a classroom — the prompt
- * note takes at least a third of the screen height, numbers are 48 px or more.
+ * note takes well over a third of the screen height, numbers are 48 px or more.
  */
 import { AnimatePresence, motion, useReducedMotion } from "framer-motion";
-import { useEffect, useMemo, useState } from "react";
+import { useEffect, useMemo, useRef, useState } from "react";
 import { Link } from "react-router";
 import { Fretboard } from "~/components/Fretboard";
+import { playSounding, soundUnlocked, unlockSound } from "~/components/sound";
+import { SoundControl } from "~/components/SoundControl";
 import { Staff } from "~/components/Staff";
 import { buttonClass } from "~/components/ui";
 import { formatRoomCode } from "~/game/roomCode";
+import { soundingMidi } from "~/music/fretboard";
 import { MISTAKE_LABELS } from "~/music/mistakes";
+import { displayPitch, parsePitch, pitchMidi } from "~/music/pitch";
 import { resolveTuning } from "~/music/tuning";
-import { Countdown, MISTAKE_ICONS, Offline, StandingsBoard } from "./parts";
+import { Countdown, Icon, MISTAKE_ICONS, Offline, SecondsLeft, StandingsBoard, usePreviousOrder } from "./parts";
 import { useRoomSocket } from "./useRoomSocket";
-
 export interface StageProps {
   roomId: string;
   code: string;
@@ -29,43 +32,60 @@ export interface StageProps {
 export function Stage(props: StageProps) {
   const { state, host, remove, toLocal } = useRoomSocket(props.code, { role: "host", hostKey: props.hostKey });
   const tuning = useMemo(() => resolveTuning(props.tuning), [props.tuning]);
+  const root = useRef<HTMLDivElement>(null);
   const phase = state.welcome?.phase ?? "lobby";
   const players = state.roster?.players ?? [];
   const shown = state.ended ? "ended" : state.reveal ? "reveal" : state.standings && !state.standings.final ? "standings" : state.prompt ? "prompt" : "lobby";
+  const previousOrder = usePreviousOrder(state.standings);
+
+  // The reveal sounds the note the class just read; the teacher's clicks on this page are the gesture that allows it.
+  const revealed = state.reveal?.written;
+  useEffect(() => {
+    if (revealed && soundUnlocked()) void playSounding(soundingMidi(pitchMidi(parsePitch(revealed))));
+  }, [revealed, state.reveal?.promptId]);
 
   return (
-    <div className="space-y-4">
-      <header className="flex flex-wrap items-center gap-4">
+    <div ref={root} onPointerDown={unlockSound} onKeyDown={unlockSound} className="space-y-4 bg-paper [&:fullscreen]:overflow-y-auto [&:fullscreen]:p-6">
+      <header className="flex flex-wrap items-center gap-x-4 gap-y-2">
         <h1 className="font-display text-2xl font-semibold">{props.title}</h1>
-        <span className="rounded-full bg-ink px-4 py-1 font-display text-2xl tracking-widest text-paper" aria-label={`Room code ${props.code.split("").join(" ")}`}>
+        <span className="rounded-full bg-ink px-4 py-1 font-display text-3xl tracking-widest text-paper" aria-label={`Room code ${props.code.split("").join(" ")}`}>
           {formatRoomCode(props.code)}
         </span>
-        <span className="text-lg text-ink-soft">
-          {players.filter((p) => p.online).length} of {players.length} players online
+        <span className="text-xl text-ink-soft">
+          {players.filter((p) => p.online).length} of {players.length} online
         </span>
-        <ConnectionBadge connection={state.connection} />
-        <HostControls shown={shown} paused={state.paused} locked={state.roster?.locked ?? false} onAction={host} phase={phase} />
+        {state.ended ? null : <ConnectionBadge connection={state.connection} />}
+        <div className="ml-auto flex flex-wrap items-center gap-2">
+          {/* The lobby has the full sound control; during the round the mute alone is enough. */}
+          {shown === "lobby" ? null : <SoundControl compact />}
+          <FullScreenButton target={root} />
+          <HostControls shown={shown} paused={state.paused} locked={state.roster?.locked ?? false} onAction={host} phase={phase} />
+        </div>
       </header>
-      {state.error ? (
-        <p role="alert" className="rounded-2xl border-2 border-brick bg-brick/10 p-3 text-lg">
+      {[state.closedReason, state.error].filter(Boolean).map((problem) => (
+        <p key={problem} role="alert" className="rounded-2xl border-2 border-brick bg-brick/10 p-3 text-2xl">
           <span aria-hidden="true">✗ </span>
-          {state.error}
+          {problem}
+        </p>
+      ))}
+      {state.paused ? (
+        <p className="flex items-center justify-center gap-3 rounded-2xl bg-sky/15 p-4 font-display text-5xl">
+          <Icon name="pause" /> Paused
         </p>
       ) : null}
-      {state.closedReason ? <p className="text-xl text-brick">{state.closedReason}</p> : null}
-      {state.paused ? <p className="rounded-2xl bg-sky/15 p-4 text-center font-display text-4xl">⏸ Paused</p> : null}
 
       {shown === "lobby" ? (
         <section className="grid gap-6 lg:grid-cols-[auto_1fr]">
           <div className="rounded-3xl bg-white p-6 text-center shadow">
-            <p className="text-xl">Join at</p>
-            <p className="font-display text-3xl font-semibold break-all">{props.joinUrl.replace(/\/join.*$/, "/join")}</p>
-            <p className="mt-4 font-display text-[min(14vw,7rem)] leading-none font-semibold tracking-widest">{formatRoomCode(props.code)}</p>
-            <div className="mx-auto mt-4 w-64" aria-label="QR code with the join link" role="img" dangerouslySetInnerHTML={{ __html: props.qr }} />
+            <p className="text-2xl">Join at</p>
+            <p className="font-display text-4xl font-semibold break-all">{props.joinUrl.replace(/\/join.*$/, "/join")}</p>
+            <p className="mt-2 text-2xl">with the room code</p>
+            <p className="font-display text-[min(14vw,8rem)] leading-none font-semibold tracking-widest">{formatRoomCode(props.code)}</p>
+            <div className="mx-auto mt-4 w-[min(18rem,30vh)]" aria-label="QR code with the join link" role="img" dangerouslySetInnerHTML={{ __html: props.qr }} />
           </div>
-          <div>
-            <h2 className="font-display text-3xl font-semibold">Players ({players.length})</h2>
-            <ul className="mt-4 flex flex-wrap gap-3" aria-live="polite">
+          <div className="space-y-4">
+            <h2 className="font-display text-5xl font-semibold">Players ({players.length})</h2>
+            <ul className="flex flex-wrap gap-3" aria-live="polite">
               <AnimatePresence>
                 {players.map((p) => (
                   <motion.li
@@ -74,14 +94,14 @@ export function Stage(props: StageProps) {
                     initial={{ opacity: 0, scale: 0.8 }}
                     animate={{ opacity: 1, scale: 1 }}
                     exit={{ opacity: 0 }}
-                    className="flex items-center gap-2 rounded-full bg-white px-4 py-2 text-2xl shadow-sm"
+                    className="flex items-center gap-2 rounded-full bg-white py-2 pr-2 pl-5 text-3xl shadow-sm"
                   >
                     {p.nickname}
                     {p.online ? null : <Offline />}
                     <button
                       type="button"
                       onClick={() => confirm(`Remove ${p.nickname} from the room?`) && remove(p.playerId)}
-                      className="ml-1 rounded-full px-2 text-base text-ink-soft hover:bg-brick/15"
+                      className="ml-1 flex h-11 w-11 items-center justify-center rounded-full text-xl text-ink-soft hover:bg-brick/15"
                       aria-label={`Remove ${p.nickname}`}
                     >
                       ✕
@@ -90,32 +110,58 @@ export function Stage(props: StageProps) {
                 ))}
               </AnimatePresence>
             </ul>
-            {players.length === 0 ? <p className="mt-4 text-2xl text-ink-soft">Waiting for the class to join…</p> : null}
+            {players.length === 0 ? <p className="text-3xl text-ink-soft">Waiting for the class to join…</p> : null}
+            <div className="rounded-2xl bg-white/70 p-4">
+              <SoundControl />
+              <p className="mt-2 text-ink-soft">The stage plays each note at its reveal once you have clicked anywhere on this page.</p>
+            </div>
           </div>
         </section>
       ) : null}
 
       {(shown === "prompt" || shown === "reveal") && state.prompt ? (
         <section className="space-y-4">
-          <div className="flex items-center justify-between font-display text-3xl">
-            <span>
-              Note {state.prompt.index + 1} of {state.prompt.total}
-            </span>
-            <span aria-live="polite" className="text-5xl font-semibold">
-              {state.reveal ? `${state.reveal.answered}/${state.reveal.of}` : `${state.answered?.count ?? 0}/${state.answered?.of ?? players.length}`}{" "}
-              <span className="text-2xl font-normal">answered</span>
-            </span>
-          </div>
           {shown === "prompt" ? <Countdown showAt={toLocal(state.prompt.showAt)} deadline={toLocal(state.prompt.deadline)} paused={state.paused} /> : null}
-          <div data-written={state.prompt.written} className="flex min-h-[36vh] items-center justify-center rounded-3xl bg-white shadow">
-            <Staff notes={[{ written: state.prompt.written, accidental: state.prompt.printedAccidental }]} keyFifths={state.prompt.keyFifths} size="stage" />
+          {/* At the reveal the note shrinks and the class's answers join it in the top row, leaving room for the neck. */}
+          <div className={`grid gap-4 ${state.reveal ? "lg:grid-cols-[minmax(0,1fr)_17rem_22rem]" : "lg:grid-cols-[minmax(0,1fr)_22rem]"}`}>
+            <div data-written={state.prompt.written} className="flex items-center justify-center rounded-3xl bg-white px-4 shadow">
+              <Staff
+                notes={[{ written: state.prompt.written, accidental: state.prompt.printedAccidental }]}
+                keyFifths={state.prompt.keyFifths}
+                size={shown === "reveal" ? "reveal" : "stage"}
+                className="w-full"
+              />
+            </div>
+            <aside className="flex flex-col justify-center gap-4 font-display">
+              <p className="leading-none">
+                <span className="text-3xl">Note </span>
+                <span className="text-7xl font-semibold tabular-nums">{state.prompt.index + 1}</span>
+                <span className="text-3xl"> of {state.prompt.total}</span>
+              </p>
+              <p aria-live="polite" className="leading-none">
+                <span className="text-7xl font-semibold tabular-nums">
+                  {state.reveal ? `${state.reveal.answered}/${state.reveal.of}` : `${state.answered?.count ?? 0}/${state.answered?.of ?? players.length}`}
+                </span>{" "}
+                <span className="text-3xl">answered</span>
+              </p>
+              {shown === "prompt" ? <SecondsLeft showAt={toLocal(state.prompt.showAt)} deadline={toLocal(state.prompt.deadline)} paused={state.paused} /> : null}
+              {state.reveal ? <HomeSpotWords reveal={state.reveal} /> : null}
+            </aside>
+            {state.reveal ? <AnswerCounts counts={state.reveal.counts} /> : null}
           </div>
           {state.progress ? (
             <div>
-              <p className="font-display text-2xl">
+              <p className="font-display text-4xl">
                 Spots found: {state.progress.found.length} of {state.progress.total}
               </p>
-              <div className="mt-2 h-6 overflow-hidden rounded-full bg-ink/10" role="progressbar" aria-valuemin={0} aria-valuemax={state.progress.total} aria-valuenow={state.progress.found.length}>
+              <div
+                className="mt-2 h-6 overflow-hidden rounded-full bg-ink/10"
+                role="progressbar"
+                aria-label="Spots found"
+                aria-valuemin={0}
+                aria-valuemax={state.progress.total}
+                aria-valuenow={state.progress.found.length}
+              >
                 <div className="h-full bg-teal transition-all" style={{ width: `${(100 * state.progress.found.length) / Math.max(1, state.progress.total)}%` }} />
               </div>
             </div>
@@ -124,12 +170,16 @@ export function Stage(props: StageProps) {
         </section>
       ) : null}
 
-      {shown === "standings" && state.standings ? <StandingsBoard standings={state.standings} big /> : null}
+      {shown === "standings" && state.standings ? <StandingsBoard standings={state.standings} previousOrder={previousOrder} big /> : null}
 
       {shown === "ended" && state.ended ? (
         <section className="space-y-6">
           <h2 className="font-display text-5xl font-semibold">Round complete{state.ended.tuneName ? ` — the tune was “${state.ended.tuneName}”` : ""}</h2>
-          {state.standings ? <StandingsBoard standings={state.standings} big /> : null}
+          {state.standings ? <StandingsBoard standings={state.standings} previousOrder={previousOrder} big /> : null}
+          <p className="flex items-center gap-3 text-2xl">
+            <Icon name="rest" className="h-9 w-9 text-teal" />
+            Everyone: take a break to rest your hands.
+          </p>
           <Link to={`/results/${props.roomId}`} className={buttonClass("teal", "text-2xl")}>
             See note-by-note results
           </Link>
@@ -139,27 +189,81 @@ export function Stage(props: StageProps) {
   );
 }
 
-function Reveal({ reveal, tuning, frets, position }: { reveal: NonNullable<ReturnType<typeof useRoomSocket>["state"]["reveal"]>; tuning: ReturnType<typeof resolveTuning>; frets: number; position: number }) {
+type RevealMessage = NonNullable<ReturnType<typeof useRoomSocket>["state"]["reveal"]>;
+
+/** How the class answered, kind by kind: icon and words for each, the count large enough for the back row. */
+function AnswerCounts({ counts }: { counts: RevealMessage["counts"] }) {
   const reduce = useReducedMotion();
-  const kinds = Object.entries(reveal.counts).filter(([, n]) => n > 0);
+  const kinds = Object.entries(counts)
+    .filter(([, n]) => n > 0)
+    // The right answers first, then the commonest mistakes.
+    .sort(([a, x], [b, y]) => Number(b === "home-spot") - Number(a === "home-spot") || y - x);
   return (
-    <motion.div initial={reduce ? false : { opacity: 0, y: 12 }} animate={{ opacity: 1, y: 0 }} transition={{ duration: 0.25 }} className="space-y-4">
+    <ul className="flex flex-col justify-center gap-2 text-2xl">
+      {kinds.map(([kind, n], i) => (
+        <motion.li
+          key={kind}
+          initial={reduce ? false : { opacity: 0, x: 16 }}
+          animate={{ opacity: 1, x: 0 }}
+          transition={{ delay: reduce ? 0 : 0.08 * i, duration: 0.2 }}
+          className={`flex items-center gap-3 rounded-2xl px-4 py-1 ${kind === "home-spot" ? "bg-teal text-white" : "bg-white"}`}
+        >
+          <span aria-hidden="true" className="w-8 text-center">
+            {MISTAKE_ICONS[kind as keyof typeof MISTAKE_ICONS]}
+          </span>
+          <span className="flex-1">{kind === "no-answer" ? "no answer" : MISTAKE_LABELS[kind as keyof typeof MISTAKE_LABELS]}</span>
+          <strong className="font-display text-5xl tabular-nums">{n}</strong>
+        </motion.li>
+      ))}
+    </ul>
+  );
+}
+
+function HomeSpotWords({ reveal }: { reveal: RevealMessage }) {
+  const reduce = useReducedMotion();
+  return (
+    <motion.p initial={reduce ? false : { opacity: 0, scale: 0.9 }} animate={{ opacity: 1, scale: 1 }} transition={{ duration: 0.25 }} className="text-3xl">
+      <span className="text-6xl font-semibold">{displayPitch(parsePitch(reveal.written))}</span>
+      <span className="mt-1 flex items-center gap-2">
+        <span aria-hidden="true" className="flex h-8 w-8 items-center justify-center rounded-full bg-teal text-xl text-white">
+          ✓
+        </span>
+        string {reveal.home.string}, {reveal.home.fret === 0 ? "open" : `fret ${reveal.home.fret}`}
+      </span>
+    </motion.p>
+  );
+}
+
+/** The whole neck, so every spot of the pitch is in view, with the class's taps counted where they landed. */
+function Reveal({ reveal, tuning, frets, position }: { reveal: RevealMessage; tuning: ReturnType<typeof resolveTuning>; frets: number; position: number }) {
+  const reduce = useReducedMotion();
+  return (
+    <motion.div initial={reduce ? false : { opacity: 0, y: 16 }} animate={{ opacity: 1, y: 0 }} transition={{ duration: 0.3 }}>
       <Fretboard
         tuning={tuning}
         frets={frets}
         position={position}
+        wholeNeck
         highlights={[{ ...reveal.home, kind: "home" }, ...reveal.otherSpots.map((s) => ({ ...s, kind: "other" as const }))]}
         heat={reveal.heat}
+        size="stage"
       />
-      <ul className="flex flex-wrap gap-3 text-2xl">
-        {kinds.map(([kind, n]) => (
-          <li key={kind} className={`rounded-2xl px-4 py-2 ${kind === "home-spot" ? "bg-teal text-white" : "bg-white"}`}>
-            <span aria-hidden="true">{MISTAKE_ICONS[kind as keyof typeof MISTAKE_ICONS]} </span>
-            {kind === "no-answer" ? "no answer" : MISTAKE_LABELS[kind as keyof typeof MISTAKE_LABELS]}: <strong>{n}</strong>
-          </li>
-        ))}
-      </ul>
     </motion.div>
+  );
+}
+
+/** The stage alone fills the projector: no browser bars, no site menu. */
+function FullScreenButton({ target }: { target: React.RefObject<HTMLDivElement | null> }) {
+  const [full, setFull] = useState(false);
+  useEffect(() => {
+    const change = () => setFull(document.fullscreenElement !== null);
+    document.addEventListener("fullscreenchange", change);
+    return () => document.removeEventListener("fullscreenchange", change);
+  }, []);
+  return (
+    <button type="button" className={buttonClass("ghost")} onClick={() => (full ? document.exitFullscreen() : target.current?.requestFullscreen())?.catch(() => undefined)}>
+      <Icon name="fullscreen" /> {full ? "Leave full screen" : "Full screen"}
+    </button>
   );
 }
 
@@ -189,7 +293,7 @@ function HostControls({
       {shown === "lobby" && phase === "lobby" ? (
         <>
           <button className={buttonClass("ghost")} onClick={() => onAction(locked ? "unlock" : "lock")}>
-            {locked ? "🔒 Locked — unlock" : "🔓 Lock room"}
+            <Icon name={locked ? "lock" : "unlock"} /> {locked ? "Locked — unlock" : "Lock room"}
           </button>
           <button className={buttonClass("teal", "text-xl")} onClick={() => onAction("start")}>
             ▶ Start
@@ -198,11 +302,17 @@ function HostControls({
       ) : (
         <>
           <button className={buttonClass("ghost")} onClick={() => onAction(paused ? "resume" : "pause")}>
-            {paused ? "▶ Resume" : "⏸ Pause"}
+            {paused ? (
+              "▶ Resume"
+            ) : (
+              <>
+                <Icon name="pause" /> Pause
+              </>
+            )}
           </button>
           {shown === "prompt" ? (
             <button className={buttonClass("ghost")} onClick={() => onAction("skip")}>
-              ⏭ Skip
+              <Icon name="skip" /> Skip
             </button>
           ) : null}
           {shown === "reveal" || shown === "standings" ? (

@@ -1,5 +1,5 @@
 import { motion, useReducedMotion } from "framer-motion";
-import { useEffect, useState } from "react";
+import { useEffect, useState, useSyncExternalStore } from "react";
 import type { ServerMessageOf } from "~/game/protocol";
 import type { MistakeKind } from "~/music/mistakes";
 
@@ -16,11 +16,55 @@ export const MISTAKE_ICONS: Record<MistakeKind | "no-answer", string> = {
   "no-answer": "…",
 };
 
+const ICON_PATHS = {
+  pause: "M8 5v14M16 5v14",
+  skip: "M5 5l10 7-10 7zM19 5v14",
+  lock: "M6 11h12v9H6zM8.5 11V8a3.5 3.5 0 0 1 7 0v3",
+  unlock: "M6 11h12v9H6zM8.5 11V8a3.5 3.5 0 0 1 6.8-1.2",
+  streak: "M12 3c.5 3.5 5 5.5 5 10.5a5 5 0 0 1-10 0c0-2.6 1.6-3.8 2-6 1.3 1 1.8 2.3 1.8 3.6C12 9.5 12.4 6.5 12 3z",
+  fullscreen: "M4 9V4h5M20 9V4h-5M4 15v5h5M20 15v5h-5",
+  mirror: "M12 3v18M8 7l-4 5 4 5M16 7l4 5-4 5",
+  rest: "M7 11V6a1.5 1.5 0 0 1 3 0v4M10 10V4.5a1.5 1.5 0 0 1 3 0V10M13 10V5.5a1.5 1.5 0 0 1 3 0V11M16 11V8a1.5 1.5 0 0 1 3 0v5a7 7 0 0 1-7 7h-.5A6.5 6.5 0 0 1 6 16.5L4.3 13a1.5 1.5 0 0 1 2.7-1.4L7 11",
+} as const;
+
+/** Line icons drawn as paths, so they look the same whatever fonts or emoji the projector or phone has. */
+export function Icon({ name, className = "h-[1em] w-[1em]" }: { name: keyof typeof ICON_PATHS; className?: string }) {
+  return (
+    <svg viewBox="0 0 24 24" aria-hidden="true" className={`inline-block shrink-0 ${className}`} fill="none" stroke="currentColor" strokeWidth={2.2} strokeLinecap="round" strokeLinejoin="round">
+      <path d={ICON_PATHS[name]} />
+    </svg>
+  );
+}
+
+/** A media query's answer, false on the server; for layouts that CSS alone can't switch (the neck's cell size). */
+export function useMedia(query: string) {
+  return useSyncExternalStore(
+    (change) => {
+      const list = window.matchMedia(query);
+      list.addEventListener("change", change);
+      return () => list.removeEventListener("change", change);
+    },
+    () => window.matchMedia(query).matches,
+    () => false,
+  );
+}
+
 export function Offline() {
   return (
     <span className="rounded-full bg-ink/10 px-2 text-base text-ink-soft" title="offline">
       <span aria-hidden="true">⚠ </span>offline
     </span>
+  );
+}
+
+/** Whole seconds left to answer, counting from when the note shows (local clock). */
+export function SecondsLeft({ showAt, deadline, paused }: { showAt: number; deadline: number; paused: boolean }) {
+  const now = useNow(paused ? 0 : 200);
+  const left = Math.ceil(Math.max(0, deadline - Math.max(now, showAt)) / 1000);
+  return (
+    <p className="font-display leading-none">
+      <span className="text-7xl font-semibold tabular-nums">{left}</span> <span className="text-3xl">s left</span>
+    </p>
   );
 }
 
@@ -32,10 +76,7 @@ export function Countdown({ showAt, deadline, paused }: { showAt: number; deadli
   const waiting = now < showAt;
   return (
     <div aria-hidden="true" className="h-5 overflow-hidden rounded-full bg-ink/10">
-      <div
-        className={`h-full ${waiting ? "bg-sky" : left / total < 0.25 ? "bg-brick" : "bg-brass"}`}
-        style={{ width: waiting ? "100%" : `${(100 * left) / total}%` }}
-      />
+      <div className={`h-full ${waiting ? "bg-sky" : left / total < 0.25 ? "bg-brick" : "bg-brass"}`} style={{ width: waiting ? "100%" : `${(100 * left) / total}%` }} />
     </div>
   );
 }
@@ -50,24 +91,51 @@ export function useNow(everyMs: number) {
   return now;
 }
 
-/** Standings by points with the longest streaks beside them; rows glide to their new places. */
-export function StandingsBoard({ standings, big = false, highlight }: { standings: ServerMessageOf<"standings">; big?: boolean; highlight?: string }) {
+/** Playing order as it was at the last standings: kept by the stage so the next standings can glide from it. */
+export function usePreviousOrder(standings: ServerMessageOf<"standings"> | null) {
+  const [seen, setSeen] = useState<{ current: ServerMessageOf<"standings"> | null; previous?: string[] }>({ current: null });
+  // Between standings the room shows prompts (standings is null then); only a new table moves the order on.
+  if (standings && standings !== seen.current) setSeen({ current: standings, previous: seen.current?.points.map((r) => r.playerId) });
+  return seen.previous;
+}
+
+/**
+ * Standings by points with the longest streaks beside them. Given the order of the last standings, rows first
+ * stand as they were, then glide to their new places, so the class sees who moved up.
+ */
+export function StandingsBoard({ standings, big = false, highlight, previousOrder }: { standings: ServerMessageOf<"standings">; big?: boolean; highlight?: string; previousOrder?: string[] }) {
   const reduce = useReducedMotion();
-  const rows = big ? standings.points.slice(0, 10) : standings.points;
+  const [settled, setSettled] = useState(!previousOrder);
+  useEffect(() => {
+    if (settled) return;
+    const t = window.setTimeout(() => setSettled(true), reduce ? 0 : 900);
+    return () => window.clearTimeout(t);
+  }, [settled, reduce]);
+  const before = (id: string) => {
+    const i = previousOrder?.indexOf(id) ?? -1;
+    return i === -1 ? Infinity : i;
+  };
+  const ordered = settled ? standings.points : [...standings.points].sort((a, b) => before(a.playerId) - before(b.playerId));
+  const rows = big ? ordered.slice(0, 10) : ordered;
+  const heading = `font-display font-semibold ${big ? "text-5xl" : "text-2xl"}`;
   return (
     <section className={`grid gap-6 ${big ? "lg:grid-cols-[2fr_1fr]" : ""}`}>
       <div>
-        <h2 className={`font-display font-semibold ${big ? "text-4xl" : "text-2xl"}`}>{standings.final ? "Final standings" : "Standings"}</h2>
+        <h2 className={heading}>{standings.final ? "Final standings" : "Standings"}</h2>
         <ol className="mt-3 space-y-2">
           {rows.map((r) => (
             <motion.li
               key={r.playerId}
               layout={!reduce}
-              className={`flex items-center gap-4 rounded-2xl px-4 py-2 ${r.playerId === highlight ? "bg-brass/30 ring-2 ring-brass" : "bg-white"} ${big ? "text-3xl" : "text-lg"}`}
+              transition={{ type: "spring", stiffness: 260, damping: 30 }}
+              className={`flex items-center gap-4 rounded-2xl px-4 ${r.playerId === highlight ? "bg-brass/30 ring-2 ring-brass" : "bg-white"} ${big ? "py-1 text-4xl" : "py-2 text-lg"}`}
             >
-              <span className="w-12 font-display font-semibold text-ink-soft">{r.rank}.</span>
-              <span className="flex-1">{r.nickname}</span>
-              <span className={`font-display font-semibold ${big ? "text-5xl" : ""}`}>{r.points}</span>
+              <span className={`font-display font-semibold text-ink-soft tabular-nums ${big ? "w-24 text-5xl" : "w-10"}`}>{r.rank}.</span>
+              <span className="min-w-0 flex-1 truncate">
+                {r.nickname}
+                {r.playerId === highlight ? <span className="ml-2 text-base font-medium">(you)</span> : null}
+              </span>
+              <span className={`font-display font-semibold tabular-nums ${big ? "text-6xl" : ""}`}>{r.points}</span>
             </motion.li>
           ))}
         </ol>
@@ -75,30 +143,31 @@ export function StandingsBoard({ standings, big = false, highlight }: { standing
       <div>
         {standings.teams.length > 0 ? (
           <>
-            <h2 className={`font-display font-semibold ${big ? "text-4xl" : "text-2xl"}`}>Teams</h2>
+            <h2 className={heading}>Teams</h2>
             <ol className="mt-3 space-y-2">
               {standings.teams.map((t) => (
-                <li key={t.team} className={`flex justify-between rounded-2xl bg-white px-4 py-2 ${big ? "text-3xl" : ""}`}>
+                <li key={t.team} className={`flex items-center justify-between rounded-2xl bg-white px-4 py-2 ${big ? "text-3xl" : ""}`}>
                   <span>
                     <span aria-hidden="true">⚑ </span>
                     {t.name} ({t.members})
                   </span>
-                  <strong>{t.points}</strong>
+                  <strong className={`font-display tabular-nums ${big ? "text-5xl" : ""}`}>{t.points}</strong>
                 </li>
               ))}
             </ol>
           </>
         ) : null}
-        <h2 className={`mt-4 font-display font-semibold ${big ? "text-4xl" : "text-2xl"}`}>Longest streaks</h2>
+        <h2 className={`${standings.teams.length > 0 ? "mt-4 " : ""}${heading}`}>Longest streaks</h2>
         <ol className="mt-3 space-y-2">
           {standings.streaks.slice(0, 5).map((s) => (
-            <li key={s.playerId} className={`flex justify-between rounded-2xl bg-white px-4 py-2 ${big ? "text-2xl" : ""}`}>
-              <span>{s.nickname}</span>
-              <span>
-                <span aria-hidden="true">🔥 </span>
+            <motion.li key={s.playerId} layout={!reduce} className={`flex items-center justify-between rounded-2xl bg-white px-4 py-2 ${big ? "text-3xl" : ""}`}>
+              <span className="min-w-0 truncate">{s.nickname}</span>
+              <span className={`flex items-center gap-1 font-display font-semibold tabular-nums ${big ? "text-5xl" : ""}`}>
+                <Icon name="streak" className="h-[0.8em] w-[0.8em] text-brass" />
                 {s.longestStreak}
+                <span className="sr-only"> in a row</span>
               </span>
-            </li>
+            </motion.li>
           ))}
         </ol>
       </div>

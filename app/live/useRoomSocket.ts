@@ -62,7 +62,11 @@ type Action =
   | { type: "offset"; offsetMs: number };
 
 function view(state: LiveView, action: Action): LiveView {
-  if (action.type === "connection") return { ...state, connection: action.connection, closedReason: action.reason ?? state.closedReason };
+  if (action.type === "connection") {
+    // After `ended` the server closes every socket as "room gone": that is the normal finish, not news to show.
+    const reason = state.ended ? null : (action.reason ?? state.closedReason);
+    return { ...state, connection: action.connection, closedReason: reason };
+  }
   if (action.type === "offset") return { ...state, offsetMs: action.offsetMs };
   const m = action.message;
   switch (m.type) {
@@ -84,7 +88,8 @@ function view(state: LiveView, action: Action): LiveView {
     case "reveal":
       return { ...state, reveal: m };
     case "standings":
-      return { ...state, standings: m };
+      // Standings replace the reveal on screen.
+      return { ...state, standings: m, reveal: null };
     case "paused":
       return { ...state, paused: true };
     case "resumed":

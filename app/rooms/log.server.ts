@@ -4,15 +4,19 @@ import { roomEvents, rooms } from "~/db/schema";
 import { replay, type RoomRecord, type RoomState } from "~/game/room";
 import type { RoomConfig } from "~/game/roomConfig";
 
-/** A room rebuilt from SQLite: its config and every persisted record, replayed through the reducer. */
-export async function loadRoomState(db: Db, roomId: string): Promise<{ state: RoomState; seq: number } | undefined> {
+/**
+ * A room rebuilt from SQLite: its config and every persisted record, replayed through the reducer.
+ * `seq` is the last sequence number used and `lastAt` the server time of the last record (null
+ * when nothing was recorded yet).
+ */
+export async function loadRoomState(db: Db, roomId: string): Promise<{ state: RoomState; seq: number; lastAt: number | null } | undefined> {
   const [room] = await db.select({ config: rooms.config }).from(rooms).where(eq(rooms.id, roomId));
   if (!room) return undefined;
   const rows = await db
-    .select({ event: roomEvents.event })
+    .select({ seq: roomEvents.seq, at: roomEvents.at, event: roomEvents.event })
     .from(roomEvents)
     .where(eq(roomEvents.roomId, roomId))
     .orderBy(asc(roomEvents.seq));
-  const records = rows.map((r) => r.event as RoomRecord);
-  return { state: replay(room.config as RoomConfig, records), seq: records.length };
+  const last = rows.at(-1);
+  return { state: replay(room.config as RoomConfig, rows.map((r) => r.event as RoomRecord)), seq: last?.seq ?? 0, lastAt: last?.at ?? null };
 }

@@ -6,10 +6,12 @@ import type { Db } from "~/db/client.server";
 import { rooms } from "~/db/schema";
 import { newRoomCode } from "~/game/roomCode";
 import { drawnPrompts, roomConfig, tunePrompts, type RoomConfig } from "~/game/roomConfig";
-import { builtinTune } from "~/tunes/builtin";
-import { readingSpecOf, type QuickSetup } from "./setup";
-
-const MODE_TITLES = { sprint: "Sprint", "tune-walk": "Tune walk", "full-neck": "Full neck", teams: "Teams" } as const;
+import type { SpotMap } from "~/music/positions";
+import { classSpotMap } from "~/reading/spotMaps.server";
+import { MODE_NAMES, readingSpecOf } from "~/reading/spec";
+import type { Tune } from "~/tunes/builtin";
+import { barRange, findTune } from "~/tunes/tunes.server";
+import { quickSetupSchema, withSpotMap, type QuickSetup } from "./setup";
 
 /**
  * The stage's credential for its room: derived from the server secret, so nothing secret is
@@ -25,8 +27,11 @@ export function hostKeyMatches(secret: string, roomId: string, key: string) {
   return given.length === expected.length && timingSafeEqual(given, expected);
 }
 
-/** Builds the room's config from the quick setup (throws RoomConfigError / MusicError with a clear message). */
-export function configFromSetup(setup: QuickSetup, code: string, seed = randomInt(2 ** 31)): RoomConfig {
+/**
+ * Builds the room's config from the quick setup (throws RoomConfigError / MusicError with a clear message).
+ * With a class's home-spot map, every prompt's home spot is the class's.
+ */
+export function configFromSetup(setup: QuickSetup, code: string, seed = randomInt(2 ** 31), spotMap?: SpotMap, tune?: Tune): RoomConfig {
   const spec = readingSpecOf(setup);
   const settings = {
     code,
@@ -36,22 +41,35 @@ export function configFromSetup(setup: QuickSetup, code: string, seed = randomIn
     teams: setup.mode === "teams" ? { count: setup.teams, balance: "points" as const } : null,
   };
   if (setup.mode === "tune-walk") {
-    const tune = builtinTune(setup.tuneId ?? "");
     if (!tune) throw new RangeError("That tune doesn't exist.");
-    const prompts = tunePrompts({ ...spec, keyFifths: tune.keyFifths }, tune.notes.map((n) => n.pitch));
-    return roomConfig(spec, { ...settings, tuneName: tune.title }, prompts);
+    const notes = barRange(tune, setup.fromBar ?? 1, setup.toBar ?? Infinity);
+    if (notes.length === 0) throw new RangeError(`Bars ${setup.fromBar ?? 1}–${setup.toBar ?? "end"} of “${tune.title}” have no notes.`);
+    const prompts = tunePrompts({ ...spec, keyFifths: tune.keyFifths }, notes.map((n) => n.pitch));
+    return roomConfig(spec, { ...settings, tuneName: tune.title }, withSpotMap(prompts, spotMap, spec.frets));
   }
-  return roomConfig(spec, settings, drawnPrompts(spec, setup.prompts, seed));
+  return roomConfig(spec, settings, withSpotMap(drawnPrompts(spec, setup.prompts, seed), spotMap, spec.frets));
 }
 
 const isCodeClash = (error: unknown) =>
   /UNIQUE constraint failed: rooms\.code/.test(String((error as { cause?: unknown }).cause ?? error));
 
-/** Opens a room; a room code clash with another open room (rare: 19⁶ codes) draws a new code. */
-export async function createRoom(db: Db, host: SessionUser, setup: QuickSetup) {
+/** Where a round came from: a saved reading set (linked for the class review) or a ready-made one (named). */
+export interface RoomSource {
+  readingSetId?: string | null;
+  name?: string;
+}
+
+/**
+ * Opens a room; a room code clash with another open room (rare: 19⁶ codes) draws a new code. The setup is kept
+ * beside the game's config (the game ignores it) so "Host this again" can draw afresh from the same settings.
+ */
+export async function createRoom(db: Db, host: SessionUser, setup: QuickSetup, source: RoomSource = {}) {
+  const spotMap = setup.classId ? await classSpotMap(db, setup.classId, setup.position, setup.tuning) : undefined;
+  const tune = setup.mode === "tune-walk" ? await findTune(db, host.orgId, setup.tuneId ?? "") : undefined;
+  const title = source.name ? `${source.name} · ${MODE_NAMES[setup.mode]}` : `${MODE_NAMES[setup.mode]} · position ${setup.position}`;
   for (let attempt = 0; ; attempt++) {
     const code = newRoomCode();
-    const config = configFromSetup(setup, code);
+    const config = configFromSetup(setup, code, undefined, spotMap, tune);
     const id = nanoid();
     try {
       await db.insert(rooms).values({
@@ -60,10 +78,11 @@ export async function createRoom(db: Db, host: SessionUser, setup: QuickSetup) {
         orgId: host.orgId,
         hostUserId: host.id,
         classId: setup.classId || null,
-        title: `${MODE_TITLES[setup.mode]} · position ${setup.position}`,
+        readingSetId: source.readingSetId ?? null,
+        title,
         mode: setup.mode,
         position: setup.position,
-        config,
+        config: { ...config, setup, sourceName: source.name ?? null },
       });
       return { id, code };
     } catch (error) {
@@ -90,4 +109,13 @@ export async function roomsHostedBy(db: Db, userId: string, limit = 20) {
     .where(eq(rooms.hostUserId, userId))
     .orderBy(desc(rooms.createdAt))
     .limit(limit);
+}
+
+/** The settings a room was opened with, to host it again with a new draw; undefined for rooms from before they were kept. */
+export function roomSetup(room: { config: unknown; readingSetId: string | null; classId: string | null }) {
+  const kept = room.config as { setup?: unknown; sourceName?: unknown };
+  const parsed = quickSetupSchema.safeParse(kept.setup);
+  if (!parsed.success) return undefined;
+  const source: RoomSource = { readingSetId: room.readingSetId, ...(typeof kept.sourceName === "string" ? { name: kept.sourceName } : {}) };
+  return { setup: { ...parsed.data, classId: room.classId ?? undefined }, source };
 }

@@ -1,64 +1,47 @@
 import { z } from "zod";
 import { MODES } from "~/game/protocol";
-import { ANSWER_MS_RANGE, TEAM_COUNT_RANGE } from "~/game/roomConfig";
-import type { ReadingSpec } from "~/music/pools";
-import { MAX_FRETS, MIN_FRETS } from "~/music/tuning";
+import { TEAM_COUNT_RANGE, type PromptNote } from "~/game/roomConfig";
+import { homeSpotFor, type SpotMap } from "~/music/positions";
+import { readingPreset } from "~/reading/presets";
+import { poolCheck, readingSetFields, type ReadingSetSpec } from "~/reading/spec";
 
-export const PROMPT_COUNT_RANGE = [3, 60] as const;
+// An empty box means "from the start" / "to the end".
+const optionalBar = z.preprocess((v) => (v === "" ? undefined : v), z.coerce.number().int("A whole bar number.").min(1, "Bars count from 1.").max(9999).optional());
 
-const checkbox = z.preprocess((v) => v === "on" || v === "true" || v === true, z.boolean());
-
-/** The quick setup form for hosting a round; every limit is also a clear message. */
+/** The quick setup form for hosting a round: a reading set not saved yet, plus what only a round needs. */
 export const quickSetupSchema = z
   .object({
     mode: z.enum(MODES, "Choose a mode."),
-    position: z.coerce.number().int().min(1, "Position 1 to 12.").max(12, "Position 1 to 12."),
-    tuning: z.string().min(1).max(80),
-    frets: z.coerce.number().int().min(MIN_FRETS).max(MAX_FRETS).default(15),
-    keyFifths: z.coerce.number().int().min(-7).max(7),
-    accidentals: z.enum(["naturals", "key", "chromatic"]),
-    ledgerLines: checkbox,
-    homeOnly: checkbox,
-    prompts: z.coerce
-      .number()
-      .int("A whole number of notes.")
-      .min(PROMPT_COUNT_RANGE[0], `At least ${PROMPT_COUNT_RANGE[0]} notes.`)
-      .max(PROMPT_COUNT_RANGE[1], `At most ${PROMPT_COUNT_RANGE[1]} notes.`),
-    seconds: z.coerce
-      .number()
-      .int()
-      .min(ANSWER_MS_RANGE[0] / 1000, `At least ${ANSWER_MS_RANGE[0] / 1000} seconds.`)
-      .max(ANSWER_MS_RANGE[1] / 1000, `At most ${ANSWER_MS_RANGE[1] / 1000} seconds.`),
+    ...readingSetFields,
     teams: z.coerce.number().int().min(TEAM_COUNT_RANGE[0]).max(TEAM_COUNT_RANGE[1]).default(2),
     tuneId: z.string().max(64).optional(),
+    // Tune walk over part of a tune: bars from…to, inclusive.
+    fromBar: optionalBar,
+    toBar: optionalBar,
     classId: z.string().max(64).optional(),
   })
-  .refine((v) => v.mode !== "tune-walk" || Boolean(v.tuneId), { path: ["tuneId"], message: "Choose a tune for the Tune walk." });
+  .refine((v) => v.mode !== "tune-walk" || Boolean(v.tuneId), { path: ["tuneId"], message: "Choose a tune for the Tune walk." })
+  .refine((v) => !v.fromBar || !v.toBar || v.fromBar <= v.toBar, { path: ["toBar"], message: "The last bar comes after the first." })
+  .superRefine(poolCheck);
 
 export type QuickSetup = z.infer<typeof quickSetupSchema>;
 
-export const QUICK_DEFAULTS: QuickSetup = {
-  mode: "sprint",
-  position: 5,
-  tuning: "standard",
-  frets: 15,
-  keyFifths: 0,
-  accidentals: "naturals",
-  ledgerLines: false,
-  homeOnly: true,
-  prompts: 12,
-  seconds: 10,
-  teams: 2,
-};
+/** The quick form starts where the ready-made progression starts. */
+export const QUICK_DEFAULTS: QuickSetup = { ...readingPreset("ready-naturals-5")!.spec, teams: 2 };
 
-export function readingSpecOf(setup: QuickSetup): ReadingSpec {
-  return {
-    position: setup.position,
-    tuning: setup.tuning,
-    frets: setup.frets,
-    reading: "guitar",
-    keyFifths: setup.accidentals === "naturals" ? 0 : setup.keyFifths,
-    accidentals: setup.accidentals,
-    ledgerLines: setup.ledgerLines,
-  };
+/** Hosting from a reading set: the set's settings, for this class. */
+export function setupFromSet(spec: ReadingSetSpec, classId: string | undefined, teams = QUICK_DEFAULTS.teams): QuickSetup {
+  return { ...spec, teams, classId };
+}
+
+/**
+ * A class that moved some home spots reads with its own map: each prompt's home (which diagnosis and
+ * scoring go by) becomes the class's spot. A pitch the map doesn't reach, or a spot beyond this neck, keeps the default.
+ */
+export function withSpotMap(prompts: PromptNote[], map: SpotMap | undefined, frets: number): PromptNote[] {
+  if (!map) return prompts;
+  return prompts.map((p) => {
+    const spot = homeSpotFor(map, p.writtenMidi);
+    return spot && spot.fret <= frets ? { ...p, home: spot } : p;
+  });
 }

@@ -7,10 +7,11 @@ import { noteOnNeck, parseExplorerQuery, type ExplorerValues } from "~/component
 import { playSounding } from "~/components/sound";
 import { SoundControl } from "~/components/SoundControl";
 import { Staff } from "~/components/Staff";
+import { chartFrets, SpotChart } from "~/components/SpotChart";
 import { Badge, Button, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
 import { writtenMidiFor, type Spot } from "~/music/fretboard";
 import { KEYS, spellInKey, type Key } from "~/music/keys";
-import { displayPitch, displayPitchClass, parsePitch, pitchMidi, pitchToString, spokenPitch } from "~/music/pitch";
+import { displayPitch, parsePitch, pitchMidi, pitchToString, spokenPitch } from "~/music/pitch";
 import { homeSpotFor, positionWindow } from "~/music/positions";
 import { MAX_FRETS, MIN_FRETS, TUNINGS } from "~/music/tuning";
 import type { Route } from "./+types/explore";
@@ -52,10 +53,7 @@ export function loader({ request }: Route.LoaderArgs) {
       lower: neighbour(writtenMidi, -1, key),
       higher: neighbour(writtenMidi, 1, key),
       // The chart runs over the position's frets, widened for any two-fret stretch the tuning needs.
-      chartFrets: {
-        first: Math.min(w.stretchLow, ...map.spots.map((s) => s.fret)),
-        last: Math.max(w.stretchHigh, ...map.spots.map((s) => s.fret)),
-      },
+      chartFrets: chartFrets(w, map.spots),
       mapSpots: map.spots.map((s) => ({ string: s.string, fret: s.fret, label: spell(s.writtenMidi) })),
     },
   };
@@ -300,10 +298,6 @@ function ExplorerView({
 
 function HomeSpotChart({ view, leftHanded, labels }: { view: View; leftHanded: boolean; labels: boolean }) {
   const tuning = view.tuningInfo;
-  const { first, last } = view.chartFrets;
-  const frets = Array.from({ length: last - first + 1 }, (_, i) => first + i);
-  const strings = tuning.strings.map((_, i) => i + 1);
-  const at = (string: number, fret: number) => view.mapSpots.find((s) => s.string === string && s.fret === fret);
   const heading = `Home-spot map: position ${view.position}, ${tuning.name} tuning, ${view.reading === "guitar" ? "guitar reading" : "concert pitch"}`;
   return (
     <Card className="print:border-0 print:bg-white print:p-0 print:shadow-none">
@@ -331,36 +325,8 @@ function HomeSpotChart({ view, leftHanded, labels }: { view: View; leftHanded: b
           label={heading}
         />
       </div>
-      <div className="mt-4 overflow-x-auto">
-        <table className="w-full border-collapse text-center text-lg print:text-base">
-          <caption className="sr-only">{heading}: written notes by string and fret</caption>
-          <thead>
-            <tr>
-              <th scope="col" className="border border-ink/20 bg-paper-deep px-2 py-1 text-left">
-                String
-              </th>
-              {frets.map((f) => (
-                <th key={f} scope="col" className="border border-ink/20 bg-paper-deep px-2 py-1">
-                  {f === 0 ? "open" : `fret ${f}`}
-                </th>
-              ))}
-            </tr>
-          </thead>
-          <tbody>
-            {strings.map((string) => (
-              <tr key={string}>
-                <th scope="row" className="border border-ink/20 px-2 py-1 text-left font-medium">
-                  {string} ({displayPitchClass(spellInKey(tuning.strings[string - 1]!, 0))})
-                </th>
-                {frets.map((fret) => (
-                  <td key={fret} className="border border-ink/20 px-2 py-1 font-display font-semibold">
-                    {at(string, fret)?.label ?? ""}
-                  </td>
-                ))}
-              </tr>
-            ))}
-          </tbody>
-        </table>
+      <div className="mt-4">
+        <SpotChart tuning={tuning} first={view.chartFrets.first} last={view.chartFrets.last} spots={view.mapSpots} caption={heading} />
       </div>
     </Card>
   );

@@ -44,11 +44,3 @@ export async function classesFor(db: Db, user: SessionUser): Promise<ClassSummar
       : await base.innerJoin(memberships, and(eq(memberships.classId, classes.id), eq(memberships.userId, user.id)));
   return rows.sort((a, b) => a.name.localeCompare(b.name));
 }
-
-export async function schoolPeople(db: Db, orgId: string) {
-  return db
-    .select({ id: users.id, displayName: users.displayName, role: users.role, email: users.email })
-    .from(users)
-    .where(eq(users.orgId, orgId))
-    .orderBy(users.role, users.displayName);
-}

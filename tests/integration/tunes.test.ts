@@ -103,3 +103,34 @@ describe("tune uploads", () => {
     expect((await new Client(server.url).get("/teach/tunes")).status).toBe(302);
   });
 });
+
+describe("a Tune walk over an uploaded tune's bars", () => {
+  it("asks the notes of the chosen bars, in order", async () => {
+    const saved = await upload(teacher, "walk.musicxml", SCORE, "Walk test");
+    const tuneId = saved.headers.get("location")!.split("/").pop()!;
+    const res = await teacher.post("/host", {
+      intent: "quick",
+      mode: "tune-walk",
+      position: "1",
+      tuning: "standard",
+      frets: "15",
+      keyFifths: "1",
+      accidentals: "key",
+      ledgerLines: "on",
+      homeOnly: "on",
+      prompts: "12",
+      seconds: "10",
+      teams: "2",
+      tuneId,
+      fromBar: "2",
+      toBar: "2",
+      classId: "",
+    });
+    expect(res.status).toBe(302);
+    const roomId = res.headers.get("location")!.split("/").pop()!;
+    const [room] = await server.services.db.select().from((await import("~/db/schema")).rooms).where(eq((await import("~/db/schema")).rooms.id, roomId));
+    const config = room!.config as { prompts: { written: string }[]; tuneName: string };
+    expect(config.prompts.map((p) => p.written)).toEqual(["F#5", "E3"]);
+    expect(config.tuneName).toBe("Walk test");
+  });
+});

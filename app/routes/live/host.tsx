@@ -1,47 +1,82 @@
-import { Form, redirect, useNavigation } from "react-router";
+import { useState } from "react";
+import { Form, Link, redirect, useNavigation } from "react-router";
 import { requireUserWithRole } from "~/auth/guards.server";
-import { Button, Card, Field, Notice, PageTitle } from "~/components/ui";
+import { Button, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
 import { RoomConfigError } from "~/game/roomConfig";
 import { parseForm } from "~/lib/forms";
 import { KEYS } from "~/music/keys";
 import { MusicError } from "~/music/pitch";
 import { TUNINGS } from "~/music/tuning";
-import { createRoom } from "~/rooms/rooms.server";
-import { QUICK_DEFAULTS, quickSetupSchema } from "~/rooms/setup";
+import type { SessionUser } from "~/auth/users.server";
+import type { Db } from "~/db/client.server";
+import { READING_PRESETS } from "~/reading/presets";
+import { hostableSet, mayUseClass, setsFor } from "~/reading/sets.server";
+import { summarise } from "~/reading/spec";
+import { requireRoomAccess } from "~/rooms/access.server";
+import { createRoom, roomSetup, type RoomSource } from "~/rooms/rooms.server";
+import { QUICK_DEFAULTS, quickSetupSchema, setupFromSet, type QuickSetup } from "~/rooms/setup";
 import { classesFor } from "~/school/classes.server";
-import { BUILTIN_TUNES } from "~/tunes/builtin";
+import { tunesFor } from "~/tunes/tunes.server";
 import type { Route } from "./+types/host";
 
 export const meta: Route.MetaFunction = () => [{ title: "Host a round · Fretcall" }];
 
 export async function loader({ request, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
-  const classList = await classesFor(services(context).db, user);
-  const classId = new URL(request.url).searchParams.get("class");
+  const { db } = services(context);
+  const [classList, saved, tuneList] = await Promise.all([classesFor(db, user), setsFor(db, user), tunesFor(db, user.orgId)]);
+  const params = new URL(request.url).searchParams;
+  const classId = params.get("class");
+  const presets = READING_PRESETS.map((p) => ({ id: p.id, name: p.name, note: `Ready-made · step ${p.step}`, summary: summarise(p.spec), classId: null }));
+  const own = saved.filter((s) => s.spec).map((s) => ({ id: s.id, name: s.name, note: s.className ?? "Whole school", summary: s.summary, classId: s.classId }));
   return {
     classes: classList.map((c) => ({ id: c.id, name: c.name })),
     classId: classList.some((c) => c.id === classId) ? classId : (classList[0]?.id ?? ""),
+    sets: [...own, ...presets],
+    chosen: params.get("set"),
+    tunes: tuneList.map((t) => ({ id: t.id, title: t.title })),
+    // From a tune's page: "Host a Tune walk of these bars".
+    tuneWalk: params.get("mode") === "tune-walk" ? { tune: params.get("tune"), position: params.get("position"), from: params.get("from"), to: params.get("to") } : null,
   };
+}
+
+type Errors = Record<string, string | undefined>;
+
+/** Opens the room, or says in plain words why the settings don't make one. */
+async function open(db: Db, user: SessionUser, setup: QuickSetup, source?: RoomSource) {
+  if (setup.classId && !(await mayUseClass(db, user, setup.classId))) return { errors: { classId: "You don't teach that class." } as Errors };
+  try {
+    const room = await createRoom(db, user, setup, source);
+    return redirect(`/stage/${room.id}`);
+  } catch (error) {
+    if (error instanceof RoomConfigError || error instanceof MusicError || error instanceof RangeError) {
+      return { errors: { form: error.message } as Errors };
+    }
+    throw error;
+  }
 }
 
 export async function action({ request, context }: Route.ActionArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const parsed = parseForm(quickSetupSchema, await request.formData());
+  const form = await request.formData();
+  const intent = form.get("intent");
+  const classId = String(form.get("classId") ?? "") || undefined;
+  if (intent === "set") {
+    const chosen = await hostableSet(db, user, String(form.get("set") ?? ""));
+    if (!chosen) return { errors: { set: "That reading set doesn't exist or needs an edit first." } as Errors };
+    return open(db, user, setupFromSet(chosen.spec, classId), chosen.source);
+  }
+  if (intent === "again") {
+    const room = await requireRoomAccess(db, user, String(form.get("roomId") ?? ""));
+    const again = roomSetup(room);
+    if (!again) return { errors: { form: "This round was hosted before its settings were kept; set it up again below." } as Errors };
+    return open(db, user, again.setup, again.source);
+  }
+  const parsed = parseForm(quickSetupSchema, form);
   if (!parsed.ok) return { errors: parsed.errors };
-  if (parsed.data.classId && !(await classesFor(db, user)).some((c) => c.id === parsed.data.classId)) {
-    return { errors: { classId: "You don't teach that class." } };
-  }
-  try {
-    const room = await createRoom(db, user, parsed.data);
-    return redirect(`/stage/${room.id}`);
-  } catch (error) {
-    if (error instanceof RoomConfigError || error instanceof MusicError || error instanceof RangeError) {
-      return { errors: { form: error.message } };
-    }
-    throw error;
-  }
+  return open(db, user, parsed.data);
 }
 
 const MODES = [
@@ -54,20 +89,63 @@ const MODES = [
 const select = "mt-1 block min-h-11 w-full rounded-xl border-2 border-ink/20 bg-white px-3 py-2 text-lg";
 
 export default function Host({ loaderData, actionData }: Route.ComponentProps) {
-  const errors: Record<string, string | undefined> = actionData?.errors ?? {};
+  const errors: Errors = actionData?.errors ?? {};
   const busy = useNavigation().state !== "idle";
+  const [classId, setClassId] = useState(loaderData.classId ?? "");
   const d = QUICK_DEFAULTS;
+  // A set picked elsewhere (?set=…) comes first, so hosting it is one click away.
+  const sets = [...loaderData.sets].sort((a, b) => Number(b.id === loaderData.chosen) - Number(a.id === loaderData.chosen));
   return (
-    <div className="mx-auto max-w-3xl">
+    <div className="mx-auto max-w-3xl space-y-6">
       <PageTitle lead="Choose what the class reads. Students join with the room code on the class screen.">Host a round</PageTitle>
+      {errors.form ? <Notice tone="error">{errors.form}</Notice> : null}
+      <SelectField
+        label="Class"
+        name="class"
+        value={classId}
+        onChange={(e) => setClassId(e.target.value)}
+        error={errors.classId}
+        hint="Rounds for a class use the class's home-spot map and count towards its class review."
+        options={[{ value: "", label: "No class (a one-off round)" }, ...loaderData.classes.map((c) => ({ value: c.id, label: c.name }))]}
+      />
+      <section aria-labelledby="sets-heading">
+        <div className="flex flex-wrap items-baseline justify-between gap-2">
+          <h2 id="sets-heading" className="font-display text-2xl font-semibold">
+            From a reading set
+          </h2>
+          <Link to="/teach/sets" className="text-sky underline">
+            Manage reading sets
+          </Link>
+        </div>
+        {errors.set ? <Notice tone="error">{errors.set}</Notice> : null}
+        <Form method="post" className="mt-3 grid gap-3 sm:grid-cols-2">
+          <input type="hidden" name="intent" value="set" />
+          <input type="hidden" name="classId" value={classId} />
+          {sets.map((set) => (
+            <Card key={set.id} className={set.id === loaderData.chosen ? "border-2 border-teal" : ""}>
+              <p className="text-sm text-ink-soft">
+                {set.note}
+                {set.id === loaderData.chosen ? <span className="font-semibold text-ink"> · ✓ chosen</span> : null}
+              </p>
+              <h3 className="font-display text-xl font-semibold">{set.name}</h3>
+              <p className="mt-1 text-sm">{set.summary}</p>
+              <Button type="submit" name="set" value={set.id} tone="teal" disabled={busy} className="mt-3" aria-label={`Host ${set.name}`}>
+                <span aria-hidden="true">▶</span> Host this set
+              </Button>
+            </Card>
+          ))}
+        </Form>
+      </section>
+      <h2 className="font-display text-2xl font-semibold">Or a quick setup for a one-off</h2>
       <Form method="post" className="space-y-6" noValidate>
-        {errors.form ? <Notice tone="error">{errors.form}</Notice> : null}
+        <input type="hidden" name="classId" value={classId} />
+        {errors.pool ? <Notice tone="error">{errors.pool}</Notice> : null}
         <fieldset>
           <legend className="font-display text-xl font-semibold">Mode</legend>
           <div className="mt-2 grid gap-3 sm:grid-cols-2">
             {MODES.map((m) => (
               <label key={m.id} className="flex cursor-pointer gap-3 rounded-2xl border-2 border-ink/15 bg-white/70 p-4 has-[:checked]:border-teal has-[:checked]:bg-teal/10">
-                <input type="radio" name="mode" value={m.id} defaultChecked={m.id === d.mode} className="mt-1 h-5 w-5 accent-teal" />
+                <input type="radio" name="mode" value={m.id} defaultChecked={m.id === (loaderData.tuneWalk ? "tune-walk" : d.mode)} className="mt-1 h-5 w-5 accent-teal" />
                 <span>
                   <span className="font-display text-lg font-semibold">
                     <span aria-hidden="true">{m.icon}</span> {m.name}
@@ -81,7 +159,7 @@ export default function Host({ loaderData, actionData }: Route.ComponentProps) {
         <Card className="grid gap-4 sm:grid-cols-2">
           <label className="block">
             <span className="font-medium">Position (index finger at fret)</span>
-            <select name="position" defaultValue={d.position} className={select}>
+            <select name="position" defaultValue={loaderData.tuneWalk?.position ?? d.position} className={select}>
               {Array.from({ length: 12 }, (_, i) => i + 1).map((n) => (
                 <option key={n} value={n}>
                   Position {n}
@@ -129,8 +207,8 @@ export default function Host({ loaderData, actionData }: Route.ComponentProps) {
           </label>
           <label className="block">
             <span className="font-medium">Tune (Tune walk)</span>
-            <select name="tuneId" className={select} defaultValue={BUILTIN_TUNES[0]!.id}>
-              {BUILTIN_TUNES.map((t) => (
+            <select name="tuneId" className={select} defaultValue={loaderData.tuneWalk?.tune ?? loaderData.tunes[0]?.id}>
+              {loaderData.tunes.map((t) => (
                 <option key={t.id} value={t.id}>
                   {t.title}
                 </option>
@@ -138,19 +216,11 @@ export default function Host({ loaderData, actionData }: Route.ComponentProps) {
             </select>
             {errors.tuneId ? <span className="text-sm text-brick">✗ {errors.tuneId}</span> : null}
           </label>
+          <div className="grid grid-cols-2 gap-3">
+            <Field type="number" inputMode="numeric" name="fromBar" label="From bar" min={1} defaultValue={loaderData.tuneWalk?.from ?? ""} error={errors.fromBar} />
+            <Field type="number" inputMode="numeric" name="toBar" label="To bar" min={1} defaultValue={loaderData.tuneWalk?.to ?? ""} error={errors.toBar} />
+          </div>
           <Field type="number" inputMode="numeric" name="teams" label="Teams (Teams mode)" defaultValue={d.teams} error={errors.teams} />
-          <label className="block sm:col-span-2">
-            <span className="font-medium">Class</span>
-            <select name="classId" defaultValue={loaderData.classId ?? ""} className={select}>
-              <option value="">No class (a one-off round)</option>
-              {loaderData.classes.map((c) => (
-                <option key={c.id} value={c.id}>
-                  {c.name}
-                </option>
-              ))}
-            </select>
-            {errors.classId ? <span className="text-sm text-brick">✗ {errors.classId}</span> : null}
-          </label>
         </Card>
         <Button type="submit" tone="teal" disabled={busy} className="w-full text-xl">
           {busy ? "Opening the room…" : "Open the room"}

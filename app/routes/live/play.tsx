@@ -5,9 +5,13 @@ import { parseRoomCode } from "~/game/roomCode";
 import type { RoomConfig } from "~/game/roomConfig";
 import { Pad } from "~/live/Pad";
 import { openRoomByCode } from "~/rooms/rooms.server";
+import { IMMERSIVE } from "~/components/AppShell";
 import type { Route } from "./+types/play";
 
 export const meta: Route.MetaFunction = () => [{ title: "Fretcall pad" }];
+
+// The class screen and the phone need every pixel; the site menu would only be tapped by accident.
+export const handle = IMMERSIVE;
 
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const parsed = parseRoomCode(params.code);

@@ -1,10 +1,12 @@
-import { data, Link } from "react-router";
+import { data, Form, Link } from "react-router";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { buttonClass, Card, PageTitle } from "~/components/ui";
 import { services } from "~/context";
+import { Icon } from "~/live/parts";
 import { displayPitch, parsePitch } from "~/music/pitch";
 import { requireRoomAccess } from "~/rooms/access.server";
 import { roundResults } from "~/rooms/results.server";
+import { roomSetup } from "~/rooms/rooms.server";
 import type { Route } from "./+types/results";
 
 export const meta: Route.MetaFunction = () => [{ title: "Round results · Fretcall" }];
@@ -15,7 +17,9 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const room = await requireRoomAccess(db, user, params.roomId);
   const results = await roundResults(db, room.id);
   if (!results) throw data({ error: "No such round." }, { status: 404 });
-  return { room: { id: room.id, title: room.title, createdAt: room.createdAt.toISOString() }, ...results };
+  // Same settings, same reading set, a new draw: one click for the next class.
+  const canHostAgain = roomSetup(room) !== undefined;
+  return { room: { id: room.id, title: room.title, createdAt: room.createdAt.toISOString() }, canHostAgain, ...results };
 }
 
 const pct = (x: number) => `${Math.round(x * 100)} %`;
@@ -62,7 +66,7 @@ export default function Results({ loaderData: r }: Route.ComponentProps) {
               <li key={s.playerId} className="flex justify-between border-t border-ink/10 py-2">
                 <span>{s.nickname}</span>
                 <span className="font-semibold">
-                  <span aria-hidden="true">🔥 </span>
+                  <Icon name="streak" className="mr-1 h-[1em] w-[1em] text-brass" />
                   {s.longestStreak} in a row
                 </span>
               </li>
@@ -78,7 +82,7 @@ export default function Results({ loaderData: r }: Route.ComponentProps) {
               <th className="py-1">Prompt</th>
               <th>Note</th>
               <th className="text-right">Right</th>
-              <th>Mistakes</th>
+              <th className="pl-4">Mistakes</th>
             </tr>
           </thead>
           <tbody>
@@ -100,9 +104,20 @@ export default function Results({ loaderData: r }: Route.ComponentProps) {
           </tbody>
         </table>
       </Card>
-      <Link to="/host" className={buttonClass("teal")}>
-        Host another round
-      </Link>
+      <div className="flex flex-wrap gap-3">
+        {r.canHostAgain ? (
+          <Form method="post" action="/host">
+            <input type="hidden" name="intent" value="again" />
+            <input type="hidden" name="roomId" value={r.room.id} />
+            <button type="submit" className={buttonClass("teal")}>
+              <span aria-hidden="true">↻</span> Host this again
+            </button>
+          </Form>
+        ) : null}
+        <Link to="/host" className={buttonClass("ghost")}>
+          Host another round
+        </Link>
+      </div>
     </div>
   );
 }

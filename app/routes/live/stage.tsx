@@ -5,9 +5,13 @@ import type { RoomConfig } from "~/game/roomConfig";
 import { Stage } from "~/live/Stage";
 import { requireRoomAccess } from "~/rooms/access.server";
 import { hostKeyFor } from "~/rooms/rooms.server";
+import { IMMERSIVE } from "~/components/AppShell";
 import type { Route } from "./+types/stage";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Room ${data?.code ?? ""} · Fretcall stage` }];
+
+// The class screen and the phone need every pixel; the site menu would only be tapped by accident.
+export const handle = IMMERSIVE;
 
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);

@@ -32,14 +32,26 @@ export default function TeacherDashboard({ loaderData }: Route.ComponentProps) {
           {loaderData.classes.map((c) => (
             <li key={c.id}>
               <Card>
-                <h2 className="font-display text-2xl font-semibold">{c.name}</h2>
+                <h2 className="font-display text-2xl font-semibold">
+                  <Link to={`/teach/classes/${c.id}`} className="underline decoration-brass">
+                    {c.name}
+                  </Link>
+                </h2>
                 <p className="mt-1 text-ink-soft">
                   {c.students} {c.students === 1 ? "student" : "students"}
                   {c.teachers ? ` · taught by ${c.teachers}` : ""}
                 </p>
-                <Link to={`/host?class=${c.id}`} className={buttonClass("teal", "mt-3")}>
-                  ▶ Host a round
-                </Link>
+                <div className="mt-3 flex flex-wrap items-center gap-3">
+                  <Link to={`/host?class=${c.id}`} className={buttonClass("teal")}>
+                    ▶ Host a round
+                  </Link>
+                  <Link to={`/teach/classes/${c.id}/maps`} className="underline decoration-brass">
+                    Home-spot maps
+                  </Link>
+                  <Link to={`/teach/classes/${c.id}/review`} className="underline decoration-brass">
+                    Class review
+                  </Link>
+                </div>
               </Card>
             </li>
           ))}

@@ -1,0 +1,107 @@
+import { describe, expect, it } from "vitest";
+import { BUILTIN_TUNES } from "~/tunes/builtin";
+import { beatMs, gradeOf, scoreTaps, timeline } from "./rhythm";
+
+const n = (pitch: string, beats: number, bar: number) => ({ pitch, beats, bar });
+const lantern = BUILTIN_TUNES.find((t) => t.id === "lantern-walk")!;
+
+describe("the timeline", () => {
+  it("tempo 90: a beat is 60 000 / 90 = 666.7 ms, and the tune starts after one bar of count-in", () => {
+    expect(beatMs(90)).toBeCloseTo(666.667, 3);
+    // Lantern Walk, 4/4, bar 1 "E4:1 G4:1 A4:1 G4:1", bar 2 "C5:2 B4:1 A4:1".
+    // Count-in: 4 beats × 666.7 = 2666.7 ms. Then each onset is the one before plus its length:
+    //   E4 2666.7, G4 3333.3, A4 4000.0, G4 4666.7, C5 5333.3 (bar 2 starts at 8 × 666.7),
+    //   B4 5333.3 + 2 × 666.7 = 6666.7 (C5 lasts two beats), A4 7333.3.
+    const t = timeline(lantern.notes, 4, 90);
+    expect(t.onsets.slice(0, 7).map(Math.round)).toEqual([2667, 3333, 4000, 4667, 5333, 6667, 7333]);
+    // 8 bars × 4 beats = 32 beats after the count-in: (4 + 32) × 666.7 = 24 000 ms.
+    expect(Math.round(t.endMs)).toBe(24_000);
+    // A click on every beat, the count-in included: 36, accented on each bar line (every 4th).
+    expect(t.clicks).toHaveLength(36);
+    expect(t.clicks.filter((c) => c.accent).map((c) => Math.round(c.at))).toEqual([0, 2667, 5333, 8000, 10667, 13333, 16000, 18667, 21333]);
+  });
+
+  it("tempo 60 in 3/4: a beat is exactly 1000 ms, the count-in 3000 ms", () => {
+    // Harbour Bells bar 1 "G4:1 B4:1 D5:1", bar 2 "F#5:2 E5:1": onsets 3000, 4000, 5000, 6000, then 6000 + 2000.
+    const harbour = BUILTIN_TUNES.find((t) => t.id === "harbour-bells")!;
+    expect(timeline(harbour.notes, 3, 60).onsets.slice(0, 5)).toEqual([3000, 4000, 5000, 6000, 8000]);
+  });
+
+  it("a short first bar is a pickup: it ends on the next bar line, inside the count-in", () => {
+    // 4/4 at 120 bpm: a beat is 60 000 / 120 = 500 ms, the count-in 4 × 500 = 2000 ms.
+    // Pickup of one beat (bar 0: G4:1) lands on the count-in's fourth beat: (4 − 1) × 500 = 1500 ms;
+    // bar 1 (C5:4) starts on the bar line at 2000 ms.
+    expect(timeline([n("G4", 1, 0), n("C5", 4, 1)], 4, 120).onsets).toEqual([1500, 2000]);
+  });
+
+  it("a bar that does not fill up leaves its rest at the end; a skipped bar number is a bar of rest", () => {
+    // 4/4 at 120 bpm (500 ms a beat). Bar 1: E4:4 → 2000. Bar 2: C5:2 G4:1 (a beat of rest after) → 4000, 5000.
+    // Bar 3 starts on its bar line: (4 + 8) × 500 = 6000. Bar 4 is all rest, so bar 5's A4 is at (4 + 16) × 500 = 10 000.
+    const notes = [n("E4", 4, 1), n("C5", 2, 2), n("G4", 1, 2), n("E4", 4, 3), n("A4", 1, 5)];
+    expect(timeline(notes, 4, 120).onsets).toEqual([2000, 4000, 5000, 6000, 10_000]);
+  });
+
+  it("refuses a tempo outside 40–160 bpm and a tune without notes", () => {
+    expect(() => beatMs(20)).toThrow(/40 to 160/);
+    expect(() => timeline([], 4, 90)).toThrow(/no notes/);
+  });
+});
+
+describe("scoring taps", () => {
+  it.each([
+    // offset = tap − expected; ±80 on time, ±160 close, else early/late
+    [0, "on-time"],
+    [80, "on-time"],
+    [-81, "close"],
+    [160, "close"],
+    [-161, "early"],
+    [250, "late"],
+  ] as const)("an offset of %i ms is %s", (offset, grade) => expect(gradeOf(offset)).toBe(grade));
+
+  it("a hand-worked pass: on time, close, late, early and missed, with the score", () => {
+    // Lantern Walk bar 1 and 2 only, at 90 bpm: onsets 2666.7, 3333.3, 4000, 4666.7, 5333.3, 6666.7, 7333.3 (above).
+    const notes = lantern.notes.slice(0, 7);
+    const taps = [
+      2700, //   E4: +33.3 → on time
+      3450, //   G4: +116.7 → close
+      4200, //   A4: +200 → late (window: half the 666.7 ms gap = 333.3 ms, capped at 400)
+      4400, //   G4: −266.7 → early
+      //         C5: no tap within ±333.3 of 5333.3 → missed
+      6650, //   B4: −16.7 → on time
+      7333, //   A4: −0.3 → on time
+      9000, //   matches nothing (the last note's window ends at 7333.3 + 333.3) → extra
+    ];
+    const result = scoreTaps(notes, 4, 90, taps);
+    expect(result.notes.map((r) => [r.grade, r.offsetMs])).toEqual([
+      ["on-time", 33],
+      ["close", 117],
+      ["late", 200],
+      ["early", -267],
+      ["missed", null],
+      ["on-time", -17],
+      ["on-time", 0],
+    ]);
+    expect(result.extraTaps).toBe(1);
+    // Points: 3 on time × 1 + 1 close × ½ − 1 extra × ½ = 3; 3 ÷ 7 notes = 42.9 % → 43.
+    expect(result.score).toBe(43);
+    // Mean of the six matched offsets: (33.3 + 116.7 + 200 − 266.7 − 16.7 − 0.3) ÷ 6 = 66.3 ÷ 6 = 11.05 → 11.
+    expect(result.meanOffsetMs).toBe(11);
+  });
+
+  it("a perfect pass scores 100; no taps score 0; mashing the button cannot score well", () => {
+    const notes = lantern.notes.slice(0, 4);
+    const { onsets } = timeline(notes, 4, 90);
+    expect(scoreTaps(notes, 4, 90, onsets).score).toBe(100);
+    expect(scoreTaps(notes, 4, 90, []).score).toBe(0);
+    // A tap every 50 ms from the first click to past the end: 4 near-perfect matches, but about 90 extras.
+    const mash = Array.from({ length: 100 }, (_, i) => i * 50);
+    expect(scoreTaps(notes, 4, 90, mash).score).toBe(0);
+  });
+
+  it("each tap serves one note only", () => {
+    // Two notes 500 ms apart (120 bpm, 4/4: onsets 2000 and 2500); one tap at 2250 is exactly halfway.
+    // It goes to the first note (late by 250 ms, window 250) and the second is missed.
+    const result = scoreTaps([n("C5", 1, 1), n("D5", 3, 1)], 4, 120, [2250]);
+    expect(result.notes.map((r) => r.grade)).toEqual(["late", "missed"]);
+  });
+});

@@ -1,0 +1,167 @@
+/**
+ * The rhythm pass, pure: when each note of a tune should be played at a tempo, and how a student's taps compare.
+ * Times are milliseconds from the first click of the count-in.
+ *
+ * Timeline:
+ * - A beat lasts 60 000 / bpm ms (a beat is the tune's `beats` unit, a quarter note in the built-in tunes).
+ * - The count-in is one bar: `beatsPerBar` clicks at 0, 1, … beats; the tune's first full bar starts right after,
+ *   at beatsPerBar beats. The click goes on, one per beat, until the last note has sounded.
+ * - Within a bar, notes follow each other by their `beats`. Tunes keep no rests (uploads drop them), so each bar
+ *   starts on its own bar line: a bar whose notes fill less than the bar leaves the rest at its end, and a bar
+ *   number that jumps (a bar of rest) skips whole bars. A short *first* bar, when more bars follow, is a pickup:
+ *   it ends on the bar line of the next bar, so its notes fall in the last beats of the count-in, as a band
+ *   counts a pickup in.
+ *
+ * Tolerance (fixed in ms rather than in beats, because what it absorbs — ears and touch screens — does not change
+ * with the tempo):
+ * - ON_TIME_MS = ±80 ms. Listeners usually hear two onsets under about 50 ms apart as together (from memory; the
+ *   figure recurs in the sensorimotor-synchronisation literature), and a phone's touch screen adds some tens of ms
+ *   of jitter of its own; 80 ms covers both without praising a sloppy tap. At 90 bpm it is about a 32nd note
+ *   (666.7 ms ÷ 8 = 83.3 ms).
+ * - CLOSE_MS = ±160 ms: twice that, just under a 16th note at 90 bpm (666.7 ÷ 4 = 166.7 ms). Half credit.
+ * - Beyond that, up to MATCH_WINDOW_MS = 400 ms (and never more than halfway to the neighbouring note), a tap is
+ *   "early" or "late" by its signed offset; no tap in the window is "missed". Each note takes the nearest tap in
+ *   its window; taps matched to no note are "extra".
+ * - Score = (on time × 1 + close × ½ − extra × ½) ÷ notes, as a whole percentage, never below 0: mashing the
+ *   button cannot score well.
+ */
+import type { TuneNote } from "~/tunes/builtin";
+
+export const ON_TIME_MS = 80;
+export const CLOSE_MS = 160;
+export const MATCH_WINDOW_MS = 400;
+export const TEMPO_RANGE = [40, 160] as const;
+export const DEFAULT_TEMPO = 72;
+
+export class RhythmError extends Error {}
+
+export function beatMs(bpm: number): number {
+  if (!Number.isFinite(bpm) || bpm < TEMPO_RANGE[0] || bpm > TEMPO_RANGE[1]) {
+    throw new RhythmError(`Tempo must be ${TEMPO_RANGE[0]} to ${TEMPO_RANGE[1]} beats per minute, not ${String(bpm)}.`);
+  }
+  return 60_000 / bpm;
+}
+
+export interface Timeline {
+  beatMs: number;
+  /** Expected onset of each note, in tune order. */
+  onsets: number[];
+  /** Every click: the count-in, then each beat until the last note ends. `accent` marks a bar line. */
+  clicks: { at: number; accent: boolean }[];
+  /** When the last note ends. */
+  endMs: number;
+}
+
+/** Onsets in beats from the start of the first full bar (a pickup's are negative). */
+function onsetBeats(notes: readonly TuneNote[], beatsPerBar: number): { beats: number[]; end: number } {
+  const firstBar = notes[0]!.bar;
+  const firstBarBeats = notes.filter((n) => n.bar === firstBar).reduce((sum, n) => sum + n.beats, 0);
+  const pickup = firstBarBeats < beatsPerBar && notes.some((n) => n.bar !== firstBar);
+  let barStart = pickup ? -firstBarBeats : 0;
+  let bar = firstBar;
+  let cursor = barStart;
+  const beats = notes.map((n) => {
+    if (n.bar !== bar) {
+      // The next bar line is 0 after a pickup, else one bar on; skipped bar numbers are bars of rest. A bar
+      // overfilled by a bad upload pushes the next one back rather than overlapping it.
+      const nextLine = pickup && bar === firstBar ? 0 : barStart + beatsPerBar;
+      barStart = Math.max(nextLine + (n.bar - bar - 1) * beatsPerBar, cursor);
+      bar = n.bar;
+      cursor = barStart;
+    }
+    const at = cursor;
+    cursor += n.beats;
+    return at;
+  });
+  return { beats, end: cursor };
+}
+
+export function checkTune(notes: readonly TuneNote[], beatsPerBar: number) {
+  if (!Number.isInteger(beatsPerBar) || beatsPerBar < 1 || beatsPerBar > 16) {
+    throw new RhythmError(`A bar has 1 to 16 beats, not ${String(beatsPerBar)}.`);
+  }
+  if (!Array.isArray(notes) || notes.length === 0) throw new RhythmError("The tune has no notes.");
+  notes.forEach((n, i) => {
+    if (!(n.beats > 0) || !Number.isFinite(n.beats)) throw new RhythmError(`Note ${i + 1} has no length.`);
+    if (!Number.isInteger(n.bar) || (i > 0 && n.bar < notes[i - 1]!.bar)) {
+      throw new RhythmError(`Note ${i + 1} has a bar number out of order.`);
+    }
+  });
+}
+
+export function timeline(notes: readonly TuneNote[], beatsPerBar: number, bpm: number): Timeline {
+  checkTune(notes, beatsPerBar);
+  const beat = beatMs(bpm);
+  const { beats, end } = onsetBeats(notes, beatsPerBar);
+  // Time 0 is the first count-in click, one bar before the first full bar.
+  const toMs = (b: number) => (beatsPerBar + b) * beat;
+  const clicks: Timeline["clicks"] = [];
+  for (let b = -beatsPerBar; b < end; b++) clicks.push({ at: toMs(b), accent: (b + beatsPerBar) % beatsPerBar === 0 });
+  return { beatMs: beat, onsets: beats.map(toMs), clicks, endMs: toMs(end) };
+}
+
+export type Grade = "on-time" | "close" | "early" | "late" | "missed";
+export const GRADE_WORDS: Record<Grade, string> = { "on-time": "on time", close: "close", early: "early", late: "late", missed: "missed" };
+
+export interface NoteResult {
+  index: number;
+  pitch: string;
+  expectedMs: number;
+  tapMs: number | null;
+  /** tap − expected, rounded: negative is early. */
+  offsetMs: number | null;
+  grade: Grade;
+}
+
+export interface RhythmScore {
+  notes: NoteResult[];
+  extraTaps: number;
+  /** Whole percent, 0–100. */
+  score: number;
+  /** Mean offset of the matched taps: a steady +120 ms may be the headphones' delay rather than the hand. */
+  meanOffsetMs: number | null;
+  counts: Record<Grade, number>;
+}
+
+export function gradeOf(offset: number): Grade {
+  const size = Math.abs(offset);
+  if (size <= ON_TIME_MS) return "on-time";
+  if (size <= CLOSE_MS) return "close";
+  return offset < 0 ? "early" : "late";
+}
+
+/** Scores taps (ms from the first count-in click, any order) against the tune's onsets at this tempo. */
+export function scoreTaps(notes: readonly TuneNote[], beatsPerBar: number, bpm: number, taps: readonly number[]): RhythmScore {
+  const { onsets } = timeline(notes, beatsPerBar, bpm);
+  if (!Array.isArray(taps) || taps.some((t) => !Number.isFinite(t))) throw new RhythmError("Every tap must be a time in milliseconds.");
+  const sorted = [...taps].sort((a, b) => a - b);
+  const used = new Set<number>();
+  const results = onsets.map((expected, i): NoteResult => {
+    const gapBefore = i > 0 ? expected - onsets[i - 1]! : Infinity;
+    const gapAfter = i < onsets.length - 1 ? onsets[i + 1]! - expected : Infinity;
+    const window = Math.min(MATCH_WINDOW_MS, gapBefore / 2, gapAfter / 2);
+    let best = -1;
+    sorted.forEach((t, j) => {
+      if (used.has(j) || Math.abs(t - expected) > window) return;
+      if (best === -1 || Math.abs(t - expected) < Math.abs(sorted[best]! - expected)) best = j;
+    });
+    const base = { index: i, pitch: notes[i]!.pitch, expectedMs: Math.round(expected) };
+    if (best === -1) return { ...base, tapMs: null, offsetMs: null, grade: "missed" };
+    used.add(best);
+    const offset = sorted[best]! - expected;
+    // `+ 0` turns a rounded −0 into 0.
+    return { ...base, tapMs: Math.round(sorted[best]!), offsetMs: Math.round(offset) + 0, grade: gradeOf(offset) };
+  });
+  const counts: Record<Grade, number> = { "on-time": 0, close: 0, early: 0, late: 0, missed: 0 };
+  for (const r of results) counts[r.grade]++;
+  const extraTaps = sorted.length - used.size;
+  const points = counts["on-time"] + 0.5 * counts.close - 0.5 * extraTaps;
+  const matched = results.filter((r) => r.offsetMs !== null);
+  return {
+    notes: results,
+    extraTaps,
+    score: Math.max(0, Math.round((100 * points) / results.length)),
+    meanOffsetMs: matched.length ? Math.round(matched.reduce((sum, r) => sum + r.offsetMs!, 0) / matched.length) : null,
+    counts,
+  };
+}

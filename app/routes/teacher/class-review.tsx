@@ -1,0 +1,213 @@
+// The class review: across every session of a class, or one session picked from the list.
+import { useEffect } from "react";
+import { data, Form, Link, useRevalidator, useSubmit } from "react-router";
+import { useEventSource } from "remix-utils/sse/react";
+import { requireUserWithRole } from "~/auth/guards.server";
+import { DataTable, type Column } from "~/components/DataTable";
+import { Badge, buttonClass, Card, Notice, PageTitle } from "~/components/ui";
+import { services } from "~/context";
+import { MISTAKE_LABELS } from "~/music/mistakes";
+import { change, day, noteName, pct, secs } from "~/review/format";
+import { HeatmapFretboard, HeatmapStaves, MistakeChart } from "~/review/ReviewParts";
+import { requireReviewClass, reviewInput } from "~/review/review.server";
+import { classReview, MIN_RANKED, RETEACH_ACCURACY_BAR, RETEACH_MIN_SAMPLE, type PlayerFigures } from "~/review/stats";
+import type { Route } from "./+types/class-review";
+
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `Class review${data ? ` · ${data.cls.name}` : ""} · Fretcall` }];
+
+export async function loader({ request, params, context }: Route.LoaderArgs) {
+  const user = await requireUserWithRole(request, context, ["teacher"]);
+  const { db } = services(context);
+  const cls = await requireReviewClass(db, user, params.classId);
+  const input = await reviewInput(db, { classId: cls.id });
+  const sessionId = new URL(request.url).searchParams.get("session") || null;
+  const chosen = sessionId === null ? undefined : input.sessions.find((s) => s.id === sessionId);
+  if (sessionId !== null && !chosen) throw data({ error: "That session is not one of this class's rounds." }, { status: 404 });
+  const latest = [...input.sessions].sort((a, b) => b.startedAt - a.startedAt)[0];
+  const neck = chosen ?? latest;
+  const live = (chosen ? [chosen] : input.sessions).find((s) => s.live)?.id ?? null;
+  return { cls, review: classReview(input, sessionId), neck: neck && { tuning: neck.tuning, frets: neck.frets, position: neck.position }, live };
+}
+
+type Row = PlayerFigures;
+
+export default function ClassReview({ loaderData: { cls, review, neck, live } }: Route.ComponentProps) {
+  const submit = useSubmit();
+  const one = review.sessionId ? review.sessions.find((s) => s.id === review.sessionId) : undefined;
+  const columns: Column<Row>[] = [
+    {
+      key: "nickname",
+      header: "Student",
+      cell: (p) => (p.userId ? <Link className="underline" to={`/teach/classes/${cls.id}/students/${p.userId}`}>{p.nickname}</Link> : <span>{p.nickname} <span className="text-sm text-ink-soft">(nickname only)</span></span>),
+    },
+    { key: "points", header: "Points", align: "right" },
+    { key: "longestStreak", header: "Longest streak", align: "right" },
+    { key: "accuracy", header: "Accuracy", align: "right", cell: (p) => `${pct(p.accuracy)} (${p.correct}/${p.answered})` },
+    { key: "medianMs", header: "Median time", align: "right", cell: (p) => secs(p.medianMs) },
+  ];
+  const exportHref = `/teach/classes/${cls.id}/export.csv${one ? `?session=${one.id}` : ""}`;
+
+  return (
+    <div className="space-y-6">
+      <PageTitle lead={one ? `${one.title} · ${day(one.startedAt)}` : `Across all ${review.sessions.length} sessions. Students who played signed in are followed from session to session.`}>
+        Class review · {cls.name}
+      </PageTitle>
+      {live ? <LiveUpdates classId={cls.id} roomId={live} /> : null}
+
+      <div className="flex flex-wrap items-end gap-3">
+        <Form method="get" className="flex flex-wrap items-end gap-2" onChange={(e) => submit(e.currentTarget, { preventScrollReset: true })}>
+          <label className="font-medium">
+            Session
+            <select name="session" defaultValue={review.sessionId ?? ""} className="mt-1 block min-h-11 rounded-xl border-2 border-ink/20 bg-white px-3 py-2 text-lg">
+              <option value="">All sessions</option>
+              {review.sessions.map((s) => (
+                <option key={s.id} value={s.id}>
+                  {day(s.startedAt)} · {s.title}
+                  {s.live ? " · live" : ""}
+                </option>
+              ))}
+            </select>
+          </label>
+          <noscript>
+            <button className={buttonClass("ghost")}>Show</button>
+          </noscript>
+        </Form>
+        <a href={exportHref} className={buttonClass("ghost")} download>
+          <span aria-hidden="true">⬇</span> Export CSV{one ? " (this session)" : " (all sessions)"}
+        </a>
+        {one ? (
+          <Link to={`/results/${one.id}`} className="underline">
+            Round results
+          </Link>
+        ) : null}
+      </div>
+
+      {review.sessions.length === 0 ? (
+        <Notice tone="info">No rounds yet for this class. Host a round for it and its results will be reviewed here.</Notice>
+      ) : (
+        <>
+          <section aria-labelledby="boards" className="space-y-3">
+            <h2 id="boards" className="font-display text-2xl font-semibold">Leaderboards</h2>
+            <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-4">
+              <Board title="Points" rows={review.leaderboards.points} value={(p) => String(p.points)} />
+              <Board title="Longest streak" rows={review.leaderboards.streak} value={(p) => `${p.longestStreak} in a row`} />
+              <Board title="Accuracy" rows={review.leaderboards.accuracy} value={(p) => pct(p.accuracy)} note={`At least ${MIN_RANKED} answers.`} />
+              <Board title="Fastest median time" rows={review.leaderboards.speed} value={(p) => secs(p.medianMs)} note={`Right-pitch answers; at least ${MIN_RANKED}.`} />
+            </div>
+            <Card>
+              <h3 className="mb-2 font-display text-xl font-semibold">Most improved since the previous session</h3>
+              {review.mostImproved.length === 0 ? (
+                <p className="text-ink-soft">Nobody to compare yet: a student needs {MIN_RANKED} answers in this session and in an earlier one.</p>
+              ) : (
+                <ol className="space-y-1">
+                  {review.mostImproved.slice(0, 5).map((m) => (
+                    <li key={m.userId} className="flex flex-wrap justify-between gap-2 border-t border-ink/10 py-1">
+                      <span>{m.nickname}</span>
+                      <span>
+                        {pct(m.before)} → {pct(m.now)} <strong>{change(m.delta)}</strong>
+                      </span>
+                    </li>
+                  ))}
+                </ol>
+              )}
+            </Card>
+            <DataTable
+              rows={review.leaderboards.points}
+              columns={columns}
+              rowKey={(p) => p.key}
+              caption="Every student"
+              filterPlaceholder="Filter students"
+              initialSort={{ key: "points", direction: "desc" }}
+              empty="No students have answered yet."
+            />
+          </section>
+
+          <section aria-labelledby="reteach">
+            <Card>
+              <h2 id="reteach" className="font-display text-2xl font-semibold">Notes to reteach</h2>
+              <p className="text-sm text-ink-soft">
+                Notes with at least {RETEACH_MIN_SAMPLE} answers: first those under {pct(RETEACH_ACCURACY_BAR)} right, lowest first; then the slowest to find.
+              </p>
+              {review.reteach.length === 0 ? (
+                <p className="mt-2 text-ink-soft">Not enough answers per note yet.</p>
+              ) : (
+                <ol className="mt-3 space-y-2">
+                  {review.reteach.map((n) => (
+                    <li key={n.written} className="flex flex-wrap items-center gap-3 border-t border-ink/10 pt-2">
+                      <span className="font-display text-xl font-semibold">{noteName(n.written)}</span>
+                      <Badge tone={n.reason === "not read yet" ? "miss" : "info"}>{n.reason}</Badge>
+                      <span>
+                        {pct(n.accuracy)} right · median {secs(n.medianMs)} · {n.answers} answers
+                        {n.commonMistake ? ` · most often: ${MISTAKE_LABELS[n.commonMistake]}` : ""}
+                      </span>
+                    </li>
+                  ))}
+                </ol>
+              )}
+            </Card>
+          </section>
+
+          <section aria-labelledby="heatmap" className="space-y-4">
+            <h2 id="heatmap" className="font-display text-2xl font-semibold">Note heatmap</h2>
+            <p className="text-ink-soft">
+              Accuracy and median time per written note. <span aria-hidden="true">✓</span> at least {pct(RETEACH_ACCURACY_BAR)} right, <span aria-hidden="true">✗</span> below.
+            </p>
+            <HeatmapStaves cells={review.heatmap} />
+            {neck ? (
+              <Card>
+                <h3 className="mb-2 font-display text-xl font-semibold">On the fretboard (position {neck.position})</h3>
+                <HeatmapFretboard cells={review.heatmap} {...neck} />
+              </Card>
+            ) : null}
+          </section>
+
+          <section aria-labelledby="mistakes">
+            <Card>
+              <h2 id="mistakes" className="font-display text-2xl font-semibold">What the answers were</h2>
+              <p className="text-sm text-ink-soft">Share of every answer given, by kind (home spot = right).</p>
+              <MistakeChart shares={review.mistakes} />
+            </Card>
+          </section>
+        </>
+      )}
+    </div>
+  );
+}
+
+function Board({ title, rows, value, note }: { title: string; rows: PlayerFigures[]; value: (p: PlayerFigures) => string; note?: string }) {
+  return (
+    <Card>
+      <h3 className="font-display text-xl font-semibold">{title}</h3>
+      {note ? <p className="text-sm text-ink-soft">{note}</p> : null}
+      {rows.length === 0 ? <p className="mt-2 text-ink-soft">No one yet.</p> : null}
+      <ol className="mt-2 space-y-1">
+        {rows.slice(0, 5).map((p, i) => (
+          <li key={p.key} className="flex justify-between gap-2 border-t border-ink/10 py-1">
+            <span>
+              {i + 1}. {p.nickname}
+            </span>
+            <span className="font-semibold">{value(p)}</span>
+          </li>
+        ))}
+      </ol>
+    </Card>
+  );
+}
+
+/** A running round: reload the figures whenever the server says answers were added. */
+function LiveUpdates({ classId, roomId }: { classId: string; roomId: string }) {
+  const revalidator = useRevalidator();
+  const url = `/teach/classes/${classId}/review/live?session=${roomId}`;
+  const count = useEventSource(url, { event: "answers" });
+  const ended = useEventSource(url, { event: "ended" });
+  useEffect(() => {
+    if (count !== null || ended !== null) void revalidator.revalidate();
+    // revalidator changes on every render; only new server news should reload.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [count, ended]);
+  return (
+    <Notice tone="info">
+      <span aria-hidden="true">● </span>A round is still running: these figures update as answers come in{count !== null ? ` (${count} so far)` : ""}.
+    </Notice>
+  );
+}

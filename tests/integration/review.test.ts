@@ -1,0 +1,157 @@
+import Papa from "papaparse";
+import { eq } from "drizzle-orm";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { createApiToken } from "~/auth/tokens.server";
+import { answers, roomPlayers, rooms } from "~/db/schema";
+import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
+import { seedDemo } from "../../server/seed";
+import { Client, startTestServer, type TestServer } from "./harness";
+import { openTestRoom } from "./rooms";
+
+let server: TestServer;
+beforeAll(async () => {
+  server = await startTestServer();
+  await seedDemo(server.services.db);
+});
+afterAll(() => server.close());
+
+const signIn = async (email: string) => {
+  const client = new Client(server.url);
+  expect((await client.post("/signin", { email, password: DEMO_PASSWORD })).status).toBe(302);
+  return client;
+};
+
+// Rafe teaches Tuesday and Thursday; Saoirse teaches Saturday; Amani is a Tuesday student.
+const roles = {
+  anonymous: undefined,
+  student: DEMO_SCHOOL.studentWithSignIn.email,
+  rafe: DEMO_SCHOOL.teachers[0].email,
+  saoirse: DEMO_SCHOOL.teachers[1].email,
+  admin: DEMO_SCHOOL.admin.email,
+} as const;
+type Who = keyof typeof roles;
+const clients: Partial<Record<Who, Client>> = {};
+beforeAll(async () => {
+  for (const [who, email] of Object.entries(roles) as [Who, string | undefined][]) clients[who] = email ? await signIn(email) : new Client(server.url);
+});
+
+describe("class review: route × role → status", () => {
+  // 302 = sent to sign in; 403 = wrong role; 404 = not one of your classes (no hint it exists).
+  const page = { anonymous: 302, student: 403, rafe: 200, saoirse: 404, admin: 200 };
+  const api = { ...page, anonymous: 401 };
+  const table: [string, Record<Who, number>][] = [
+    ["/teach/classes/demo-class-tue/review", page],
+    ["/teach/classes/demo-class-tue/review?session=demo-round-tue-2", page],
+    ["/teach/classes/demo-class-tue/students/demo-student-1", page],
+    ["/teach/classes/demo-class-tue/export.csv", page],
+    ["/teach/classes/demo-class-tue/export.csv?session=demo-round-tue-1", page],
+    ["/api/v1/classes/demo-class-tue/results", api],
+    ["/api/v1/rounds/demo-round-tue-1/results", api],
+    ["/teach/classes/demo-class-sat/review", { ...page, rafe: 404, saoirse: 200 }],
+    ["/api/v1/rounds/demo-round-sat-1/results", { ...api, rafe: 404, saoirse: 200 }],
+    // Wrong pairings are 404s, not other classes' data.
+    ["/teach/classes/demo-class-tue/review?session=demo-round-sat-1", { ...page, rafe: 404, admin: 404 }],
+    ["/teach/classes/demo-class-tue/students/demo-student-17", { ...page, rafe: 404, admin: 404 }],
+    ["/teach/classes/no-such-class/review", { ...page, rafe: 404, admin: 404 }],
+    ["/teach/classes/demo-class-tue/review/live?session=demo-round-sat-1", { ...page, rafe: 404, admin: 404 }],
+  ];
+  for (const [path, expected] of table) {
+    for (const who of Object.keys(roles) as Who[]) {
+      it(`${path} as ${who} → ${expected[who]}`, async () => {
+        const res = await clients[who]!.get(path);
+        expect(res.status).toBe(expected[who]);
+        await res.body?.cancel();
+      });
+    }
+  }
+});
+
+describe("class review pages", () => {
+  it("shows leaderboards, notes to reteach, the note heatmap and mistake shares from the demo history", async () => {
+    const html = await (await clients.rafe!.get("/teach/classes/demo-class-thu/review")).text();
+    for (const words of ["Leaderboards", "Longest streak", "Most improved since the previous session", "Notes to reteach", "Note heatmap", "What the answers were"]) expect(html).toContain(words);
+    // Thursday reads in G major and two students keep missing the F♯.
+    expect(html).toMatch(/F♯\d[\s\S]{0,400}not read yet/);
+  });
+
+  it("shows a student's progress and personal bests", async () => {
+    const html = await (await clients.rafe!.get("/teach/classes/demo-class-tue/students/demo-student-2")).text();
+    expect(html).toContain("Personal bests");
+    expect(html).toContain("Accuracy per session");
+  });
+});
+
+describe("JSON API", () => {
+  it("lists a class's sessions with summaries, with a session cookie or a Bearer token", async () => {
+    const body = await (await clients.rafe!.get("/api/v1/classes/demo-class-tue/results")).json();
+    expect(body.class).toEqual({ id: "demo-class-tue", name: "Tuesday Beginners" });
+    expect(body.sessions).toHaveLength(5);
+    expect(body.sessions[0].players[0]).toMatchObject({ userId: expect.stringMatching(/^demo-student-/), points: expect.any(Number), accuracy: expect.any(Number), longestStreak: expect.any(Number) });
+    const { token } = await createApiToken(server.services.db, DEMO_SCHOOL.teachers[0].id, "gradebook");
+    const viaToken = await fetch(new URL("/api/v1/rounds/demo-round-tue-1/results", server.url), { headers: { Authorization: `Bearer ${token}` } });
+    expect(viaToken.status).toBe(200);
+    const round = await viaToken.json();
+    expect(round).toMatchObject({ id: "demo-round-tue-1", classId: "demo-class-tue", mode: "sprint" });
+    expect(round.notes.length).toBeGreaterThan(3);
+    const wrong = await fetch(new URL("/api/v1/rounds/demo-round-tue-1/results", server.url), { headers: { Authorization: "Bearer not-a-token" } });
+    expect(wrong.status).toBe(401);
+  });
+});
+
+describe("CSV export", () => {
+  it("downloads one row per student per session, with formula-like names neutralised", async () => {
+    const { db } = server.services;
+    const room = await openTestRoom(db);
+    await db.update(rooms).set({ classId: "demo-class-tue", endedAt: new Date() }).where(eq(rooms.id, room.id));
+    await db.insert(roomPlayers).values({ id: `${room.id}-evil`, roomId: room.id, nickname: "=HYPERLINK(\"http://evil.example\")", userId: null });
+    const note = room.config.prompts[0]!;
+    await db.insert(answers).values({ roomId: room.id, playerId: `${room.id}-evil`, promptIndex: 0, written: note.written, writtenMidi: note.writtenMidi, string: note.home.string, fret: note.home.fret, kind: "home-spot", pitchRight: true, points: 900, reactionMs: 1200, streak: 1, at: Date.now() });
+
+    const res = await clients.rafe!.get(`/teach/classes/demo-class-tue/export.csv?session=${room.id}`);
+    expect(res.headers.get("content-type")).toMatch(/^text\/csv/);
+    expect(res.headers.get("content-disposition")).toMatch(/attachment; filename="fretcall-Tuesday-Beginners-\d{4}-\d{2}-\d{2}\.csv"/);
+    const rows = Papa.parse<string[]>(await res.text(), { skipEmptyLines: true }).data;
+    expect(rows[0]).toEqual(["class", "session", "date", "student", "account", "points", "answers", "correct", "accuracy %", "median time s", "longest streak"]);
+    expect(rows[1]).toEqual(["Tuesday Beginners", "Test round", expect.any(String), "'=HYPERLINK(\"http://evil.example\")", "nickname only", "900", "1", "1", "100", "1.2", "1"]);
+
+    const all = Papa.parse<string[]>(await (await clients.rafe!.get("/teach/classes/demo-class-tue/export.csv")).text(), { skipEmptyLines: true }).data;
+    const played = await db.select().from(roomPlayers).innerJoin(rooms, eq(rooms.id, roomPlayers.roomId)).where(eq(rooms.classId, "demo-class-tue"));
+    expect(all.length - 1).toBe(played.length);
+  });
+});
+
+describe("live review", () => {
+  /** Reads server-sent events until `until` matches what arrived so far. */
+  async function readUntil(body: ReadableStream<Uint8Array>, until: RegExp) {
+    const reader = body.getReader();
+    const decoder = new TextDecoder();
+    let text = "";
+    const deadline = Date.now() + 8_000;
+    while (!until.test(text) && Date.now() < deadline) {
+      const { value, done } = await reader.read();
+      if (done) break;
+      text += decoder.decode(value, { stream: true });
+    }
+    reader.releaseLock();
+    return text;
+  }
+
+  it("sends the answer count, again after a new answer row, and 'ended' when the round ends", async () => {
+    const { db } = server.services;
+    const room = await openTestRoom(db);
+    await db.update(rooms).set({ classId: "demo-class-tue" }).where(eq(rooms.id, room.id));
+    const res = await clients.rafe!.get(`/teach/classes/demo-class-tue/review/live?session=${room.id}`);
+    expect(res.status).toBe(200);
+    expect(res.headers.get("content-type")).toMatch(/^text\/event-stream/);
+    const body = res.body!;
+    expect(await readUntil(body, /data: 0\n\n/)).toContain("event: answers\ndata: 0\n\n");
+
+    await db.insert(roomPlayers).values({ id: `${room.id}-p`, roomId: room.id, nickname: "Pia", userId: null });
+    const note = room.config.prompts[0]!;
+    await db.insert(answers).values({ roomId: room.id, playerId: `${room.id}-p`, promptIndex: 0, written: note.written, writtenMidi: note.writtenMidi, string: note.home.string, fret: note.home.fret, kind: "home-spot", pitchRight: true, points: 900, reactionMs: 1000, streak: 1, at: Date.now() });
+    expect(await readUntil(body, /data: 1\n\n/)).toContain("event: answers\ndata: 1\n\n");
+
+    await db.update(rooms).set({ endedAt: new Date() }).where(eq(rooms.id, room.id));
+    expect(await readUntil(body, /event: ended\ndata: \w+\n\n/)).toContain("event: ended\ndata: ended\n\n");
+  });
+});
