@@ -25,6 +25,12 @@ const otherSpot = (n: PromptNote): Spot | undefined => spots(n).find((s) => !sam
 /** A half step above the home spot: always the wrong pitch. */
 const wrongSpot = (n: PromptNote): Spot => ({ string: n.home.string, fret: n.home.fret + 1 });
 
+function deepFreeze(value: unknown): void {
+  if (typeof value !== "object" || value === null || Object.isFrozen(value)) return;
+  Object.freeze(value);
+  for (const v of Object.values(value)) deepFreeze(v);
+}
+
 /** Drives the reducer like the hub would, checking every outgoing message against the protocol schema. */
 class Room {
   state: RoomState;
@@ -38,6 +44,8 @@ class Room {
 
   do(event: RoomEvent, at = this.now, leadMs?: number): Effect[] {
     this.now = at;
+    // Frozen, so a reducer that touched its input would throw here (modules are strict).
+    deepFreeze(this.state);
     const step = reduce(this.state, event, leadMs === undefined ? { now: at } : { now: at, leadMs });
     for (const e of step.effects) {
       if (e.kind === "persist") this.records.push(e.record);

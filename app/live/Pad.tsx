@@ -5,8 +5,9 @@
  * settings a player needs (left-handed neck, sound) sit under the thumb at the bottom.
  */
 import { AnimatePresence, motion, useReducedMotion } from "framer-motion";
-import { useEffect, useMemo, useState } from "react";
+import { useMemo, useState } from "react";
 import { Fretboard } from "~/components/Fretboard";
+import { useLeftHanded } from "~/components/LeftHanded";
 import { playSounding } from "~/components/sound";
 import { SoundControl } from "~/components/SoundControl";
 import { Button, Field, Notice } from "~/components/ui";
@@ -25,14 +26,10 @@ export interface PadProps {
   accountName: string | null;
 }
 
-const HANDED_KEY = "fretcall-left-handed";
-
 export function Pad(props: PadProps) {
   const { state, join, answer, toLocal } = useRoomSocket(props.code, { role: "player" });
   const tuning = useMemo(() => resolveTuning(props.tuning), [props.tuning]);
-  const [leftHanded, setLeftHanded] = useState(false);
-  // Read after hydration, as the neck explorer does, so server and first client render agree.
-  useEffect(() => setLeftHanded(localStorage.getItem(HANDED_KEY) === "1"), []);
+  const [leftHanded, chooseHand] = useLeftHanded();
   // A phone on its side has little height: smaller cells keep all six strings on screen.
   const short = useMedia("(max-height: 500px)");
   const [tapped, setTapped] = useState<{ promptId: string; spot: Spot } | null>(null);
@@ -56,10 +53,6 @@ export function Pad(props: PadProps) {
     answer(prompt.promptId, spot);
     // The pitch just played, heard as the answer goes; silent when the player has turned sound off.
     void playSounding(tuning.strings[spot.string - 1]! + spot.fret);
-  };
-  const chooseHand = (left: boolean) => {
-    setLeftHanded(left);
-    localStorage.setItem(HANDED_KEY, left ? "1" : "0");
   };
 
   const highlights = [

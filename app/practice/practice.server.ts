@@ -50,7 +50,7 @@ export async function spotMapFor(db: Db, classId: string | null, position: numbe
 }
 
 type Material =
-  | { kind: "set" | "preset"; id: string; name: string; spec: ReadingSetSpec; classId?: string | null }
+  | { kind: "set" | "preset"; id: string; name: string; spec: ReadingSetSpec }
   | { kind: "tune"; id: string; name: string; tune: Tune }
   | { kind: "position"; position: number };
 

@@ -1,8 +1,9 @@
 // The neck explorer: any written note on the staff and on the neck, a position's home-spot map, a printable chart.
 // Public and stateless: every choice lives in the address, so a teacher can share or bookmark a view.
-import { useEffect, useState } from "react";
+import { useState } from "react";
 import { Form, Link } from "react-router";
 import { Fretboard, type Highlight } from "~/components/Fretboard";
+import { useLeftHanded } from "~/components/LeftHanded";
 import { noteOnNeck, parseExplorerQuery, type ExplorerValues } from "~/components/neckQuery";
 import { playSounding } from "~/components/sound";
 import { SoundControl } from "~/components/SoundControl";
@@ -61,19 +62,12 @@ export function loader({ request }: Route.LoaderArgs) {
 
 type View = NonNullable<Route.ComponentProps["loaderData"]["view"]>;
 
-const HANDED_KEY = "fretcall-left-handed";
 const sameSpot = (a: Spot, b: Spot) => a.string === b.string && a.fret === b.fret;
 
 export default function Explore({ loaderData }: Route.ComponentProps) {
   const { values, errors, view } = loaderData;
-  const [leftHanded, setLeftHanded] = useState(false);
+  const [leftHanded, chooseHand] = useLeftHanded();
   const [labels, setLabels] = useState(true);
-  // Read after hydration so the server's right-handed board and the first client render agree.
-  useEffect(() => setLeftHanded(localStorage.getItem(HANDED_KEY) === "1"), []);
-  const chooseHand = (left: boolean) => {
-    setLeftHanded(left);
-    localStorage.setItem(HANDED_KEY, left ? "1" : "0");
-  };
   const problems = Object.entries(errors);
 
   return (
