@@ -1,3 +1,4 @@
+import { findTune } from "~/tunes/tunes.server";
 // Assignments in the database: what can be assigned, who is targeted, and everyone's progress.
 // The rules for progress itself are pure, in progress.ts.
 import { and, asc, eq, inArray, isNull, or } from "drizzle-orm";
@@ -8,7 +9,7 @@ import { assignments, assignmentTargets, classes, memberships, practiceAnswers, 
 import { READING_PRESETS, readingPreset } from "~/reading/presets";
 import { setsFor } from "~/reading/sets.server";
 import { readingSetSpecSchema, summarise, type ReadingSetSpec } from "~/reading/spec";
-import { BUILTIN_TUNES, builtinTune, type Tune, type TuneNote } from "~/tunes/builtin";
+import { BUILTIN_TUNES, type Tune } from "~/tunes/builtin";
 import { practicePath, type MaterialKind, type MaterialRef } from "./assignmentForm";
 import type { OpenAssignment } from "./AssignmentParts";
 import { completedLate, progressOf, statusOf, type Goal, type PracticeRow, type Progress, type Status } from "./progress";
@@ -44,20 +45,13 @@ export type Material =
   | { kind: "tune"; id: string; name: string; tune: Tune };
 
 /** A tune wherever it lives: built in, or uploaded by the school. */
-async function tuneFor(db: Db, orgId: string, id: string): Promise<Tune | undefined> {
-  const builtin = builtinTune(id);
-  if (builtin) return builtin;
-  const [row] = await db.select().from(tunes).where(and(eq(tunes.id, id), eq(tunes.orgId, orgId)));
-  return row ? { ...row, notes: row.notes as TuneNote[] } : undefined;
-}
-
 export async function resolveMaterial(db: Db, orgId: string, ref: MaterialRef): Promise<Material | null> {
   if (ref.kind === "preset") {
     const p = readingPreset(ref.id);
     return p ? { kind: "preset", id: p.id, name: p.name, spec: p.spec } : null;
   }
   if (ref.kind === "tune") {
-    const t = await tuneFor(db, orgId, ref.id);
+    const t = await findTune(db, orgId, ref.id);
     return t ? { kind: "tune", id: t.id, name: t.title, tune: t } : null;
   }
   const [row] = await db.select().from(readingSets).where(and(eq(readingSets.id, ref.id), eq(readingSets.orgId, orgId)));

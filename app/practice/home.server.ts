@@ -1,3 +1,4 @@
+import { findTune } from "~/tunes/tunes.server";
 // The student's home page figures: day streak, recent sessions and passes, and progress per note.
 import { and, eq, gte } from "drizzle-orm";
 import type { SessionUser } from "~/auth/users.server";
@@ -7,7 +8,7 @@ import { homeSpotFor } from "~/music/positions";
 import { readingPreset } from "~/reading/presets";
 import { setsFor } from "~/reading/sets.server";
 import { classesFor } from "~/school/classes.server";
-import { HISTORY_DAYS, spotMapFor, tuneForOrg } from "./practice.server";
+import { HISTORY_DAYS, spotMapFor } from "./practice.server";
 import { rhythmPasses } from "./rhythmPass.server";
 import { dayStreak, noteCells, sessionsOf } from "./summary";
 
@@ -17,7 +18,7 @@ async function sourceNamer(db: Db, user: SessionUser, sources: string[]) {
   const needSets = sources.some((s) => s.startsWith("set:"));
   const sets = needSets ? new Map((await setsFor(db, user)).map((s) => [s.id, s.name])) : new Map<string, string>();
   const tunes = new Map<string, string>();
-  for (const s of sources.filter((x) => x.startsWith("tune:"))) tunes.set(s, (await tuneForOrg(db, user.orgId, s.slice(5)))?.title ?? "A tune");
+  for (const s of sources.filter((x) => x.startsWith("tune:"))) tunes.set(s, (await findTune(db, user.orgId, s.slice(5)))?.title ?? "A tune");
   return (source: string) => {
     const [kind, id = ""] = source.split(/:(.*)/s);
     if (kind === "preset") return readingPreset(id)?.name ?? "Ready-made reading set";

@@ -1,3 +1,4 @@
+import { findTune } from "~/tunes/tunes.server";
 // Solo practice on the server: what a student may practise, the plan of one session (notes on the class's home
 // spots, in progression order), and the history the adaptive rule learns from.
 import { and, desc, eq, gte, sql } from "drizzle-orm";
@@ -13,7 +14,7 @@ import { setFor, setsFor } from "~/reading/sets.server";
 import { readingSpecOf, type ReadingSetSpec } from "~/reading/spec";
 import { classSpotMap } from "~/reading/spotMaps.server";
 import { classesFor } from "~/school/classes.server";
-import { BUILTIN_TUNES, builtinTune, type Tune, type TuneNote } from "~/tunes/builtin";
+import { BUILTIN_TUNES, type Tune } from "~/tunes/builtin";
 import type { PracticeAnswer } from "./adaptive";
 import { assignmentForStudent } from "./assignments.server";
 import { onClassMap, setOrder, tunePool, type PracticePlan } from "./pool";
@@ -30,13 +31,6 @@ const DAY_MS = 86_400_000;
 export type PlanResult = { ok: true; plan: PracticePlan } | { ok: false; status: 400 | 404; message: string };
 
 /** A tune the student's school can see: built in, or uploaded by the school. */
-export async function tuneForOrg(db: Db, orgId: string, id: string): Promise<Tune | undefined> {
-  const builtin = builtinTune(id);
-  if (builtin) return builtin;
-  const [row] = await db.select().from(tunes).where(and(eq(tunes.id, id), eq(tunes.orgId, orgId)));
-  return row ? { id: row.id, title: row.title, composer: row.composer, keyFifths: row.keyFifths, beatsPerBar: row.beatsPerBar, notes: row.notes as TuneNote[] } : undefined;
-}
-
 /** The class whose map a session uses: the one named (if the student is in it), else the student's first. */
 async function mapClass(db: Db, user: SessionUser, wanted: string | null | undefined): Promise<string | null> {
   const mine = await classesFor(db, user);
@@ -131,7 +125,7 @@ export async function practicePlan(db: Db, user: SessionUser, query: URLSearchPa
   }
   const tuneId = get("tune");
   if (tuneId) {
-    const tune = await tuneForOrg(db, user.orgId, tuneId);
+    const tune = await findTune(db, user.orgId, tuneId);
     if (!tune) return { ok: false, status: 404, message: "No such tune." };
     return planOf(db, user, { kind: "tune", id: tune.id, name: tune.title, tune }, { classId, position });
   }

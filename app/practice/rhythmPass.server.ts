@@ -1,3 +1,4 @@
+import { findTune } from "~/tunes/tunes.server";
 // Rhythm passes on the server: whether a tune is unlocked (its pitches steady), and storing a pass, scored here
 // from the taps and the tune, never from a score the phone claims.
 import { and, desc, eq } from "drizzle-orm";
@@ -8,7 +9,7 @@ import { rhythmAttempts } from "~/db/schema";
 import type { PoolNote } from "~/music/pools";
 import type { Tune } from "~/tunes/builtin";
 import { allSteady, noteName, noteStates, STEADY_BOX } from "./adaptive";
-import { historyFor, practicePlan, TUNE_POSITION, tuneForOrg } from "./practice.server";
+import { historyFor, practicePlan, TUNE_POSITION } from "./practice.server";
 import { scoreTaps, TEMPO_RANGE, timeline, type RhythmScore } from "./rhythm";
 
 const DAY_MS = 86_400_000;
@@ -27,7 +28,7 @@ export interface RhythmState {
  * the student's history there, by the adaptive rule: pitch first, rhythm later.
  */
 export async function rhythmState(db: Db, user: SessionUser, tuneId: string, position = TUNE_POSITION, now = Date.now()): Promise<RhythmState | undefined> {
-  const tune = await tuneForOrg(db, user.orgId, tuneId);
+  const tune = await findTune(db, user.orgId, tuneId);
   if (!tune) return undefined;
   const plan = await practicePlan(db, user, new URLSearchParams({ tune: tuneId, position: String(position) }));
   const notes: PoolNote[] = plan?.ok ? plan.plan.notes : [];
