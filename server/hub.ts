@@ -1,8 +1,9 @@
 /**
  * The live-round hub: a thin transport over the game reducer (app/game/room.ts). It turns socket
- * messages into room events, writes what the reducer asks to persist to SQLite — batched, one
- * transaction per batch — and only then carries out the sends, so nothing a phone was told is
- * ever lost. A room not in memory (after a restart) is rebuilt by replaying its log.
+ * messages into room events, has what the reducer asks to persist written to SQLite on the writer
+ * thread — batched, one transaction per batch — and carries out the sends in order, an ack only
+ * once its answer is on disk, so nothing a phone was told it had is ever lost. A room not in
+ * memory (after a restart) is rebuilt by replaying its log.
  */
 import type { InStatement, InValue } from "@libsql/client";
 import { eq, getTableColumns, getTableName, inArray, sql, type InferInsertModel, type Table } from "drizzle-orm";
@@ -30,6 +31,7 @@ import type { RoomConfig } from "~/game/roomConfig";
 import { loadRoomState } from "~/rooms/log.server";
 import { hostKeyMatches, openRoomByCode } from "~/rooms/rooms.server";
 import { stepRows, type StepRows } from "~/rooms/stepRows";
+import { SqlWriter } from "./sql-writer";
 
 interface Conn {
   ws: WebSocket;
@@ -83,63 +85,71 @@ function insertRows<T extends Table>(table: T, rows: InferInsertModel<T>[]): InS
 }
 
 /**
- * Collects the writes of every room that arrive in one turn of the event loop into one
- * transaction, as a few multi-row INSERTs: one statement per table, not one per row, is what
- * keeps a class-wide burst of answers cheap.
+ * Group commit: the writes of every room go to the writer thread as one transaction of a few
+ * multi-row INSERTs (one statement per table, not one per row). While a transaction is on its way
+ * to the disk, what arrives meanwhile waits and goes next as one, so the busier the school, the
+ * more answers share each commit — and the event loop never waits for the disk.
  */
 class BatchWriter {
   private pending: { writes: StepWrites; room: LiveRoom; done: (error: unknown) => void }[] = [];
-  private scheduled = false;
-  private flushing: Promise<void> = Promise.resolve();
+  /** A flush is scheduled or running; what arrives now goes in the next one. */
+  private busy = false;
+  private idle: (() => void)[] = [];
 
-  constructor(private readonly db: Db) {}
+  constructor(
+    private readonly db: Db,
+    private readonly sql: SqlWriter,
+  ) {}
 
   /** Resolves with null once committed, or with the error (never rejects: the room handles it in order). */
   write(writes: StepWrites, room: LiveRoom): Promise<unknown> {
     return new Promise((resolve) => {
       this.pending.push({ writes, room, done: resolve });
-      if (!this.scheduled) {
-        this.scheduled = true;
-        setImmediate(() => {
-          this.scheduled = false;
-          this.flushing = this.flushing.then(() => this.flush());
-        });
+      // Every event of this turn of the event loop joins the first flush.
+      if (!this.busy) {
+        this.busy = true;
+        setImmediate(() => void this.flush());
       }
     });
   }
 
   private async flush() {
-    const jobs = this.pending;
-    this.pending = [];
-    // Later decisions of a room whose write failed were built on what was lost: never commit them.
-    const ok = jobs.filter((j) => !j.room.broken);
-    for (const j of jobs) if (j.room.broken) j.done(new Error("an earlier write of this room failed"));
-    if (ok.length === 0) return;
-    const ended = ok.filter((j) => j.writes.ended).map((j) => j.writes.roomId);
-    // Seats before answers: an answer's row refers to its seat's.
-    const ending = ended.length > 0 ? this.db.update(rooms).set({ endedAt: new Date() }).where(inArray(rooms.id, ended)).toSQL() : null;
-    const statements: InStatement[] = [
-      ...chunks(ok.flatMap((j) => j.writes.events)).map((rows) => insertRows(roomEvents, rows)),
-      ...chunks(ok.flatMap((j) => j.writes.players)).map((rows) => insertRows(roomPlayers, rows)),
-      ...chunks(ok.flatMap((j) => j.writes.answers)).map((rows) => insertRows(answers, rows)),
-      ...(ending ? [{ sql: ending.sql, args: ending.params as InValue[] }] : []),
-    ];
-    try {
-      // One transaction ("write" = BEGIN IMMEDIATE … COMMIT).
-      await this.db.$client.batch(statements, "write");
-      for (const j of ok) j.done(null);
-    } catch (error) {
-      for (const j of ok) {
-        j.room.broken = true;
-        j.done(error);
+    while (this.pending.length > 0) {
+      const jobs = this.pending;
+      this.pending = [];
+      // Later decisions of a room whose write failed were built on what was lost: never commit them.
+      const ok = jobs.filter((j) => !j.room.broken);
+      for (const j of jobs) if (j.room.broken) j.done(new Error("an earlier write of this room failed"));
+      if (ok.length === 0) continue;
+      try {
+        await this.sql.run(this.statements(ok.map((j) => j.writes)));
+        for (const j of ok) j.done(null);
+      } catch (error) {
+        for (const j of ok) {
+          j.room.broken = true;
+          j.done(error);
+        }
       }
     }
+    this.busy = false;
+    for (const resolve of this.idle.splice(0)) resolve();
+  }
+
+  private statements(writes: StepWrites[]): InStatement[] {
+    const ended = writes.filter((w) => w.ended).map((w) => w.roomId);
+    const ending = ended.length > 0 ? this.db.update(rooms).set({ endedAt: new Date() }).where(inArray(rooms.id, ended)).toSQL() : null;
+    // Seats before answers: an answer's row refers to its seat's.
+    return [
+      ...chunks(writes.flatMap((w) => w.events)).map((rows) => insertRows(roomEvents, rows)),
+      ...chunks(writes.flatMap((w) => w.players)).map((rows) => insertRows(roomPlayers, rows)),
+      ...chunks(writes.flatMap((w) => w.answers)).map((rows) => insertRows(answers, rows)),
+      ...(ending ? [{ sql: ending.sql, args: ending.params as InValue[] }] : []),
+    ];
   }
 
   /** Resolves when everything handed over so far is written. */
-  async drain() {
-    while (this.pending.length > 0 || this.scheduled) await new Promise((r) => setImmediate(r));
-    await this.flushing;
+  drain(): Promise<void> {
+    return this.busy ? new Promise((resolve) => this.idle.push(resolve)) : Promise.resolve();
   }
 }
 
@@ -174,16 +184,24 @@ class LiveRoom {
     const written = writes ? this.hub.writer.write(writes, this) : Promise.resolve(null);
     const effects = step.effects.filter((e) => e.kind !== "persist");
     const ended = writes?.ended === true;
+    // What confirms something a client sent (an answer's ack, a seat) or closes sockets goes out
+    // only once it is on disk. The rest (prompts, reveals, standings, rosters) goes out as soon as
+    // everything before it has: should the server stop before it is written, the room resumes
+    // from the step before, and nothing a client was told it had is missing.
+    const confirms = event.type === "answer" || event.type === "join" || effects.some((e) => e.kind === "close");
+    if (!confirms) void written.then((error) => error && this.fail(error));
     this.inOrder(async () => {
-      const error = await written;
-      if (error) return this.fail(error);
+      if (confirms) {
+        const error = await written;
+        if (error) return this.fail(error);
+      }
       this.deliver(effects);
       if (ended) this.hub.forget(this);
     });
     this.schedule(step.wakeAt);
   }
 
-  /** Runs `step` after every earlier delivery, so nothing overtakes an event that is still being written. */
+  /** Runs `step` after every earlier delivery, so nothing overtakes an ack that is still being written. */
   inOrder(step: () => void | Promise<void>) {
     this.tail = this.tail.then(step).catch((error: unknown) => console.error(`room ${this.code}: delivery failed`, error));
   }
@@ -269,6 +287,7 @@ function send(conn: Conn, text: string | Buffer) {
 
 export class Hub {
   readonly writer: BatchWriter;
+  private readonly sql: SqlWriter;
   closing = false;
   private readonly live = new Map<string, Promise<LiveRoom | undefined>>();
 
@@ -276,8 +295,11 @@ export class Hub {
     readonly db: Db,
     private readonly secret: string,
     private readonly sessions: SessionStorage,
+    /** The database the writer thread opens for itself: the same one as `db`. */
+    target: { url: string; authToken?: string },
   ) {
-    this.writer = new BatchWriter(db);
+    this.sql = new SqlWriter(target);
+    this.writer = new BatchWriter(db, this.sql);
   }
 
   attach(wss: WebSocketServer) {
@@ -354,7 +376,8 @@ export class Hub {
     }
     if (conn.role !== "host") return send(conn, JSON.stringify(errorMessage(ERROR_CODES.notHost, "Only the teacher's stage can do that.")));
     if (m.type === "remove") return room.dispatch({ type: "remove", playerId: m.playerId });
-    const priorPoints = m.action === "start" ? await this.priorPoints(room) : undefined;
+    // Only Teams balanced on points needs the class's history, so only then is it read.
+    const priorPoints = m.action === "start" && room.state.config.teams?.balance === "points" ? await this.priorPoints(room) : undefined;
     room.dispatch({ type: "host", action: m.action, priorPoints });
   }
 
@@ -377,7 +400,7 @@ export class Hub {
     conn.role = m.role;
     if (seated) return this.takeSeat(conn, room, seated.id);
     if (m.role === "host") room.stage.add(conn);
-    // The room as it is once every event before this hello is written and delivered.
+    // The room as it is once every event before this hello is delivered.
     const state = room.state;
     const who = m.role === "host" ? ({ role: "host" } as const) : ({ role: "player", playerId: null } as const);
     room.inOrder(() => {
@@ -490,11 +513,17 @@ export class Hub {
     void entry?.then((r) => r === room && this.live.get(room.code) === entry && this.live.delete(room.code));
   }
 
+  /** Resolves once the writer thread has the database open; rejects if it cannot open it. */
+  ready() {
+    return this.sql.ready;
+  }
+
   /** Stops timers and waits until every accepted event is in the database. */
   async close() {
     this.closing = true;
     for (const r of this.live.values()) (await r)?.stop();
     await Promise.all([...this.live.values()].map(async (r) => (await r)?.settled()));
     await this.writer.drain();
+    await this.sql.close();
   }
 }

@@ -46,7 +46,8 @@ export async function startServer(overrides: Record<string, string | undefined> 
   const services = createServices(env, db, mailer);
   // Assignment notices, reminders and weekly digests (app/practice/mail.server.ts).
   const practiceMail = startMailSchedule(db, mailer, env.PUBLIC_URL);
-  const hub = new Hub(db, env.SESSION_SECRET, services.sessions);
+  const hub = new Hub(db, env.SESSION_SECRET, services.sessions, { url: env.DATABASE_URL, authToken: env.DATABASE_AUTH_TOKEN });
+  await hub.ready();
 
   const app = express();
   app.disable("x-powered-by");

@@ -3,6 +3,11 @@ import type { Duplex } from "node:stream";
 import { WebSocketServer, type WebSocket } from "ws";
 
 export const HEARTBEAT_MS = 15_000;
+/**
+ * The sockets are pinged a slice at a time, so each is still pinged once every heartbeat but a
+ * whole school's pings (and the pongs that answer them) never come in one burst.
+ */
+const HEARTBEAT_SLICES = 16;
 /** Close code sent to every socket when the server stops (RFC 6455 §7.4.1 "going away"). */
 export const CLOSE_GOING_AWAY = 1001;
 
@@ -13,14 +18,17 @@ export interface SocketHost {
 
 /**
  * The WebSocket server on /ws: we handle the upgrade ourselves (noServer) so other upgrade
- * paths are refused, and a ping every HEARTBEAT_MS ends peers that stopped answering.
+ * paths are refused, and a ping every heartbeat ends peers that stopped answering.
  */
 export function attachSockets(
   server: Server,
-  opts: { allowOrigin: (origin: string | undefined, host: string | undefined) => boolean; maxPayload: number },
+  opts: { allowOrigin: (origin: string | undefined, host: string | undefined) => boolean; maxPayload: number; heartbeatMs?: number },
 ): SocketHost {
   const wss = new WebSocketServer({ noServer: true, maxPayload: opts.maxPayload });
   const alive = new WeakMap<WebSocket, boolean>();
+  const slices = Array.from({ length: HEARTBEAT_SLICES }, () => new Set<WebSocket>());
+  let joined = 0;
+  let tick = 0;
 
   server.on("upgrade", (req: IncomingMessage, socket: Duplex, head: Buffer) => {
     const path = (req.url ?? "").split("?")[0];
@@ -33,20 +41,26 @@ export function attachSockets(
   });
 
   wss.on("connection", (ws) => {
+    const slice = slices[joined++ % HEARTBEAT_SLICES]!;
+    slice.add(ws);
     alive.set(ws, true);
     ws.on("pong", () => alive.set(ws, true));
+    ws.on("close", () => slice.delete(ws));
   });
 
-  const timer = setInterval(() => {
-    for (const ws of wss.clients) {
-      if (!alive.get(ws)) {
-        ws.terminate();
-        continue;
+  const timer = setInterval(
+    () => {
+      for (const ws of slices[tick++ % HEARTBEAT_SLICES]!) {
+        if (!alive.get(ws)) {
+          ws.terminate();
+          continue;
+        }
+        alive.set(ws, false);
+        ws.ping();
       }
-      alive.set(ws, false);
-      ws.ping();
-    }
-  }, HEARTBEAT_MS);
+    },
+    (opts.heartbeatMs ?? HEARTBEAT_MS) / HEARTBEAT_SLICES,
+  );
   timer.unref();
 
   return {

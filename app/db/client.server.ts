@@ -11,8 +11,9 @@ export type Db = LibSQLDatabase<typeof schema> & { $client: Client };
 export const MIGRATIONS_FOLDER = resolve("drizzle");
 
 /**
- * Opens the one database client. An embedded file gets WAL (readers never block the writer during
- * a round) and foreign keys; a remote libSQL URL is used as it is.
+ * Opens a database client: the server's one, and the live hub's writer thread's own. An embedded
+ * file gets WAL (readers never block the writer during a round) and foreign keys; a remote libSQL
+ * URL is used as it is.
  */
 export async function openDb(url: string, authToken?: string): Promise<Db> {
   if (url.startsWith("file:")) {
@@ -21,8 +22,12 @@ export async function openDb(url: string, authToken?: string): Promise<Db> {
   }
   const client = createClient({ url, authToken });
   if (url.startsWith("file:")) {
-    await client.execute("PRAGMA journal_mode = WAL");
+    // Waiting for a lock comes first: the hub's threads open the same file at the same time, and
+    // switching a new file to WAL needs it to themselves for a moment.
     await client.execute("PRAGMA busy_timeout = 5000");
+    await client.execute("PRAGMA journal_mode = WAL");
+    // Every commit reaches the disk before it returns: an acknowledged answer survives a power cut too.
+    await client.execute("PRAGMA synchronous = FULL");
   }
   await client.execute("PRAGMA foreign_keys = ON");
   return drizzle(client, { schema }) as Db;

@@ -9,6 +9,7 @@ import {
   RATE_LIMIT_STRIKES,
   newRateBucket,
   parseClientMessage,
+  reconnectDelayMs,
   parseServerMessage,
   takeToken,
   type ClientMessage,
@@ -187,5 +188,20 @@ describe("takeToken", () => {
 
   it("a steady 4 messages a second is never refused", () => {
     expect(run(Array.from({ length: 200 }, (_, i) => i * 250)).every((v) => v === "allow")).toBe(true);
+  });
+});
+
+describe("reconnectDelayMs", () => {
+  it.each([
+    // retry, close code, random → ms (arithmetic: min(5000, 300 × 2^retry) + 300 × random)
+    [1, 1006, 0, 600],
+    [2, 1006, 0, 1_200],
+    [3, 1001, 0.5, 2_550],
+    [4, 1011, 0, 4_800],
+    [5, 1006, 0, 5_000],
+    [12, 1006, 1, 5_300],
+    [1, CLOSE_CODES.rateLimited, 0, 5_000],
+  ])("retry %i after close %i (random %f) waits %i ms", (retry, code, random, ms) => {
+    expect(reconnectDelayMs(retry, code, random)).toBe(ms);
   });
 });

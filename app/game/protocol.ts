@@ -261,3 +261,17 @@ export function takeToken(bucket: RateBucket, now: number): { bucket: RateBucket
   const strikes = bucket.strikes + 1;
   return { bucket: { tokens, at: now, strikes }, verdict: strikes >= RATE_LIMIT_STRIKES ? "close" : "refuse" };
 }
+
+/** After a rate-limit close (4005) a client waits this long before reconnecting. */
+export const RATE_LIMIT_BACKOFF_MS = 5_000;
+
+/**
+ * How long a client waits before its `retry`-th reconnect (1, 2, …): 0.6 s doubling to 5 s, plus
+ * up to 0.3 s at random (`random` in 0…1) so a class's phones do not all come back in the same
+ * instant; 5 s after a rate-limit close.
+ */
+export function reconnectDelayMs(retry: number, closeCode: number, random: number): number {
+  const jitter = random * 300;
+  if (closeCode === CLOSE_CODES.rateLimited) return RATE_LIMIT_BACKOFF_MS + jitter;
+  return Math.min(5_000, 300 * 2 ** retry) + jitter;
+}

@@ -12,6 +12,7 @@ import {
   PING_BURST_GAP_MS,
   PING_INTERVAL_MS,
   PROTOCOL_VERSION,
+  reconnectDelayMs,
   type HostAction,
   type ServerMessage,
   type ServerMessageOf,
@@ -182,8 +183,7 @@ export function useRoomSocket(code: string, who: Who) {
         }
         retry += 1;
         dispatch({ type: "connection", connection: "retrying" });
-        // Back off to 5 s: a class of phones coming back together shouldn't hammer the server.
-        timers.push(window.setTimeout(connect, Math.min(5000, 300 * 2 ** retry) + Math.random() * 300));
+        timers.push(window.setTimeout(connect, reconnectDelayMs(retry, event.code, Math.random())));
       };
     };
 
