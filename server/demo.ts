@@ -5,7 +5,7 @@ import { closeDb, migrateDb, openDb } from "~/db/client.server";
 import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
 import { loadEnv } from "~/env.server";
 import { startServer } from "./index";
-import { demoSignIns, seedDemo } from "./seed";
+import { demoSignIns, ensureDemo } from "./seed";
 
 // A secret kept beside the demo database, so demo sign-ins survive a restart.
 const secretFile = "data/demo-session-secret";
@@ -20,11 +20,12 @@ const overrides = {
 const env = loadEnv({ ...process.env, ...overrides });
 const db = await openDb(env.DATABASE_URL, env.DATABASE_AUTH_TOKEN);
 await migrateDb(db);
-await seedDemo(db);
+// `npm run seed` puts a fresh copy back.
+const kept = await ensureDemo(db);
 await closeDb(db);
 
 const running = await startServer(overrides);
-console.log(`\nFretcall demo: ${DEMO_SCHOOL.name}\nOpen ${running.url}\n\nSign in with (password for all: ${DEMO_PASSWORD}):`);
+console.log(`\nFretcall demo: ${DEMO_SCHOOL.name}${kept ? " (as the last run left it; npm run seed starts it afresh)" : ""}\nOpen ${running.url}\n\nSign in with (password for all: ${DEMO_PASSWORD}):`);
 for (const [role, email] of demoSignIns()) console.log(`  ${role.padEnd(8)} ${email}`);
 console.log(`\nE-mail is captured, not sent: the admin's Outbox page shows it. Stop with Ctrl+C.`);
 for (const signal of ["SIGTERM", "SIGINT"] as const) {

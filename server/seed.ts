@@ -45,6 +45,16 @@ export async function seedDemo(db: Db) {
   await seedDemoPractice(db);
 }
 
+/**
+ * Seeds the demo school only if it is not there yet, so a restarted demo keeps what was done in
+ * it, live rooms included. Resolves true when it was kept.
+ */
+export async function ensureDemo(db: Db): Promise<boolean> {
+  const [kept] = await db.select({ id: organisations.id }).from(organisations).where(eq(organisations.id, S.id));
+  if (!kept) await seedDemo(db);
+  return kept !== undefined;
+}
+
 export function demoSignIns() {
   return [
     ["admin", S.admin.email],

@@ -117,7 +117,7 @@ function Status({ state, open, waiting }: { state: ReturnType<typeof useRoomSock
   if (state.paused)
     return (
       <Banner tone="info">
-        <Icon name="pause" /> Paused by the teacher
+        <Icon name="pause" /> Paused: wait for the teacher to go on
       </Banner>
     );
   if (ack && state.prompt && ack.promptId === state.prompt.promptId) {
@@ -220,7 +220,9 @@ function JoinForm({ code, accountName, error, onJoin, connected }: { code: strin
       >
         {accountName ? (
           <p className="text-lg">
-            You'll play as <strong>{accountName}</strong>.
+            {/* Names often end in an initial's full stop ("Amani K."): no second one after it. */}
+            You'll play as <strong>{accountName}</strong>
+            {accountName.endsWith(".") ? "" : "."}
           </p>
         ) : (
           <Field label="Nickname" name="nickname" maxLength={20} autoComplete="off" hint="2–20 characters. No need for your full name." required />
