@@ -6,16 +6,17 @@ const expect = baseExpect.configure({ timeout: 15_000 });
 
 const PHONE = { viewport: { width: 390, height: 844 }, isMobile: true, hasTouch: true };
 
-async function hostRound(page: Page, mode: "Sprint" | "Full neck", prompts: number) {
+async function hostRound(page: Page, mode: "Sprint" | "Full neck" | "Tune walk" | "Teams", prompts: number, more?: (page: Page) => Promise<void>) {
   await signIn(page, "rafe@larkspur.example");
   // The sign-in form posts; wait for its redirect so the session cookie is set before going on.
   await expect(page).toHaveURL(/\/teach$/);
   await page.goto("/host");
   // A one-off round: it reads the standard home-spot map the test looks answers up in, and leaves the demo classes' reviews alone.
   await page.getByLabel("Class", { exact: true }).selectOption({ label: "No class (a one-off round)" });
-  await page.getByLabel(new RegExp(mode)).check();
+  await page.getByRole("radio", { name: new RegExp(mode) }).check();
   await page.getByLabel("Number of notes").fill(String(prompts));
   await page.getByLabel("Seconds per note").fill("20");
+  await more?.(page);
   await page.getByRole("button", { name: "Open the room" }).click();
   await expect(page).toHaveURL(/\/stage\//);
   const code = (await page.getByLabel(/^Room code/).first().getAttribute("aria-label"))!.replace(/Room code |\s/g, "");
@@ -116,4 +117,47 @@ test("a Full neck round: the class covers every spot of a pitch together", async
   for (const [i, spot] of note.spots.entries()) await tapSpot(pads[i % 2]!, spot);
   await expect(stage.getByText(`Spots found: ${note.spots.length} of ${note.spots.length}`)).toBeVisible();
   await shot(stage, "stage-full-neck");
+});
+
+/** Every pad taps the home spot of each note until the round ends; returns how many notes there were. */
+async function playHomeSpots(stage: Page, pads: Page[]) {
+  let notes = 0;
+  for (; ; notes++) {
+    await stage.getByRole("button", { name: notes === 0 ? "▶ Start" : "Next ▶" }).click();
+    const done = stage.getByText("Round complete");
+    await expect(stage.getByText(`Note ${notes + 1} of`).or(done)).toBeVisible();
+    if (await done.isVisible()) return notes;
+    const note = await currentNote(stage);
+    for (const pad of pads) await expect(pad.getByText("Find the note on the class screen")).toBeVisible();
+    for (const pad of pads) await tapSpot(pad, note.home);
+    await expect(stage.getByText(`${pads.length}/${pads.length}`)).toBeVisible();
+  }
+}
+
+test("a Tune walk round plays a melody's first bar and names the tune at the end", async ({ page: stage, browser }) => {
+  test.setTimeout(180_000);
+  let tune = "";
+  const code = await hostRound(stage, "Tune walk", 3, async (page) => {
+    const select = page.getByLabel("Tune (Tune walk)");
+    tune = (await select.locator("option:checked").textContent())!;
+    await page.getByLabel("From bar").fill("1");
+    await page.getByLabel("To bar").fill("1");
+  });
+  const pads = await Promise.all(["Fen", "Gil"].map((n) => joinOnPhone(browser, code, n)));
+  const notes = await playHomeSpots(stage, pads);
+  expect(notes).toBeGreaterThan(0);
+  await expect(stage.getByRole("heading", { name: `Round complete — the tune was “${tune}”` })).toBeVisible();
+  await expect(pads[0]!.getByText(`${notes} of ${notes} home spots`)).toBeVisible();
+  await shot(stage, "stage-tune-walk-end");
+});
+
+test("a Teams round splits the class into even teams and ranks the teams", async ({ page: stage, browser }) => {
+  test.setTimeout(180_000);
+  const code = await hostRound(stage, "Teams", 3, async (page) => page.getByLabel("Teams (Teams mode)").fill("2"));
+  const pads = await Promise.all(["Hal", "Ivo", "Jun", "Kai"].map((n) => joinOnPhone(browser, code, n)));
+  expect(await playHomeSpots(stage, pads)).toBe(3);
+  await expect(stage.getByRole("heading", { name: "Teams", exact: true })).toBeVisible();
+  // Two teams of two: each row names its size.
+  await expect(stage.getByText(/\(2\)$/)).toHaveCount(2);
+  await shot(stage, "stage-teams-end");
 });
