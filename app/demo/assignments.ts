@@ -10,6 +10,7 @@ import { materialValue, type MaterialRef } from "~/practice/assignmentForm";
 import { readingPreset } from "~/reading/presets";
 import { readingSpecOf } from "~/reading/spec";
 import { builtinTune } from "~/tunes/builtin";
+import { practiceRow } from "./practice";
 import { DEMO_SCHOOL as S } from "./school";
 
 const HOUR = 3_600_000;
@@ -105,22 +106,8 @@ function practiceRows(a: DemoAssignment, userId: string, effort: Effort, seed: n
     const tapped = right ? note.home : { string: note.home.string, fret: note.home.fret + (random() < 0.5 ? 1 : -1) };
     const d = diagnose({ note, keyFifths: note.keyFifths, tapped, tuning: tuningNotes, reading: "guitar", homeOnly: true });
     const sitting = Math.floor((i / notes.length) * Math.min(3, Math.max(1, a.setDaysAgo)));
-    return {
-      userId,
-      clientId: `demo-${a.id}-${i}`,
-      assignmentId: a.id,
-      source: materialValue(a.material),
-      position,
-      tuning,
-      written: note.written,
-      writtenMidi: note.writtenMidi,
-      string: tapped.string,
-      fret: tapped.fret,
-      kind: d.kind,
-      pitchRight: d.pitchRight,
-      reactionMs: Math.round(typicalMs * (0.7 + random() * 0.6)),
-      at: new Date(Math.min(now - HOUR, start + sitting * DAY + i * 9_000)),
-    };
+    const who = { userId, clientId: `demo-${a.id}-${i}`, assignmentId: a.id, source: materialValue(a.material), position, tuning };
+    return practiceRow(who, note, tapped, d, Math.round(typicalMs * (0.7 + random() * 0.6)), Math.min(now - HOUR, start + sitting * DAY + i * 9_000));
   });
 }
 

@@ -77,8 +77,23 @@ function missSpot(note: PoolNote, random: Rng) {
   return { string: note.home.string, fret: Math.max(0, note.home.fret + 2 * side) };
 }
 
+type PracticeRow = typeof practiceAnswers.$inferInsert;
+
+/** One stored practice answer: who answered and in what setting, the note asked, where they tapped and what the engine made of it. */
+export function practiceRow(
+  who: Pick<PracticeRow, "userId" | "clientId" | "assignmentId" | "source" | "position" | "tuning">,
+  note: { written: string; writtenMidi: number },
+  tapped: { string: number; fret: number },
+  diagnosis: { kind: PracticeRow["kind"]; pitchRight: boolean },
+  reactionMs: number,
+  at: number,
+): PracticeRow {
+  const { written, writtenMidi } = note;
+  return { ...who, written, writtenMidi, string: tapped.string, fret: tapped.fret, kind: diagnosis.kind, pitchRight: diagnosis.pitchRight, reactionMs, at: new Date(at) };
+}
+
 function playSession(s: Scripted, m: Material, start: number, history: PracticeAnswer[], random: Rng, counter: { n: number }) {
-  const rows: (typeof practiceAnswers.$inferInsert)[] = [];
+  const rows: PracticeRow[] = [];
   let previous: number | undefined;
   let at = start;
   for (let i = 0; i < SESSION_NOTES; i++) {
@@ -93,22 +108,8 @@ function playSession(s: Scripted, m: Material, start: number, history: PracticeA
     const reactionMs = Math.round(s.pace * (weak ? 1.4 : 1) * Math.max(0.5, 1 - 0.03 * seen) * (0.7 + random() * 0.6));
     at += reactionMs + 1_500 + Math.round(random() * 2_000);
     history.push({ writtenMidi: note.writtenMidi, kind: d.kind, reactionMs, at });
-    rows.push({
-      userId: s.id,
-      clientId: `demo-practice-${s.number}-${counter.n++}`,
-      assignmentId: null,
-      source: m.source,
-      position: m.position,
-      tuning: TUNING.id,
-      written: note.written,
-      writtenMidi: note.writtenMidi,
-      string: tapped.string,
-      fret: tapped.fret,
-      kind: d.kind,
-      pitchRight: d.pitchRight,
-      reactionMs,
-      at: new Date(at),
-    });
+    const who = { userId: s.id, clientId: `demo-practice-${s.number}-${counter.n++}`, assignmentId: null, source: m.source, position: m.position, tuning: TUNING.id };
+    rows.push(practiceRow(who, note, tapped, d, reactionMs, at));
     previous = note.writtenMidi;
   }
   return rows;
@@ -126,7 +127,7 @@ export async function seedDemoPractice(db: Db, now = Date.now()) {
   const random = seededRandom(20_260_301);
   // Sessions start in the late afternoon (UTC) of each day, but never less than an hour before now.
   const evening = (daysAgo: number) => Math.min(now - 2 * HOUR, Math.floor(now / DAY) * DAY - daysAgo * DAY + 16 * HOUR + Math.round(random() * 3 * HOUR));
-  const answerRows: (typeof practiceAnswers.$inferInsert)[] = [];
+  const answerRows: PracticeRow[] = [];
   const passes: (typeof rhythmAttempts.$inferInsert)[] = [];
   // Every demo material reads in fifth position; a class that has edited its map (app/demo/reading.ts) practises on it.
   const maps = new Map<string, SpotMap>();
