@@ -20,6 +20,9 @@ const schema = z
     MAIL_DIR: z.string().default("data/mail"),
     // Public address used in e-mailed links; defaults to http://localhost:PORT.
     PUBLIC_URL: z.url().optional(),
+    // Session lifetimes in days (fractions allowed): from sign-in, and since the last request.
+    SESSION_MAX_DAYS: z.coerce.number().positive().max(366).default(30),
+    SESSION_IDLE_DAYS: z.coerce.number().positive().max(366).default(7),
   })
   .superRefine((env, ctx) => {
     if (env.NODE_ENV === "production" && !env.SESSION_SECRET) {

@@ -17,7 +17,13 @@ export function createServices(env: Env, db: Db, mailer: Mailer) {
     env,
     db,
     mailer,
-    sessions: createSessionStorage(env.SESSION_SECRET, env.NODE_ENV === "production"),
+    sessions: createSessionStorage(db, {
+      secret: env.SESSION_SECRET,
+      // Follows the address people use, so a laptop serving the class over plain http on the school Wi-Fi can sign students in.
+      secure: new URL(env.PUBLIC_URL).protocol === "https:",
+      maxDays: env.SESSION_MAX_DAYS,
+      idleDays: env.SESSION_IDLE_DAYS,
+    }),
     authenticator: createAuthenticator(db, signIn),
     // Reset mails are rare; a low per-account limit stops the form being used to flood an inbox.
     limits: { signIn, reset },

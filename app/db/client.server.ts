@@ -1,11 +1,14 @@
 import { createClient, type Client } from "@libsql/client";
 import { drizzle, type LibSQLDatabase } from "drizzle-orm/libsql";
 import { migrate } from "drizzle-orm/libsql/migrator";
+import type { BaseSQLiteDatabase } from "drizzle-orm/sqlite-core";
 import { mkdirSync } from "node:fs";
 import { dirname, resolve } from "node:path";
 import * as schema from "./schema";
 
 export type Db = LibSQLDatabase<typeof schema> & { $client: Client };
+/** The database or an open transaction on it, for helpers a transaction also calls. */
+export type Writer = BaseSQLiteDatabase<"async", unknown, typeof schema>;
 
 // The server always runs from the project root (npm scripts), in development and from the build.
 export const MIGRATIONS_FOLDER = resolve("drizzle");

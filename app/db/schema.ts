@@ -76,6 +76,30 @@ export const passwordResets = sqliteTable("password_resets", {
   createdAt: createdAt(),
 });
 
+/**
+ * Signed-in sessions. The cookie carries a random id; only its SHA-256 is kept, so a copy of the
+ * database opens no session. `device` is a coarse browser-and-system label, never an address.
+ */
+export const userSessions = sqliteTable(
+  "sessions",
+  {
+    // A handle for the devices page; the secret id never leaves the cookie.
+    id: text("id").primaryKey(),
+    tokenHash: text("token_hash").notNull(),
+    userId: text("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    device: text("device").notNull(),
+    // React Router's flash values, kept until the next read.
+    flash: text("flash", { mode: "json" }).$type<Record<string, unknown>>(),
+    createdAt: createdAt(),
+    lastSeenAt: integer("last_seen_at", { mode: "timestamp_ms" }).notNull(),
+    expiresAt: integer("expires_at", { mode: "timestamp_ms" }).notNull(),
+    idleExpiresAt: integer("idle_expires_at", { mode: "timestamp_ms" }).notNull(),
+  },
+  (t) => [uniqueIndex("sessions_token_hash_unique").on(t.tokenHash), index("sessions_user_idx").on(t.userId)],
+);
+
 // ---- live rounds ------------------------------------------------------------------------------
 
 /** A live round. `config` is the game's RoomConfig (prompt order included), fixed at creation. */
