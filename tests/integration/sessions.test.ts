@@ -5,10 +5,13 @@ import { createCookie } from "react-router";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { hashToken } from "~/auth/secret-token.server";
 import { SESSION_COOKIE } from "~/auth/session.server";
-import { userSessions, users } from "~/db/schema";
+import { roomPlayers, userSessions, users } from "~/db/schema";
 import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
+import { PROTOCOL_VERSION } from "~/game/protocol";
 import { seedDemo } from "../../server/seed";
 import { Client, startTestServer, type TestServer } from "./harness";
+import { openTestRoom } from "./rooms";
+import { TestSocket } from "./socket";
 
 let server: TestServer;
 beforeAll(async () => {
@@ -280,5 +283,30 @@ describe("lifetimes on the server", () => {
     const [touched] = await rowsOf(userId);
     expect(touched!.lastSeenAt.getTime()).toBeGreaterThan(twoMinutesAgo.getTime() + 60_000);
     expect(touched!.idleExpiresAt.getTime() - touched!.lastSeenAt.getTime()).toBe(7 * 86_400_000);
+  });
+});
+
+describe("the live hub", () => {
+  /** Joins a room from a pad that sends the given cookies; the account its seat is linked to. */
+  async function seatOwner(cookie: string, code: string, nickname: string) {
+    const pad = await TestSocket.open(server.url, server.url, { Cookie: cookie });
+    pad.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: code });
+    await pad.next("welcome");
+    pad.send({ type: "join", room: code, nickname });
+    const { you } = await pad.next("welcome", (m) => m.you !== null);
+    pad.ws.close();
+    const [seat] = await server.services.db.select({ userId: roomPlayers.userId }).from(roomPlayers).where(eq(roomPlayers.id, you!.playerId));
+    return seat!.userId;
+  }
+
+  it("links a signed-in student's seat to the account, and not once that session has ended", async () => {
+    const email = DEMO_SCHOOL.studentWithSignIn.email;
+    const [student] = await server.services.db.select({ id: users.id }).from(users).where(eq(users.email, email));
+    const client = await signIn(email, DEMO_PASSWORD);
+    const copied = client.cookieHeader();
+    const room = await openTestRoom(server.services.db);
+    expect(await seatOwner(copied, room.code, "Amani")).toBe(student!.id);
+    await client.post("/signout", {});
+    expect(await seatOwner(copied, room.code, "Amani again")).toBeNull();
   });
 });
