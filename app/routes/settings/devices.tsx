@@ -66,7 +66,7 @@ export default function Devices({ loaderData, actionData }: Route.ComponentProps
           {loaderData.sessions.map((s) => (
             <li key={s.id} className="flex flex-wrap items-center justify-between gap-2 py-3">
               <span>
-                <strong>{s.device}</strong> {s.current ? <Badge tone="info">this device</Badge> : null}
+                <strong>{s.device}</strong> {s.current ? <Badge tone="neutral">this device</Badge> : null}
                 <br />
                 <span className="text-ink-soft">
                   signed in {new Date(s.createdAt).toLocaleString()} · last active {new Date(s.lastSeenAt).toLocaleString()}
