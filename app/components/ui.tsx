@@ -1,5 +1,6 @@
 // Shared building blocks. Every state carries a word or an icon as well as a colour.
 import type { ButtonHTMLAttributes, InputHTMLAttributes, ReactNode, SelectHTMLAttributes } from "react";
+import { Form } from "react-router";
 
 type Tone = "ink" | "brass" | "teal" | "brick" | "ghost";
 
@@ -17,6 +18,20 @@ export function buttonClass(tone: Tone = "ink", extra = "") {
 
 export function Button({ tone = "ink", className = "", ...props }: ButtonHTMLAttributes<HTMLButtonElement> & { tone?: Tone }) {
   return <button className={buttonClass(tone, className)} {...props} />;
+}
+
+/** A form that is one button: its hidden fields say what to do to which row. A plain post, so it works without JavaScript. */
+export function PostButton({ fields, tone = "ghost", disabled, children }: { fields: Record<string, string>; tone?: Tone; disabled?: boolean; children: ReactNode }) {
+  return (
+    <Form method="post">
+      {Object.entries(fields).map(([name, value]) => (
+        <input key={name} type="hidden" name={name} value={value} />
+      ))}
+      <Button type="submit" tone={tone} disabled={disabled}>
+        {children}
+      </Button>
+    </Form>
+  );
 }
 
 export function Card({ children, className = "" }: { children: ReactNode; className?: string }) {

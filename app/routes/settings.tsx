@@ -3,7 +3,7 @@ import { z } from "zod";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { createApiToken, listApiTokens, revokeApiToken } from "~/auth/tokens.server";
 import { SettingsNav } from "~/components/SettingsNav";
-import { Button, Card, Field, Notice, PageTitle } from "~/components/ui";
+import { Button, Card, Field, Notice, PageTitle, PostButton } from "~/components/ui";
 import { services } from "~/context";
 import { parseForm } from "~/lib/forms";
 import type { Route } from "./+types/settings";
@@ -73,13 +73,7 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
               {t.revoked ? (
                 <span className="text-ink-soft">✗ revoked</span>
               ) : (
-                <Form method="post">
-                  <input type="hidden" name="intent" value="revoke" />
-                  <input type="hidden" name="id" value={t.id} />
-                  <Button type="submit" tone="ghost">
-                    Revoke
-                  </Button>
-                </Form>
+                <PostButton fields={{ intent: "revoke", id: t.id }}>Revoke</PostButton>
               )}
             </li>
           ))}

@@ -1,9 +1,9 @@
-import { Form, useNavigation } from "react-router";
+import { useNavigation } from "react-router";
 import { z } from "zod";
 import { requireUser } from "~/auth/guards.server";
 import { currentSessionId, endSession, endSessionById, endSessionsOf, listSessions } from "~/auth/session.server";
 import { SettingsNav } from "~/components/SettingsNav";
-import { Badge, Button, Card, Notice, PageTitle } from "~/components/ui";
+import { Badge, Card, Notice, PageTitle, PostButton } from "~/components/ui";
 import { services } from "~/context";
 import { parseForm } from "~/lib/forms";
 import type { Route } from "./+types/devices";
@@ -72,24 +72,17 @@ export default function Devices({ loaderData, actionData }: Route.ComponentProps
                   signed in {new Date(s.createdAt).toLocaleString()} · last active {new Date(s.lastSeenAt).toLocaleString()}
                 </span>
               </span>
-              <Form method="post">
-                <input type="hidden" name="intent" value="end" />
-                <input type="hidden" name="id" value={s.id} />
-                <Button type="submit" tone="ghost" disabled={busy}>
-                  {s.current ? "Sign out here" : "Sign out there"}
-                </Button>
-              </Form>
+              <PostButton fields={{ intent: "end", id: s.id }} disabled={busy}>
+                {s.current ? "Sign out here" : "Sign out there"}
+              </PostButton>
             </li>
           ))}
         </ul>
       </Card>
       {others > 0 ? (
-        <Form method="post">
-          <input type="hidden" name="intent" value="end-others" />
-          <Button type="submit" tone="brick" disabled={busy}>
-            Sign out of every other device
-          </Button>
-        </Form>
+        <PostButton fields={{ intent: "end-others" }} tone="brick" disabled={busy}>
+          Sign out of every other device
+        </PostButton>
       ) : null}
     </div>
   );

@@ -6,7 +6,7 @@ import { currentSessionId, endSessionsOf } from "~/auth/session.server";
 import { listApiTokens, revokeApiToken } from "~/auth/tokens.server";
 import { changePassword } from "~/auth/users.server";
 import { SettingsNav } from "~/components/SettingsNav";
-import { Button, Card, Field, Notice, PageTitle } from "~/components/ui";
+import { Button, Card, Field, Notice, PageTitle, PostButton } from "~/components/ui";
 import { services } from "~/context";
 import { parseForm } from "~/lib/forms";
 import type { Route } from "./+types/password";
@@ -80,13 +80,9 @@ export default function Password({ loaderData, actionData }: Route.ComponentProp
                 <span>
                   <strong>{t.name}</strong> · created {new Date(t.createdAt).toLocaleDateString()}
                 </span>
-                <Form method="post">
-                  <input type="hidden" name="intent" value="revoke" />
-                  <input type="hidden" name="id" value={t.id} />
-                  <Button type="submit" tone="ghost" disabled={busy}>
-                    Revoke
-                  </Button>
-                </Form>
+                <PostButton fields={{ intent: "revoke", id: t.id }} disabled={busy}>
+                  Revoke
+                </PostButton>
               </li>
             ))}
           </ul>
