@@ -30,8 +30,6 @@ export interface SessionOptions {
   secure: boolean;
   maxDays: number;
   idleDays: number;
-  /** The clock, for tests. */
-  now?: () => number;
 }
 
 /** Whether a stored session is still good at `now`, and whether its last-seen should move. */
@@ -41,7 +39,6 @@ export function sessionState(row: { lastSeenAt: Date; expiresAt: Date; idleExpir
 }
 
 export function createSessionStorage(db: Db, options: SessionOptions) {
-  const now = options.now ?? Date.now;
   const idleMs = options.idleDays * DAY_MS;
   const flashOf = ({ userId: _u, device: _d, ...flash }: Record<string, unknown>) =>
     Object.keys(flash).length ? flash : null;
@@ -59,7 +56,7 @@ export function createSessionStorage(db: Db, options: SessionOptions) {
     async createData(data) {
       const { userId, device } = data as Partial<SessionData>;
       if (!userId) throw new Error("A session is stored only for a signed-in user.");
-      const at = now();
+      const at = Date.now();
       // Expired rows go whenever a new one comes, so the table holds only live sessions.
       await db.delete(userSessions).where(or(lte(userSessions.expiresAt, new Date(at)), lte(userSessions.idleExpiresAt, new Date(at))));
       const id = newToken();
@@ -80,7 +77,7 @@ export function createSessionStorage(db: Db, options: SessionOptions) {
       const tokenHash = hashToken(id);
       const [row] = await db.select().from(userSessions).where(eq(userSessions.tokenHash, tokenHash));
       if (!row) return null;
-      const at = now();
+      const at = Date.now();
       const state = sessionState(row, at);
       if (state === "expired") {
         await db.delete(userSessions).where(eq(userSessions.tokenHash, tokenHash));
