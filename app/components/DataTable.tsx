@@ -1,6 +1,6 @@
 // A client-side table that sorts, filters and paginates, and stays usable on a phone:
 // it scrolls sideways inside its own box while the first column stays in view.
-import { useId, useMemo, useState, type ReactNode } from "react";
+import { useEffect, useId, useMemo, useState, type ReactNode } from "react";
 import {
   filterRows,
   nextSort,
@@ -42,10 +42,14 @@ export function DataTable<T>({
   const [sort, setSort] = useState<SortState | null>(initialSort);
   const [page, setPage] = useState(1);
   const [pageSize, setPageSize] = useState(initialPageSize);
+  // Paging needs scripts: until they run (or with JavaScript off) every row is shown, so the
+  // forms in rows past the first page can still be reached.
+  const [scripted, setScripted] = useState(false);
+  useEffect(() => setScripted(true), []);
 
   const view = useMemo(
-    () => paginate(sortRows(filterRows(rows, columns, query), columns, sort), page, pageSize),
-    [rows, columns, query, sort, page, pageSize],
+    () => paginate(sortRows(filterRows(rows, columns, query), columns, sort), page, scripted ? pageSize : rows.length),
+    [rows, columns, query, sort, page, pageSize, scripted],
   );
   const sizes = PAGE_SIZES.includes(initialPageSize) ? PAGE_SIZES : [initialPageSize, ...PAGE_SIZES].sort((a, b) => a - b);
 

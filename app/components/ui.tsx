@@ -142,6 +142,18 @@ export function Notice({ tone, children }: { tone: keyof typeof noticeTones; chi
   );
 }
 
+/**
+ * Shown only with JavaScript off, where a part of a page can't work without it (live play on
+ * WebSockets, timed practice, the map editor): says so plainly instead of a button that does nothing.
+ */
+export function NeedsJavaScript({ what }: { what: string }) {
+  return (
+    <noscript>
+      <Notice tone="info">{what} needs JavaScript. Turn it on in your browser's settings, then reload this page.</Notice>
+    </noscript>
+  );
+}
+
 const badgeTones = {
   right: { box: "bg-teal text-white", icon: "✓" },
   miss: { box: "bg-brick text-white", icon: "✗" },

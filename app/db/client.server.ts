@@ -31,6 +31,8 @@ export async function openDb(url: string, authToken?: string): Promise<Db> {
     await client.execute("PRAGMA journal_mode = WAL");
     // Every commit reaches the disk before it returns: an acknowledged answer survives a power cut too.
     await client.execute("PRAGMA synchronous = FULL");
+    // Deleted rows are overwritten, not just unlinked: a deleted student's name leaves the file.
+    await client.execute("PRAGMA secure_delete = ON");
   }
   await client.execute("PRAGMA foreign_keys = ON");
   return drizzle(client, { schema }) as Db;

@@ -7,6 +7,7 @@ import { KEYS } from "~/music/keys";
 import { displayPitch, MusicError, parsePitch } from "~/music/pitch";
 import { buildPool, type ReadingSpec } from "~/music/pools";
 import { MAX_FRETS, MIN_FRETS, resolveTuning } from "~/music/tuning";
+import { nameField } from "~/lib/names";
 
 export const PROMPT_COUNT_RANGE = [3, 60] as const;
 /** Tune walk reads a tune, not a pool, so a reading set offers the other modes. */
@@ -121,7 +122,7 @@ export type ReadingSetSpec = z.output<typeof readingSetSpecSchema>;
 
 export const readingSetFormSchema = z
   .object({
-    name: z.string().trim().min(1, "Give the set a name.").max(80, "Keep the name under 80 characters."),
+    name: nameField("the set's name", 80, "Give the set a name."),
     classId: z.preprocess(blankToUndefined, z.string().max(64).optional()),
     mode: z.enum(SET_MODES, "Choose Sprint, Full neck or Teams."),
     ...readingSetFields,

@@ -4,14 +4,20 @@ import { nanoid } from "nanoid";
 import { data } from "react-router";
 import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
+import { listApiTokens } from "~/auth/tokens.server";
 import {
   answers,
+  apiTokens,
+  assignments,
   assignmentTargets,
   classes,
   invitations,
+  mailLog,
   memberships,
+  passwordResets,
   practiceAnswers,
   rhythmAttempts,
+  roomEvents,
   roomPlayers,
   rooms,
   users,
@@ -278,34 +284,86 @@ export async function studentInSchool(db: Db, orgId: string, userId: string) {
   return row;
 }
 
+/** What a deleted student's seats in past rounds are called from then on (a valid nickname, so a replay accepts it). */
+export const REMOVED_STUDENT = "Removed student";
+
 /**
- * Deletes a student and everything that is theirs: the foreign keys cascade to memberships,
- * invitations, practice, rhythm attempts, assignment targets, tokens and mail log, and null the
- * account link of their seats in past rounds (the round's own figures stay for the class).
+ * Deletes a student and everything that names or identifies them, in one transaction:
+ * - the account, class places, invitations, reset links, API tokens, practice answers, rhythm
+ *   attempts, assignment targets and mail log rows (the foreign keys would cascade too, but a
+ *   pooled connection may lack `foreign_keys = ON`, so each is deleted by name);
+ * - their seats in past rounds stay for the class's figures, with the answers, but unlinked and
+ *   renamed REMOVED_STUDENT, and so does the nickname in each seat's join record in the round's
+ *   event log, which the results page and a restarted hub replay.
+ * Deleted pages are overwritten (secure_delete) and the WAL is copied back and emptied after the
+ * commit, so the name is gone from the database file and its WAL, not just unreachable.
+ *
+ * A student seated in a live round right now: the database is cleaned at once, and the room on the
+ * stage plays on from memory under the name it showed until it ends (its seat row is never written
+ * again); its results, and the room if the server restarts, show REMOVED_STUDENT.
  */
 export async function deleteStudent(db: Db, orgId: string, userId: string) {
-  const gone = await db
-    .delete(users)
-    .where(and(eq(users.id, userId), eq(users.orgId, orgId), eq(users.role, "student")))
-    .returning({ id: users.id });
-  return gone.length > 0;
+  const gone = await db.transaction(async (tx) => {
+    await tx.run(sql`PRAGMA secure_delete = ON`);
+    const [student] = await tx
+      .select({ id: users.id })
+      .from(users)
+      .where(and(eq(users.id, userId), eq(users.orgId, orgId), eq(users.role, "student")));
+    if (!student) return false;
+    const seats = (await tx.select({ id: roomPlayers.id }).from(roomPlayers).where(eq(roomPlayers.userId, userId))).map((s) => s.id);
+    if (seats.length) {
+      await tx
+        .update(roomEvents)
+        .set({ event: sql`json_set(${roomEvents.event}, '$.event.nickname', ${REMOVED_STUDENT})` })
+        .where(and(sql`json_extract(${roomEvents.event}, '$.event.type') = 'join'`, inArray(sql`json_extract(${roomEvents.event}, '$.event.playerId')`, seats)));
+      await tx.update(roomPlayers).set({ userId: null, nickname: REMOVED_STUDENT }).where(inArray(roomPlayers.id, seats));
+    }
+    // A table that keeps a user id (server-side sessions, a mail queue) belongs in this list too.
+    for (const table of [memberships, invitations, passwordResets, apiTokens, assignmentTargets, practiceAnswers, rhythmAttempts, mailLog]) {
+      await tx.delete(table).where(eq(table.userId, userId));
+    }
+    await tx.delete(users).where(eq(users.id, userId));
+    return true;
+  });
+  if (gone) await emptyWal(db);
+  return gone;
 }
 
-/** Everything Fretcall keeps about one person, for them or their school's admin to download. */
+/**
+ * Copies the WAL into the database file and truncates it. A reader or the checkpointer thread may
+ * hold it up for a moment, so it is tried a few times; should it still not finish, the next
+ * checkpoint does the same (with secure_delete, the copied pages hold no trace of the row).
+ */
+async function emptyWal(db: Db) {
+  for (let attempt = 0; attempt < 20; attempt++) {
+    try {
+      const result = await db.$client.execute("PRAGMA wal_checkpoint(TRUNCATE)");
+      if (Number(result.rows[0]?.[0] ?? 0) === 0) return;
+    } catch {
+      return; // a remote database has no WAL of ours to empty
+    }
+    await new Promise((r) => setTimeout(r, 50));
+  }
+}
+
+/**
+ * Everything Fretcall keeps about one person, for them or their school's admin to download. Never
+ * a secret: tokens and invitations are listed by name and dates, not by hash.
+ */
 export async function exportPersonalData(db: Db, userId: string) {
   const [profile] = await db
     .select({ id: users.id, displayName: users.displayName, email: users.email, role: users.role, createdAt: users.createdAt })
     .from(users)
     .where(eq(users.id, userId));
   if (!profile) return undefined;
-  const [classList, seats, practice, rhythm, invites, targets] = await Promise.all([
+  const [classList, seats, practice, rhythm, invites, targets, mail, tokens] = await Promise.all([
     db
       .select({ className: classes.name, role: memberships.role, joinedAt: memberships.createdAt })
       .from(memberships)
       .innerJoin(classes, eq(classes.id, memberships.classId))
       .where(eq(memberships.userId, userId)),
     db
-      .select({ seatId: roomPlayers.id, nickname: roomPlayers.nickname, round: rooms.title, mode: rooms.mode, at: rooms.createdAt })
+      .select({ seatId: roomPlayers.id, roomId: rooms.id, nickname: roomPlayers.nickname, round: rooms.title, mode: rooms.mode, at: rooms.createdAt })
       .from(roomPlayers)
       .innerJoin(rooms, eq(rooms.id, roomPlayers.roomId))
       .where(eq(roomPlayers.userId, userId)),
@@ -316,23 +374,43 @@ export async function exportPersonalData(db: Db, userId: string) {
       .from(invitations)
       .innerJoin(classes, eq(classes.id, invitations.classId))
       .where(eq(invitations.userId, userId)),
-    db.select({ assignmentId: assignmentTargets.assignmentId }).from(assignmentTargets).where(eq(assignmentTargets.userId, userId)),
+    db
+      .select({ assignmentId: assignments.id, title: assignments.title, className: classes.name, dueAt: assignments.dueAt })
+      .from(assignmentTargets)
+      .innerJoin(assignments, eq(assignments.id, assignmentTargets.assignmentId))
+      .innerJoin(classes, eq(classes.id, assignments.classId))
+      .where(eq(assignmentTargets.userId, userId)),
+    db.select({ kind: mailLog.kind, subjectId: mailLog.subjectId, sentAt: mailLog.sentAt }).from(mailLog).where(eq(mailLog.userId, userId)),
+    listApiTokens(db, userId),
   ]);
-  const roundAnswers = seats.length
-    ? await db
-        .select()
-        .from(answers)
-        .where(inArray(answers.playerId, seats.map((s) => s.seatId)))
-    : [];
+  const seatIds = seats.map((s) => s.seatId);
+  const [roundAnswers, events] = seatIds.length
+    ? await Promise.all([
+        db.select().from(answers).where(inArray(answers.playerId, seatIds)),
+        // Every record of a round's log that is about one of their seats (joins, answers, comings and goings).
+        db
+          .select({ roomId: roomEvents.roomId, seq: roomEvents.seq, at: roomEvents.at, event: roomEvents.event })
+          .from(roomEvents)
+          .where(inArray(sql`json_extract(${roomEvents.event}, '$.event.playerId')`, seatIds))
+          .orderBy(roomEvents.roomId, roomEvents.seq),
+      ])
+    : [[], []];
   return {
     exportedAt: new Date().toISOString(),
     profile,
     classes: classList,
-    rounds: seats.map((s) => ({ ...s, answers: roundAnswers.filter((a) => a.playerId === s.seatId) })),
+    rounds: seats.map((s) => ({
+      ...s,
+      answers: roundAnswers.filter((a) => a.playerId === s.seatId),
+      events: events.filter((e) => e.roomId === s.roomId),
+    })),
     practiceAnswers: practice,
     rhythmAttempts: rhythm,
     invitations: invites,
     assignedTo: targets,
+    mailSent: mail,
+    apiTokens: tokens,
+    // Signed-in devices go here once sessions are kept on the server: device, signed in, last seen.
   };
 }
 

@@ -53,19 +53,27 @@ describe("checkRosterRows", () => {
         row(8, "amani k."),
         row(9, "Gus", "bram@x.example"),
         row(10, "Hal", "t@x.example"),
+        row(11, "\u202Eeve"),
+        row(12, "Iv\u200Bo"),
+        row(13, "\u0410mani K."), // Cyrillic А: looks like Amani K., already in the class
+        row(14, "\u0415ve"), // Cyrillic Е: looks like Eve on line 5
       ],
       ctx,
     );
     expect(checked.map((r) => r.errors)).toEqual([
       ["Missing name."],
       ["That doesn't look like an e-mail address."],
-      ["Name is too long (at most 60 characters)."],
+      ["Keep a name under 60 characters."],
       [],
       ["Same name as line 5."],
       ["Same e-mail as line 5."],
       ["A student with this name is already in the class."],
       ["A student with this e-mail is already in the class."],
       ["Used by another account."],
+      ["Names can't contain text-direction control characters (U+202E)."],
+      ["Names can't contain invisible characters (U+200B)."],
+      ["Same name as line 8.", "A student with this name is already in the class."],
+      ["Same name as line 5."],
     ]);
   });
 });

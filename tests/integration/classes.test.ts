@@ -161,7 +161,7 @@ describe("CSV import", () => {
     for (const message of [
       "Missing name.",
       "That doesn't look like an e-mail address.",
-      "Name is too long (at most 60 characters).",
+      "Keep a name under 60 characters.",
       "A student with this name is already in the class.",
       "A student with this e-mail is already in the class.",
       "Same name as line 7.",

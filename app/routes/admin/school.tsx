@@ -7,6 +7,7 @@ import { DataTable, type Column } from "~/components/DataTable";
 import { Badge, Button, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
 import { parseForm } from "~/lib/forms";
+import { nameField } from "~/lib/names";
 import { classesFor } from "~/school/classes.server";
 import { createInvitation, mailInvitations } from "~/school/invitations.server";
 import {
@@ -35,13 +36,13 @@ export async function loader({ request, context }: Route.LoaderArgs) {
   };
 }
 
-const className = z.string().trim().min(1, "Enter the class's name.").max(NAME_MAX, `Keep the name under ${NAME_MAX} characters.`);
+const className = nameField("the class's name", NAME_MAX);
 const id = z.string().min(1).max(40);
 
 const actionSchema = z.discriminatedUnion("intent", [
   z.object({
     intent: z.literal("addTeacher"),
-    displayName: z.string().trim().min(1, "Enter the teacher's name.").max(NAME_MAX, `Keep the name under ${NAME_MAX} characters.`),
+    displayName: nameField("the teacher's name", NAME_MAX),
     email,
     classId: z.string().min(1, "Choose their first class (create one first if there is none)."),
   }),

@@ -1,7 +1,7 @@
 import { useState } from "react";
-import { Form, Link, redirect, useNavigation } from "react-router";
+import { Form, Link, redirect, useNavigation, useSearchParams } from "react-router";
 import { requireUserWithRole } from "~/auth/guards.server";
-import { Button, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
+import { Button, buttonClass, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
 import { RoomConfigError } from "~/game/roomConfig";
 import { parseForm } from "~/lib/forms";
@@ -32,7 +32,8 @@ export async function loader({ request, context }: Route.LoaderArgs) {
   const own = saved.filter((s) => s.spec).map((s) => ({ id: s.id, name: s.name, note: s.className ?? "Whole school", summary: s.summary, classId: s.classId }));
   return {
     classes: classList.map((c) => ({ id: c.id, name: c.name })),
-    classId: classList.some((c) => c.id === classId) ? classId : (classList[0]?.id ?? ""),
+    // An empty ?class= is "No class", chosen on purpose.
+    classId: classId === "" || classList.some((c) => c.id === classId) ? classId : (classList[0]?.id ?? ""),
     sets: [...own, ...presets],
     chosen: params.get("set"),
     tunes: tuneList.map((t) => ({ id: t.id, title: t.title })),
@@ -92,6 +93,7 @@ export default function Host({ loaderData, actionData }: Route.ComponentProps) {
   const errors: Errors = actionData?.errors ?? {};
   const busy = useNavigation().state !== "idle";
   const [classId, setClassId] = useState(loaderData.classId ?? "");
+  const [params] = useSearchParams();
   const d = QUICK_DEFAULTS;
   // A set picked elsewhere (?set=…) comes first, so hosting it is one click away.
   const sets = [...loaderData.sets].sort((a, b) => Number(b.id === loaderData.chosen) - Number(a.id === loaderData.chosen));
@@ -99,15 +101,27 @@ export default function Host({ loaderData, actionData }: Route.ComponentProps) {
     <div className="mx-auto max-w-3xl space-y-6">
       <PageTitle lead="Choose what the class reads. Students join with the room code on the class screen.">Host a round</PageTitle>
       {errors.form ? <Notice tone="error">{errors.form}</Notice> : null}
-      <SelectField
-        label="Class"
-        name="class"
-        value={classId}
-        onChange={(e) => setClassId(e.target.value)}
-        error={errors.classId}
-        hint="Rounds for a class use the class's home-spot map and count towards its class review."
-        options={[{ value: "", label: "No class (a one-off round)" }, ...loaderData.classes.map((c) => ({ value: c.id, label: c.name }))]}
-      />
+      {/* A form of its own, as both forms below need the class: with JavaScript the choice applies at
+          once; without, "Use this class" reloads the page with it (the rest of the address kept). */}
+      <Form method="get" className="flex flex-wrap items-end gap-2">
+        {[...params].filter(([k]) => k !== "class").map(([k, v]) => (
+          <input key={k} type="hidden" name={k} value={v} />
+        ))}
+        <div className="min-w-0 flex-1">
+          <SelectField
+            label="Class"
+            name="class"
+            value={classId}
+            onChange={(e) => setClassId(e.target.value)}
+            error={errors.classId}
+            hint="Rounds for a class use the class's home-spot map and count towards its class review."
+            options={[{ value: "", label: "No class (a one-off round)" }, ...loaderData.classes.map((c) => ({ value: c.id, label: c.name }))]}
+          />
+        </div>
+        <noscript>
+          <button className={buttonClass("ghost")}>Use this class</button>
+        </noscript>
+      </Form>
       <section aria-labelledby="sets-heading">
         <div className="flex flex-wrap items-baseline justify-between gap-2">
           <h2 id="sets-heading" className="font-display text-2xl font-semibold">

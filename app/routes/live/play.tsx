@@ -6,6 +6,7 @@ import type { RoomConfig } from "~/game/roomConfig";
 import { Pad } from "~/live/Pad";
 import { openRoomByCode } from "~/rooms/rooms.server";
 import { IMMERSIVE } from "~/components/AppShell";
+import { NeedsJavaScript } from "~/components/ui";
 import type { Route } from "./+types/play";
 
 export const meta: Route.MetaFunction = () => [{ title: "Fretcall pad" }];
@@ -31,5 +32,10 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
 }
 
 export default function PlayRoute({ loaderData }: Route.ComponentProps) {
-  return <Pad {...loaderData} />;
+  return (
+    <>
+      <NeedsJavaScript what="Playing a live round" />
+      <Pad {...loaderData} />
+    </>
+  );
 }

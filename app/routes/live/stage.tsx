@@ -6,6 +6,7 @@ import { Stage } from "~/live/Stage";
 import { requireRoomAccess } from "~/rooms/access.server";
 import { hostKeyFor } from "~/rooms/rooms.server";
 import { IMMERSIVE } from "~/components/AppShell";
+import { NeedsJavaScript } from "~/components/ui";
 import type { Route } from "./+types/stage";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Room ${data?.code ?? ""} · Fretcall stage` }];
@@ -34,5 +35,10 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
 }
 
 export default function StageRoute({ loaderData }: Route.ComponentProps) {
-  return <Stage {...loaderData} />;
+  return (
+    <>
+      <NeedsJavaScript what="The class screen of a live round" />
+      <Stage {...loaderData} />
+    </>
+  );
 }

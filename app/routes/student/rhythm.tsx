@@ -2,7 +2,7 @@
 import { useEffect } from "react";
 import { data, Link } from "react-router";
 import { requireUserWithRole } from "~/auth/guards.server";
-import { buttonClass, Card, Notice, PageTitle } from "~/components/ui";
+import { buttonClass, Card, NeedsJavaScript, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
 import { noteName, STEADY_BOX, TOP_BOX } from "~/practice/adaptive";
 import { TUNE_POSITION } from "~/practice/practice.server";
@@ -31,7 +31,10 @@ export default function Rhythm({ loaderData }: Route.ComponentProps) {
     <div className="space-y-4">
       <PageTitle lead={`${tune.composer} · ${tune.beatsPerBar} beats in a bar · position ${state.position}`}>Rhythm pass: {tune.title}</PageTitle>
       {state.unlocked ? (
-        <RhythmPass tune={tune} position={state.position} />
+        <>
+          <NeedsJavaScript what="A rhythm pass" />
+          <RhythmPass tune={tune} position={state.position} />
+        </>
       ) : (
         <Card className="space-y-3">
           <Notice tone="info">

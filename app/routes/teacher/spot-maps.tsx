@@ -7,7 +7,7 @@ import { requireUserWithRole } from "~/auth/guards.server";
 import { Fretboard, type Highlight } from "~/components/Fretboard";
 import { parseSpotMapQuery } from "~/components/neckQuery";
 import { chartFrets, SpotChart } from "~/components/SpotChart";
-import { Badge, Button, Card, Notice, PageTitle, SelectField } from "~/components/ui";
+import { Badge, Button, Card, NeedsJavaScript, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
 import type { Spot } from "~/music/fretboard";
 import { spotsForSounding, soundingMidi } from "~/music/fretboard";
@@ -142,6 +142,7 @@ export default function SpotMaps({ loaderData, actionData }: Route.ComponentProp
         </p>
       </Card>
       <Card className="space-y-4 print:hidden">
+        <NeedsJavaScript what="Changing the map" />
         <fieldset>
           <legend className="font-display text-xl font-semibold">1. Pick a written note</legend>
           <div className="mt-2 flex flex-wrap gap-2">
