@@ -3,10 +3,10 @@
 import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { classes, users } from "~/db/schema";
-import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
+import { DEMO_SCHOOL } from "~/demo/school";
 import { PROTOCOL_VERSION } from "~/game/protocol";
 import { seedDemo } from "../../server/seed";
-import { Client, startTestServer, type TestServer } from "./harness";
+import { Client, signedIn, startTestServer, type TestServer } from "./harness";
 import { joinPlayer, openStage, openTestRoom } from "./rooms";
 import { TestSocket } from "./socket";
 
@@ -19,11 +19,7 @@ beforeAll(async () => {
 });
 afterAll(() => server.close());
 
-async function signIn(email: string) {
-  const client = new Client(server.url);
-  expect((await client.post("/signin", { email, password: DEMO_PASSWORD })).status).toBe(302);
-  return client;
-}
+const signIn = (email: string) => signedIn(server.url, email);
 
 const html = async (res: Response) => (await res.text()).replace(/&#x27;/g, "'");
 
