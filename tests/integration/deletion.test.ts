@@ -7,12 +7,12 @@ import { existsSync, readFileSync } from "node:fs";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createApiToken } from "~/auth/tokens.server";
 import { mailLog, practiceAnswers, roomPlayers, rooms } from "~/db/schema";
-import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
+import { DEMO_SCHOOL } from "~/demo/school";
 import { PROTOCOL_VERSION } from "~/game/protocol";
 import { loadRoomState } from "~/rooms/log.server";
 import { REMOVED_STUDENT } from "~/school/people.server";
 import { seedDemo } from "../../server/seed";
-import { Client, startTestServer, type TestServer } from "./harness";
+import { Client, signedIn, startTestServer, type TestServer } from "./harness";
 import { openStage, openTestRoom, spotOf, untilShown } from "./rooms";
 import { TestSocket } from "./socket";
 
@@ -29,11 +29,7 @@ beforeAll(async () => {
 });
 afterAll(() => server.close());
 
-async function signIn(email: string) {
-  const client = new Client(server.url);
-  expect((await client.post("/signin", { email, password: DEMO_PASSWORD })).status).toBe(302);
-  return client;
-}
+const signIn = (email: string) => signedIn(server.url, email);
 
 /** The student plays one prompt of a room of their class, signed in (so the seat is linked to the account). */
 async function playSignedIn(student: Client, end: boolean) {

@@ -1,4 +1,5 @@
 import { randomBytes } from "node:crypto";
+import { DEMO_PASSWORD } from "~/demo/school";
 import { readOutbox, type CapturedMail } from "~/mail/outbox.server";
 import { startServer, type RunningServer } from "../../server/index";
 import { startMailCatcher } from "../../server/mail-catcher";
@@ -71,4 +72,12 @@ export class Client {
   post(path: string, fields: Record<string, string>) {
     return this.request(path, { method: "POST", body: new URLSearchParams(fields) });
   }
+}
+
+/** A client signed in with a demo account's password (the sign-in must succeed). */
+export async function signedIn(base: string, email: string, password = DEMO_PASSWORD) {
+  const client = new Client(base);
+  const res = await client.post("/signin", { email, password });
+  if (res.status !== 302) throw new Error(`signing in as ${email} answered ${res.status}`);
+  return client;
 }
