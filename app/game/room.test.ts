@@ -3,7 +3,7 @@ import { spotsFor, type Spot } from "~/music/fretboard";
 import { seededRandom, type ReadingSpec } from "~/music/pools";
 import { resolveTuning } from "~/music/tuning";
 import { CLOSE_CODES, ERROR_CODES, HOST_ACTIONS, serverMessageSchema, type HostAction, type Phase, type ServerMessage } from "./protocol";
-import { initialState, LATE_GRACE_MS, playerBySeat, reduce, replay, snapshot, type Effect, type RoomEvent, type RoomRecord, type RoomState } from "./room";
+import { initialState, isStoreEffect, LATE_GRACE_MS, playerBySeat, reduce, replay, snapshot, type Answer, type Effect, type RoomEvent, type RoomRecord, type RoomState } from "./room";
 import { drawnPrompts, roomConfig, tunePrompts, type PromptNote, type RoomConfig } from "./roomConfig";
 import { summarise } from "./standings";
 
@@ -35,6 +35,8 @@ function deepFreeze(value: unknown): void {
 class Room {
   state: RoomState;
   records: RoomRecord[] = [];
+  /** Answers the steps asked to store, in order. */
+  stored: Answer[] = [];
   effects: Effect[] = [];
   now = T0;
 
@@ -48,11 +50,15 @@ class Room {
     deepFreeze(this.state);
     const step = reduce(this.state, event, leadMs === undefined ? { now: at } : { now: at, leadMs });
     for (const e of step.effects) {
-      if (e.kind === "persist") this.records.push(e.record);
+      if (e.kind === "store-event") this.records.push(e.record);
+      if (e.kind === "store-answer") this.stored.push(e.answer);
       if (e.kind === "send") serverMessageSchema.parse(e.message);
     }
-    expect(step.effects.filter((e) => e.kind === "persist").length).toBeLessThanOrEqual(1);
-    if (step.effects.some((e) => e.kind === "persist")) expect(step.effects[0]!.kind).toBe("persist");
+    expect(step.effects.filter((e) => e.kind === "store-event").length).toBeLessThanOrEqual(1);
+    // Writes come first, led by the record; none without one.
+    const writes = step.effects.filter(isStoreEffect);
+    if (writes.length > 0) expect(writes.map((e) => e.kind === "store-event")).toEqual([true, ...writes.slice(1).map(() => false)]);
+    expect(step.effects.slice(0, writes.length)).toEqual(writes);
     this.state = step.state;
     this.effects = step.effects;
     return step.effects;
@@ -102,7 +108,7 @@ describe("lobby", () => {
   it("welcomes a player with a seat and tells everyone the roster", () => {
     const room = new Room(config());
     const effects = room.join("p1", "  Sam  ");
-    expect(effects[0]).toMatchObject({ kind: "persist" });
+    expect(effects[0]).toMatchObject({ kind: "store-event" });
     const welcome = room.sent("welcome")[0]!;
     expect(welcome.to).toEqual({ to: "player", playerId: "p1" });
     expect(welcome.message).toMatchObject({ role: "player", phase: "lobby", you: { playerId: "p1", nickname: "Sam", seat: "seat-p1-0123456789abcdef", team: null } });
@@ -118,7 +124,7 @@ describe("lobby", () => {
     const before = room.state;
     const effects = room.join("p3", "x");
     expect(errorOf(effects)).toBe(ERROR_CODES.badNickname);
-    expect(effects.some((e) => e.kind === "persist")).toBe(false);
+    expect(effects.some(isStoreEffect)).toBe(false);
     expect(room.state).toBe(before);
   });
 
@@ -277,7 +283,7 @@ describe("phase transitions", () => {
     const effects = room.host(action);
     if (ok) {
       expect(errorOf(effects)).toBeUndefined();
-      expect(effects[0]).toMatchObject({ kind: "persist" });
+      expect(effects[0]).toMatchObject({ kind: "store-event" });
     } else {
       expect(errorOf(effects)).toBe(phase === "ended" ? ERROR_CODES.roomEnded : ERROR_CODES.wrongPhase);
       expect(room.state).toBe(before);
@@ -528,6 +534,19 @@ describe("replay", () => {
     const cut = Math.floor(live.records.length / 2);
     const resumed = live.records.slice(cut).reduce((s, r) => reduce(s, r.event, r.env).state, replay(live.config, live.records.slice(0, cut)));
     expect(resumed).toEqual(live.state);
+  });
+
+  it("a step asks to store exactly the seats, answers and end it brought", () => {
+    const live = playMessyRoom(31, { mode: "teams", teams: { count: 2, balance: "points" } });
+    expect(live.stored).toEqual(live.state.answers);
+    const room = new Room(config());
+    expect(room.join("ana", "  Ana ").filter(isStoreEffect).slice(1)).toEqual([{ kind: "store-seat", playerId: "ana", nickname: "Ana" }]);
+    expect(room.join("ana2", "Ana").filter(isStoreEffect).slice(1)).toEqual([{ kind: "store-seat", playerId: "ana2", nickname: "Ana 2" }]);
+    room.host("start");
+    const tapped = room.tap("ana", home(room.note()), room.shown(500)).filter(isStoreEffect);
+    expect(tapped.map((e) => e.kind)).toEqual(["store-event", "store-answer"]);
+    expect(tapped[1]).toEqual({ kind: "store-answer", answer: room.state.answers[0], note: room.config.prompts[0] });
+    expect(room.host("end", room.now + 10).filter(isStoreEffect).slice(1)).toEqual([{ kind: "store-end", at: room.now }]);
   });
 
   it("refused events and idle ticks are not persisted", () => {

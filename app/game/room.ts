@@ -12,10 +12,11 @@
  * showAt, when answers are refused, and the open window from showAt to the deadline.
  *
  * Driving it: the hub turns every socket message, connect and disconnect into a RoomEvent, calls
- * reduce with the current server time, then carries out the effects in order — "persist" first
- * (append the record to the room's log in SQLite), then "send" and "close". It keeps one timer at
- * `wakeAt` and sends a "tick" when it fires. Everything the reducer decides depends only on
- * (state, event, env), so replaying the persisted records (replay()) rebuilds the same state —
+ * reduce with the current server time, then carries out the effects in order — the "store-…" ones
+ * first (what to write to SQLite: the record for the room's log, and the seat, answer or end it
+ * brought; app/rooms/store.server.ts turns them into rows), then "send" and "close". It keeps one
+ * timer at `wakeAt` and sends a "tick" when it fires. Everything the reducer decides depends only
+ * on (state, event, env), so replaying the stored records (replay()) rebuilds the same state —
  * same scores, same streaks — after a crash.
  */
 import { spotsFor, type Spot } from "~/music/fretboard";
@@ -130,10 +131,19 @@ export interface RoomRecord {
 /** "everyone" = the stage and every connected pad of the room. */
 export type Audience = { to: "stage" } | { to: "player"; playerId: string } | { to: "everyone" };
 
-export type Effect =
-  | { kind: "persist"; record: RoomRecord }
-  | { kind: "send"; to: Audience; message: ServerMessage }
-  | { kind: "close"; to: Audience; code: CloseCode };
+/** What a step writes: its record for the room's log, then the rows beside the log that it brought. */
+export type StoreEffect =
+  | { kind: "store-event"; record: RoomRecord }
+  | { kind: "store-seat"; playerId: string; nickname: string }
+  | { kind: "store-answer"; answer: Answer; note: PromptNote }
+  | { kind: "store-end"; at: number };
+
+export type Effect = StoreEffect | { kind: "send"; to: Audience; message: ServerMessage } | { kind: "close"; to: Audience; code: CloseCode };
+
+/** The effects the hub carries out itself: messages and closes. */
+export type Delivery = Exclude<Effect, StoreEffect>;
+
+export const isStoreEffect = (e: Effect): e is StoreEffect => e.kind.startsWith("store-");
 
 export interface Step {
   state: RoomState;
@@ -154,6 +164,8 @@ interface Ctx {
   env: RoomEnv;
   out: Effect[];
   send: (to: Audience, message: ServerMessage) => void;
+  /** Rows this step writes beside its record; only accepted events add any. */
+  writes: StoreEffect[];
   /** Players already copied in this step (see own()). */
   owned: Set<Player>;
 }
@@ -161,14 +173,14 @@ interface Ctx {
 export function reduce(state: RoomState, event: RoomEvent, env: RoomEnv): Step {
   const s: RoomState = { ...state, players: [...state.players], run: state.run && { ...state.run } };
   const out: Effect[] = [];
-  const ctx: Ctx = { s, env, out, send: (to, message) => out.push({ kind: "send", to, message }), owned: new Set() };
+  const ctx: Ctx = { s, env, out, send: (to, message) => out.push({ kind: "send", to, message }), writes: [], owned: new Set() };
   const timed = applyDue(ctx);
   const accepted = handle(ctx, event);
   if (!timed && (!accepted || event.type === "tick")) return { state, effects: out, wakeAt: wakeAt(state) };
-  return { state: s, effects: [{ kind: "persist", record: { env, event } }, ...out], wakeAt: wakeAt(s) };
+  return { state: s, effects: [{ kind: "store-event", record: { env, event } }, ...ctx.writes, ...out], wakeAt: wakeAt(s) };
 }
 
-/** Rebuilds a room from its config and persisted records (then send { type: "restart" }). */
+/** Rebuilds a room from its config and stored records (then send { type: "restart" }). */
 export function replay(config: RoomConfig, records: readonly RoomRecord[]): RoomState {
   return records.reduce((state, r) => reduce(state, r.event, r.env).state, initialState(config));
 }
@@ -241,6 +253,7 @@ function join(ctx: Ctx, e: Extract<RoomEvent, { type: "join" }>): boolean {
   const nickname = uniqueNickname(clean.nickname, active(s).map((p) => p.nickname));
   const team = s.config.teams !== null && s.phase !== "lobby" ? smallestTeam(s, s.config.teams.count) : null;
   s.players.push({ id: e.playerId, nickname, seat: e.seat, online: true, removed: false, team, points: 0, streak: 0, longestStreak: 0 });
+  ctx.writes.push({ kind: "store-seat", playerId: e.playerId, nickname });
   catchUp(ctx, e.playerId);
   return true;
 }
@@ -364,6 +377,7 @@ function end(ctx: Ctx, reason: "finished" | "host"): void {
   s.ended = reason;
   s.paused = null;
   s.phaseSince = ctx.env.now;
+  ctx.writes.push({ kind: "store-end", at: ctx.env.now });
   for (const message of endMessages(s, STAGE)) ctx.send(STAGE, message);
   for (const p of active(s)) for (const message of endMessages(s, player(p.id))) ctx.send(player(p.id), message);
   ctx.out.push({ kind: "close", to: EVERYONE, code: CLOSE_CODES.roomGone });
@@ -465,6 +479,7 @@ function answer(ctx: Ctx, e: Extract<RoomEvent, { type: "answer" }>): boolean {
   me.longestStreak = Math.max(me.longestStreak, me.streak);
   const record: Answer = { playerId: p.id, promptId: run.promptId, index: run.index, spot: e.spot, tapAt: e.tapAt, at: env.now, reactionMs, diagnosis, ...scored };
   s.answers = [...s.answers, record];
+  ctx.writes.push({ kind: "store-answer", answer: record, note: n });
 
   ctx.send(player(p.id), ackMessage(record, me));
   ctx.send(STAGE, { type: "answered", promptId: run.promptId, count: answeredIds(s).size, of: active(s).length });
