@@ -4,8 +4,7 @@ import { answers, roomPlayers, rooms } from "~/db/schema";
 import { CLOSE_CODES, MAX_MESSAGE_BYTES, PROTOCOL_VERSION, RATE_LIMIT_BURST } from "~/game/protocol";
 import { seedDemo } from "../../server/seed";
 import { startTestServer, type TestServer } from "./harness";
-import { joinPlayer, openStage, openTestRoom, spotOf, untilShown } from "./rooms";
-import { TestSocket } from "./socket";
+import { joinPlayer, openStage, openTestRoom, ScriptedSocket, spotOf, untilShown } from "../../server/scripted-rooms";
 
 let server: TestServer;
 let secret: string;
@@ -70,7 +69,7 @@ describe("a full Sprint round with 30 scripted players", () => {
 describe("bad input never crashes or stalls the room", () => {
   it("answers malformed JSON, unknown types and bad fields with an error message", async () => {
     const room = await openTestRoom(server.services.db);
-    const s = await TestSocket.open(server.url);
+    const s = await ScriptedSocket.open(server.url);
     s.send("{not json");
     expect((await s.next("error")).code).toBe("bad-message");
     s.send({ type: "launch-rockets" });
@@ -84,17 +83,17 @@ describe("bad input never crashes or stalls the room", () => {
   });
 
   it("closes an oversized message with the documented code", async () => {
-    const s = await TestSocket.open(server.url);
+    const s = await ScriptedSocket.open(server.url);
     s.send({ type: "join", room: "ABCDEF", nickname: "x".repeat(MAX_MESSAGE_BYTES) });
     expect((await s.waitClose()).code).toBe(CLOSE_CODES.tooLarge);
   });
 
   it("refuses a wrong protocol version and a forged host key", async () => {
     const room = await openTestRoom(server.services.db);
-    const old = await TestSocket.open(server.url);
+    const old = await ScriptedSocket.open(server.url);
     old.send({ type: "hello", protocol: PROTOCOL_VERSION + 1, role: "player", room: room.code });
     expect((await old.waitClose()).code).toBe(CLOSE_CODES.badVersion);
-    const forger = await TestSocket.open(server.url);
+    const forger = await ScriptedSocket.open(server.url);
     forger.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "host", room: room.code, hostKey: "f".repeat(43) });
     expect((await forger.waitClose()).code).toBe(CLOSE_CODES.unauthorised);
   });
@@ -108,14 +107,14 @@ describe("bad input never crashes or stalls the room", () => {
   });
 
   it("rate-limits a flood, then closes the socket", async () => {
-    const s = await TestSocket.open(server.url);
+    const s = await ScriptedSocket.open(server.url);
     for (let i = 0; i < RATE_LIMIT_BURST + 40; i++) s.send({ type: "ping", t0: i });
     await s.next("error", (m) => m.code === "rate-limited");
     expect((await s.waitClose()).code).toBe(CLOSE_CODES.rateLimited);
   });
 
   it("refuses a socket from another site", async () => {
-    await expect(TestSocket.open(server.url, "http://elsewhere.example")).rejects.toThrow(/403/);
+    await expect(ScriptedSocket.open(server.url, "http://elsewhere.example")).rejects.toThrow(/403/);
   });
 
   it("refuses second answers, answers to another prompt and answers after the deadline", async () => {
@@ -159,7 +158,7 @@ describe("reconnecting", () => {
     const ack = await pad.next("answer-ack");
     pad.close();
     await stage.next("roster", (m) => m.players.some((p) => p.playerId === you.playerId && !p.online));
-    const again = await TestSocket.open(server.url);
+    const again = await ScriptedSocket.open(server.url);
     again.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: room.code, seat: you.seat });
     const welcome = await again.next("welcome", (m) => m.you !== null);
     expect(welcome.you!.playerId).toBe(you.playerId);
