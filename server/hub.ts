@@ -22,7 +22,7 @@ import {
   type ServerMessage,
 } from "~/game/protocol";
 import { cleanNickname } from "~/game/nickname";
-import { playerBySeat, snapshot } from "~/game/room";
+import { playerBySeatToken, snapshot } from "~/game/room";
 import { hostKeyMatches } from "~/rooms/rooms.server";
 import { RoomStore } from "~/rooms/store.server";
 import { LiveRoom, send, type Conn, type RoomHost } from "./live-room";
@@ -136,8 +136,8 @@ export class Hub implements RoomHost {
       send(conn, JSON.stringify(errorMessage(ERROR_CODES.unauthorised, "That stage key is not valid for this room.")));
       return conn.ws.close(CLOSE_CODES.unauthorised, "bad host key");
     }
-    const seated = m.role === "player" && m.seat ? playerBySeat(room.state, m.seat) : undefined;
-    if (m.role === "player" && m.seat && !seated) {
+    const seated = m.role === "player" && m.seatToken ? playerBySeatToken(room.state, m.seatToken) : undefined;
+    if (m.role === "player" && m.seatToken && !seated) {
       send(conn, JSON.stringify(errorMessage(ERROR_CODES.unknownPlayer, "That seat is no longer in this room. Join again.")));
     }
     this.leave(conn);
@@ -188,7 +188,7 @@ export class Hub implements RoomHost {
     conn.role = "player";
     this.seat(conn, room, playerId);
     const nickname = account !== undefined && cleanNickname(account).ok ? account : typed;
-    room.dispatch({ type: "join", playerId, seat: nanoid(32), nickname }, { userId: account !== undefined ? conn.userId : null });
+    room.dispatch({ type: "join", playerId, seatToken: nanoid(32), nickname }, { userId: account !== undefined ? conn.userId : null });
     // A refused join leaves no seat behind (the pad still gets the refusal, delivered in order).
     if (!room.state.players.some((p) => p.id === playerId)) {
       conn.playerId = null;

@@ -103,7 +103,7 @@ function playRound(config: ReturnType<typeof configFromSetup>, roomId: string, s
 
   present.forEach((s, i) => {
     now += 1_500;
-    apply({ type: "join", playerId: `${roomId}-p${i + 1}`, seat: `${roomId}-seat${i + 1}`, nickname: s.name }, s.id);
+    apply({ type: "join", playerId: `${roomId}-p${i + 1}`, seatToken: `${roomId}-seat${i + 1}`, nickname: s.name }, s.id);
   });
   // `apply` replaces the state, which the compiler cannot see inside the loop.
   const phase = () => state.phase;

@@ -3,7 +3,7 @@ import { spotsFor, type Spot } from "~/music/fretboard";
 import { seededRandom, type ReadingSpec } from "~/music/pools";
 import { resolveTuning } from "~/music/tuning";
 import { CLOSE_CODES, ERROR_CODES, HOST_ACTIONS, serverMessageSchema, type HostAction, type Phase, type ServerMessage } from "./protocol";
-import { initialState, isStoreEffect, LATE_GRACE_MS, playerBySeat, reduce, replay, snapshot, type Answer, type Effect, type RoomEvent, type RoomRecord, type RoomState } from "./room";
+import { initialState, isStoreEffect, LATE_GRACE_MS, playerBySeatToken, reduce, replay, snapshot, type Answer, type Effect, type RoomEvent, type RoomRecord, type RoomState } from "./room";
 import { drawnPrompts, roomConfig, tunePrompts, type PromptNote, type RoomConfig } from "./roomConfig";
 import { summarise } from "./standings";
 
@@ -65,7 +65,7 @@ class Room {
   }
 
   join(id: string, nickname = id, at = this.now) {
-    return this.do({ type: "join", playerId: id, seat: `seat-${id}-0123456789abcdef`, nickname }, at);
+    return this.do({ type: "join", playerId: id, seatToken: `seat-${id}-0123456789abcdef`, nickname }, at);
   }
   host(action: HostAction, at = this.now, priorPoints?: Record<string, number>) {
     return this.do(priorPoints ? { type: "host", action, priorPoints } : { type: "host", action }, at);
@@ -111,9 +111,9 @@ describe("lobby", () => {
     expect(effects[0]).toMatchObject({ kind: "store-event" });
     const welcome = room.sent("welcome")[0]!;
     expect(welcome.to).toEqual({ to: "player", playerId: "p1" });
-    expect(welcome.message).toMatchObject({ role: "player", phase: "lobby", you: { playerId: "p1", nickname: "Sam", seat: "seat-p1-0123456789abcdef", team: null } });
+    expect(welcome.message).toMatchObject({ role: "player", phase: "lobby", you: { playerId: "p1", nickname: "Sam", seatToken: "seat-p1-0123456789abcdef", team: null } });
     expect(room.sent("roster").map((e) => e.to)).toEqual([{ to: "everyone" }]);
-    expect(playerBySeat(room.state, "seat-p1-0123456789abcdef")?.id).toBe("p1");
+    expect(playerBySeatToken(room.state, "seat-p1-0123456789abcdef")?.id).toBe("p1");
   });
 
   it("de-duplicates nicknames and refuses bad ones without changing state", () => {
@@ -346,9 +346,55 @@ describe("phase transitions", () => {
     const effects = room.do({ type: "remove", playerId: "ben" });
     expect(effects).toContainEqual({ kind: "close", to: { to: "player", playerId: "ben" }, code: CLOSE_CODES.removed });
     expect(room.state.phase).toBe("reveal");
-    expect(playerBySeat(room.state, "seat-ben-0123456789abcdef")).toBeUndefined();
+    expect(playerBySeatToken(room.state, "seat-ben-0123456789abcdef")).toBeUndefined();
     expect(errorOf(room.do({ type: "online", playerId: "ben" }))).toBe(ERROR_CODES.unknownPlayer);
     expect(summarise(room.state).map((s) => s.playerId)).toEqual(["ana"]);
+  });
+
+  it("every message that changes the phase carries it, and the stage's snapshot shows the same screen", () => {
+    const room = new Room(config({ standingsEvery: 2 }));
+    room.join("ana");
+    room.join("ben");
+    /** What a stage that folds the messages of a step (or of a snapshot) believes. */
+    const screen = (messages: ServerMessage[], from: { phase: Phase | null; pausedFrom: string | null; last: string | null }) =>
+      messages.reduce(
+        (view, m) => ({
+          phase: "phase" in m ? m.phase : view.phase,
+          pausedFrom: m.type === "paused" || m.type === "welcome" ? m.pausedFrom : m.type === "resumed" ? null : view.pausedFrom,
+          last: ["prompt", "reveal", "standings", "ended"].includes(m.type) ? m.type : view.last,
+        }),
+        from,
+      );
+    let live = screen(snapshot(room.state, { role: "host" }, room.now), { phase: null, pausedFrom: null, last: null });
+    const steps: (() => unknown)[] = [
+      () => room.host("start"),
+      () => room.host("pause"),
+      () => room.host("resume"),
+      () => room.tap("ana", home(room.note()), room.shown(100)),
+      () => room.tap("ben", home(room.note()), room.shown(200)),
+      () => room.host("pause"),
+      () => room.host("resume"),
+      () => room.host("next"),
+      () => room.host("skip"),
+      () => room.host("next"),
+      () => room.host("pause"),
+      () => room.host("resume"),
+      () => room.host("end"),
+    ];
+    const seen = new Set<string>();
+    for (const step of steps) {
+      step();
+      const toStage = room.sent().filter((e) => e.to.to !== "player").map((e) => e.message);
+      for (const m of toStage) if ("phase" in m) expect(m.phase).toBe(room.state.phase);
+      live = screen(toStage, live);
+      expect(live.phase).toBe(room.state.phase);
+      expect(live.pausedFrom).toBe(room.state.paused?.from ?? null);
+      // A reloaded stage: the snapshot alone gives the same phase and the same screen.
+      const reloaded = screen(snapshot(room.state, { role: "host" }, room.now), { phase: null, pausedFrom: null, last: null });
+      expect(reloaded).toEqual(live);
+      seen.add(room.state.phase === "paused" ? `paused in ${room.state.paused!.from}` : room.state.phase);
+    }
+    expect([...seen].sort()).toEqual(["ended", "paused in prompt", "paused in reveal", "paused in standings", "prompt", "reveal", "standings"]);
   });
 
   it("a reconnecting pad gets the prompt and its own answer back", () => {
@@ -357,7 +403,7 @@ describe("phase transitions", () => {
     room.do({ type: "offline", playerId: "ana" });
     room.do({ type: "online", playerId: "ana" });
     expect(room.sent().filter((e) => e.to.to === "player").map((e) => e.message.type)).toEqual(["welcome", "prompt", "answer-ack"]);
-    expect(snapshot(room.state, { role: "host" }, room.now).map((m) => m.type)).toEqual(["welcome", "roster", "prompt"]);
+    expect(snapshot(room.state, { role: "host" }, room.now).map((m) => m.type)).toEqual(["welcome", "roster", "prompt", "answered"]);
     expect(snapshot(room.state, { role: "player", playerId: null }, room.now)[0]).toMatchObject({ type: "welcome", you: null });
   });
 

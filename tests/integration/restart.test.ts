@@ -113,7 +113,7 @@ describe("kill and restart mid-round", () => {
     expect((await stage2.next("welcome")).phase).toBe("paused");
     for (const { you } of players) {
       const pad = await ScriptedSocket.open(url);
-      pad.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: room.code, seat: you.seat });
+      pad.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: room.code, seatToken: you.seatToken });
       expect((await pad.next("welcome", (m) => m.you !== null)).you!.playerId).toBe(you.playerId);
     }
     stage2.send({ type: "host", action: "resume" });
