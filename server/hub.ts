@@ -28,7 +28,8 @@ import { RoomStore } from "~/rooms/store.server";
 import { LiveRoom, send, type Conn, type RoomHost } from "./live-room";
 import { SqlWriter } from "./sql-writer";
 
-const errorMessage = (code: ErrorCode, message: string): ServerMessage => ({ type: "error", code, message });
+/** An `error` to one socket: what it sent was refused, and nothing changed. */
+const refuse = (conn: Conn, code: ErrorCode, message: string) => send(conn, JSON.stringify({ type: "error", code, message } satisfies ServerMessage));
 
 export class Hub implements RoomHost {
   readonly store: RoomStore;
@@ -70,12 +71,12 @@ export class Hub implements RoomHost {
         const taken = takeToken(conn.bucket, receivedAt);
         conn.bucket = taken.bucket;
         if (taken.verdict === "close") return ws.close(CLOSE_CODES.rateLimited, "too many messages");
-        if (taken.verdict === "refuse") return send(conn, JSON.stringify(errorMessage(ERROR_CODES.rateLimited, "Slow down: too many messages.")));
+        if (taken.verdict === "refuse") return refuse(conn, ERROR_CODES.rateLimited, "Slow down: too many messages.");
         conn.queue = conn.queue
           .then(() => this.onMessage(conn, isBinary ? data : data.toString("utf8"), receivedAt))
           .catch((error: unknown) => {
             console.error("hub: message failed", error);
-            send(conn, JSON.stringify(errorMessage(ERROR_CODES.badMessage, "The server could not handle that message.")));
+            refuse(conn, ERROR_CODES.badMessage, "The server could not handle that message.");
           });
       });
       ws.on("close", () => this.leave(conn));
@@ -95,7 +96,7 @@ export class Hub implements RoomHost {
   private async onMessage(conn: Conn, raw: string | Buffer, receivedAt: number) {
     const parsed = parseClientMessage(typeof raw === "string" ? raw : new Uint8Array(raw));
     if (!parsed.ok) {
-      send(conn, JSON.stringify(errorMessage(parsed.error.code, parsed.error.message)));
+      refuse(conn, parsed.error.code, parsed.error.message);
       if (parsed.close !== null) conn.ws.close(parsed.close, parsed.error.code);
       return;
     }
@@ -113,13 +114,13 @@ export class Hub implements RoomHost {
     if (m.type === "hello") return this.hello(conn, m);
     if (m.type === "join") return this.join(conn, m.room, m.nickname);
     const room = conn.room;
-    if (!room) return send(conn, JSON.stringify(errorMessage(ERROR_CODES.notJoined, "Say hello to a room first.")));
+    if (!room) return refuse(conn, ERROR_CODES.notJoined, "Say hello to a room first.");
     if (m.type === "answer") {
-      if (conn.role !== "player" || !conn.playerId) return send(conn, JSON.stringify(errorMessage(ERROR_CODES.notJoined, "Join the room before answering.")));
+      if (conn.role !== "player" || !conn.playerId) return refuse(conn, ERROR_CODES.notJoined, "Join the room before answering.");
       const tapAt = tapServerTime(conn.estimate, m.tapAt, receivedAt);
       return room.dispatch({ type: "answer", playerId: conn.playerId, promptId: m.promptId, spot: m.spot, tapAt });
     }
-    if (conn.role !== "host") return send(conn, JSON.stringify(errorMessage(ERROR_CODES.notHost, "Only the teacher's stage can do that.")));
+    if (conn.role !== "host") return refuse(conn, ERROR_CODES.notHost, "Only the teacher's stage can do that.");
     if (m.type === "remove") return room.dispatch({ type: "remove", playerId: m.playerId });
     // Only Teams balanced on points needs the class's history, so only then is it read.
     const priorPoints = m.action === "start" && room.state.config.teams?.balance === "points" ? await this.store.priorPoints(room.id) : undefined;
@@ -129,16 +130,16 @@ export class Hub implements RoomHost {
   private async hello(conn: Conn, m: Extract<ClientMessage, { type: "hello" }>) {
     const room = await this.room(m.room);
     if (!room) {
-      send(conn, JSON.stringify(errorMessage(ERROR_CODES.roomNotFound, "No open room has that code. Check the code on the class screen.")));
+      refuse(conn, ERROR_CODES.roomNotFound, "No open room has that code. Check the code on the class screen.");
       return conn.ws.close(CLOSE_CODES.roomGone, "no such room");
     }
     if (m.role === "host" && !hostKeyMatches(this.secret, room.id, m.hostKey)) {
-      send(conn, JSON.stringify(errorMessage(ERROR_CODES.unauthorised, "That stage key is not valid for this room.")));
+      refuse(conn, ERROR_CODES.unauthorised, "That stage key is not valid for this room.");
       return conn.ws.close(CLOSE_CODES.unauthorised, "bad host key");
     }
     const seated = m.role === "player" && m.seatToken ? playerBySeatToken(room.state, m.seatToken) : undefined;
     if (m.role === "player" && m.seatToken && !seated) {
-      send(conn, JSON.stringify(errorMessage(ERROR_CODES.unknownPlayer, "That seat is no longer in this room. Join again.")));
+      refuse(conn, ERROR_CODES.unknownPlayer, "That seat is no longer in this room. Join again.");
     }
     this.leave(conn);
     conn.room = room;
@@ -173,11 +174,12 @@ export class Hub implements RoomHost {
     room.inOrder(() => void (conn.listening = conn.room === room));
   }
 
+  /** The join path, whole: a pad asks for a new seat under a nickname. */
   private async join(conn: Conn, code: string, typed: string) {
     const room = await this.room(code);
-    if (!room) return send(conn, JSON.stringify(errorMessage(ERROR_CODES.roomNotFound, "No open room has that code. Check the code on the class screen.")));
+    if (!room) return refuse(conn, ERROR_CODES.roomNotFound, "No open room has that code. Check the code on the class screen.");
     if (conn.playerId && room.pads.get(conn.playerId) === conn) {
-      return send(conn, JSON.stringify(errorMessage(ERROR_CODES.badMessage, "This phone has already joined the room.")));
+      return refuse(conn, ERROR_CODES.badMessage, "This phone has already joined the room.");
     }
     // A signed-in student plays under their own name, linked to their account; a name that is
     // not a valid nickname (too long, odd characters) must not lock them out, so the typed one is used then.
