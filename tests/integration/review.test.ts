@@ -6,7 +6,7 @@ import { answers, roomPlayers, rooms } from "~/db/schema";
 import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
 import { seedDemo } from "../../server/seed";
 import { Client, startTestServer, type TestServer } from "./harness";
-import { openTestRoom } from "./rooms";
+import { openTestRoom } from "../../server/scripted-rooms";
 
 let server: TestServer;
 beforeAll(async () => {

@@ -1,9 +1,11 @@
 import QRCode from "qrcode";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
+import { snapshot } from "~/game/room";
 import type { RoomConfig } from "~/game/roomConfig";
 import { Stage } from "~/live/Stage";
 import { requireRoomAccess } from "~/rooms/access.server";
+import { loadRoomState } from "~/rooms/log.server";
 import { hostKeyFor } from "~/rooms/rooms.server";
 import { IMMERSIVE } from "~/components/AppShell";
 import { NeedsJavaScript } from "~/components/ui";
@@ -21,6 +23,8 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const config = room.config as RoomConfig;
   // The address the teacher reached us on is the one the class's phones can reach too.
   const joinUrl = `${new URL(request.url).origin}/join?code=${room.code}`;
+  // An ended room has no live socket to connect to: its last screen comes from its log.
+  const ended = room.endedAt ? await loadRoomState(db, room.id) : undefined;
   return {
     roomId: room.id,
     code: room.code,
@@ -31,6 +35,7 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
     tuning: config.tuning,
     frets: config.frets,
     position: room.position,
+    finalScreen: ended ? snapshot(ended.state, { role: "host" }, Date.now()) : null,
   };
 }
 
