@@ -6,7 +6,7 @@
  * memory (after a restart) is rebuilt by replaying its log.
  */
 import type { InStatement, InValue } from "@libsql/client";
-import { eq, getTableColumns, getTableName, inArray, sql, type InferInsertModel, type Table } from "drizzle-orm";
+import { and, eq, getTableColumns, getTableName, inArray, sql, type InferInsertModel, type Table } from "drizzle-orm";
 import { nanoid } from "nanoid";
 import type { IncomingMessage } from "node:http";
 import type { WebSocket, WebSocketServer } from "ws";
@@ -434,9 +434,10 @@ export class Hub {
     if (conn.playerId && room.pads.get(conn.playerId) === conn) {
       return send(conn, JSON.stringify(errorMessage(ERROR_CODES.badMessage, "This phone has already joined the room.")));
     }
-    // A signed-in student plays under their own name, linked to their account; a name that is
-    // not a valid nickname (too long, odd characters) must not lock them out, so the typed one is used then.
-    const account = conn.userId ? await this.studentName(conn.userId) : undefined;
+    // A signed-in student of the room's school plays under their own name, linked to their account (in
+    // another school's room, as a guest); a name that is not a valid nickname (too long, odd characters)
+    // must not lock them out, so the typed one is used then.
+    const account = conn.userId ? await this.studentName(conn.userId, room.id) : undefined;
     this.leave(conn);
     const playerId = nanoid(12);
     conn.room = room;
@@ -453,9 +454,13 @@ export class Hub {
     }
   }
 
-  private async studentName(userId: string) {
-    const [row] = await this.db.select({ name: users.displayName, role: users.role }).from(users).where(eq(users.id, userId));
-    return row?.role === "student" ? row.name : undefined;
+  private async studentName(userId: string, roomId: string) {
+    const [row] = await this.db
+      .select({ name: users.displayName })
+      .from(users)
+      .innerJoin(rooms, eq(rooms.orgId, users.orgId))
+      .where(and(eq(users.id, userId), eq(users.role, "student"), eq(rooms.id, roomId)));
+    return row?.name;
   }
 
   /** Points from the class's earlier rounds, by player of this room, to balance Teams. */

@@ -54,7 +54,7 @@ export async function action({ request, params, context }: Route.ActionArgs): Pr
   const form = await request.formData();
   const intent = form.get("intent");
   const sent = async (invites: Parameters<typeof mailInvitations>[2], what: string) => {
-    const failed = await mailInvitations(mailer, env.PUBLIC_URL, invites, "student", cls.name);
+    const failed = await mailInvitations(mailer, env.PUBLIC_URL, invites, "student", cls.name, cls.orgId);
     return failed
       ? { notice: what, error: `${failed} invitation e-mail${failed === 1 ? "" : "s"} couldn't be sent; use “Resend invitation” later.` }
       : { notice: what };
