@@ -1,9 +1,9 @@
 import QRCode from "qrcode";
+import { requireRound } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
 import type { RoomConfig } from "~/game/roomConfig";
 import { Stage } from "~/live/Stage";
-import { requireRoomAccess } from "~/rooms/access.server";
 import { hostKeyFor } from "~/rooms/rooms.server";
 import { IMMERSIVE } from "~/components/AppShell";
 import type { Route } from "./+types/stage";
@@ -16,7 +16,7 @@ export const handle = IMMERSIVE;
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db, env } = services(context);
-  const room = await requireRoomAccess(db, user, params.roomId);
+  const room = await requireRound(db, user, params.roomId);
   const config = room.config as RoomConfig;
   // The address the teacher reached us on is the one the class's phones can reach too.
   const joinUrl = `${new URL(request.url).origin}/join?code=${room.code}`;

@@ -1,11 +1,12 @@
 // The teacher's reading sets: their own and the school's, the ready-made progression, and copying a set into a class.
 import { data, Form, Link, redirect } from "react-router";
+import { mayFileUnderClass, requireReadingSet } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { DataTable, type Column } from "~/components/DataTable";
 import { Badge, Button, buttonClass, Card, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
-import { READING_PRESETS } from "~/reading/presets";
-import { createSet, deleteSet, hostableSet, mayUseClass, setFor, setsFor, type SavedSet } from "~/reading/sets.server";
+import { READING_PRESETS, readingPreset } from "~/reading/presets";
+import { createSet, deleteSet, hostableSet, setFor, setsFor, type SavedSet } from "~/reading/sets.server";
 import { summarise } from "~/reading/spec";
 import { classesFor } from "~/school/classes.server";
 import type { Route } from "./+types/reading-sets";
@@ -30,6 +31,7 @@ export async function action({ request, context }: Route.ActionArgs) {
   const form = await request.formData();
   const id = String(form.get("id") ?? "");
   if (form.get("intent") === "delete") {
+    await requireReadingSet(db, user, id, "edit");
     const set = await setFor(db, user, id);
     if (!set) throw data({ error: "No such reading set." }, { status: 404 });
     await deleteSet(db, set.id);
@@ -37,9 +39,10 @@ export async function action({ request, context }: Route.ActionArgs) {
   }
   if (form.get("intent") === "copy") {
     const classId = String(form.get("classId") ?? "") || null;
+    if (!readingPreset(id)) await requireReadingSet(db, user, id, "see");
     const from = await hostableSet(db, user, id);
     if (!from) return { error: "That reading set doesn't exist or needs an edit first." };
-    if (!(await mayUseClass(db, user, classId))) return { error: "You don't teach that class." };
+    if (!(await mayFileUnderClass(db, user, classId))) return { error: "You don't teach that class." };
     const copy = await createSet(db, user, { name: from.source.name, classId, spec: from.spec });
     return redirect(`/teach/sets/${copy}`);
   }
