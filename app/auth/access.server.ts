@@ -7,6 +7,7 @@ import { and, eq, inArray } from "drizzle-orm";
 import { data } from "react-router";
 import type { Db } from "~/db/client.server";
 import { classes, memberships, readingSets, rooms, tunes, users } from "~/db/schema";
+import { readingPreset } from "~/reading/presets";
 import { builtinTune } from "~/tunes/builtin";
 import type { SessionUser } from "./users.server";
 
@@ -94,6 +95,8 @@ export async function requireRound(db: Db, user: SessionUser, roomId: string) {
 // ---- reading sets ----------------------------------------------------------------------------------
 
 async function readingSetAccess(db: Db, user: SessionUser, id: string, change: boolean): Promise<Access> {
+  // Ready-made sets belong to every school and to nobody: all teachers may use them, none may change them.
+  if (readingPreset(id)) return user.role !== "student" && !change ? "ok" : "forbidden";
   const [set] = await db
     .select({ classId: readingSets.classId, createdBy: readingSets.createdBy })
     .from(readingSets)

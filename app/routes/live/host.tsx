@@ -1,6 +1,6 @@
 import { useState } from "react";
 import { Form, Link, redirect, useNavigation } from "react-router";
-import { mayFileUnderClass, requireRound } from "~/auth/access.server";
+import { mayFileUnderClass, requireReadingSet, requireRound } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { Button, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
@@ -64,7 +64,9 @@ export async function action({ request, context }: Route.ActionArgs) {
   const intent = form.get("intent");
   const classId = String(form.get("classId") ?? "") || undefined;
   if (intent === "set") {
-    const chosen = await hostableSet(db, user, String(form.get("set") ?? ""));
+    const setId = String(form.get("set") ?? "");
+    await requireReadingSet(db, user, setId, "see");
+    const chosen = await hostableSet(db, user, setId);
     if (!chosen) return { errors: { set: "That reading set doesn't exist or needs an edit first." } as Errors };
     return open(db, user, setupFromSet(chosen.spec, classId), chosen.source);
   }

@@ -5,7 +5,7 @@ import { requireUserWithRole } from "~/auth/guards.server";
 import { DataTable, type Column } from "~/components/DataTable";
 import { Badge, Button, buttonClass, Card, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
-import { READING_PRESETS, readingPreset } from "~/reading/presets";
+import { READING_PRESETS } from "~/reading/presets";
 import { createSet, deleteSet, hostableSet, setFor, setsFor, type SavedSet } from "~/reading/sets.server";
 import { summarise } from "~/reading/spec";
 import { classesFor } from "~/school/classes.server";
@@ -39,7 +39,7 @@ export async function action({ request, context }: Route.ActionArgs) {
   }
   if (form.get("intent") === "copy") {
     const classId = String(form.get("classId") ?? "") || null;
-    if (!readingPreset(id)) await requireReadingSet(db, user, id, "see");
+    await requireReadingSet(db, user, id, "see");
     const from = await hostableSet(db, user, id);
     if (!from) return { error: "That reading set doesn't exist or needs an edit first." };
     if (!(await mayFileUnderClass(db, user, classId))) return { error: "You don't teach that class." };
