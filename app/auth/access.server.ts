@@ -1,5 +1,6 @@
 // Every "may this user see or change this thing" rule, in one place; the rules and why are in
-// docs/decisions/0005-access-rules.md. Each `can…` answers "ok", "forbidden" (the thing is in the user's
+// docs/decisions/0005-access-rules.md. Each question (`canTeachClass`, `readingSetAccess`, `tuneAccess`,
+// `canReadStudent`, `canExportPerson`, the round's) answers "ok", "forbidden" (the thing is in the user's
 // school but not theirs to see or change) or "missing" (no such thing in their school: another school's
 // things are never admitted to exist). The `require…` wrappers throw 404 or 403 — JSON for the API,
 // the app's error boundary for pages — and return the thing.
@@ -94,9 +95,15 @@ export async function requireRound(db: Db, user: SessionUser, roomId: string) {
 
 // ---- reading sets ----------------------------------------------------------------------------------
 
-async function readingSetAccess(db: Db, user: SessionUser, id: string, change: boolean): Promise<Access> {
-  // Ready-made sets belong to every school and to nobody: all teachers may use them, none may change them.
-  if (readingPreset(id)) return user.role !== "student" && !change ? "ok" : "forbidden";
+type Intent = "see" | "edit";
+
+/**
+ * A saved reading set. Seeing it (and hosting, copying): any teacher for a school-wide set, the class's teachers for
+ * a class's set. Changing or deleting it: a class's set by any of its teachers, a school-wide set by its author only.
+ * Admins: all of the school's. Ready-made sets: every teacher may use them, nobody may change them.
+ */
+export async function readingSetAccess(db: Db, user: SessionUser, id: string, intent: Intent): Promise<Access> {
+  if (readingPreset(id)) return user.role !== "student" && intent === "see" ? "ok" : "forbidden";
   const [set] = await db
     .select({ classId: readingSets.classId, createdBy: readingSets.createdBy })
     .from(readingSets)
@@ -106,45 +113,29 @@ async function readingSetAccess(db: Db, user: SessionUser, id: string, change: b
   if (user.role !== "teacher") return "forbidden";
   const ofClass = set.classId !== null && (await teaches(db, user.id, set.classId));
   const see = set.classId === null || ofClass;
-  return verdict(true, change ? see && (ofClass || set.createdBy === user.id) : see);
+  return verdict(true, intent === "edit" ? see && (ofClass || set.createdBy === user.id) : see);
 }
 
-/** Seeing (and hosting, copying) a saved set: any teacher for a school-wide set, the class's teachers for a class's set, admins all. */
-export function canSeeReadingSet(db: Db, user: SessionUser, id: string) {
-  return readingSetAccess(db, user, id, false);
-}
-
-/** Changing or deleting a set: a class's set by any of its teachers, a school-wide set by its author only; admins all. */
-export function canEditReadingSet(db: Db, user: SessionUser, id: string) {
-  return readingSetAccess(db, user, id, true);
-}
-
-export async function requireReadingSet(db: Db, user: SessionUser, id: string, intent: "see" | "edit") {
-  enforce(await (intent === "edit" ? canEditReadingSet : canSeeReadingSet)(db, user, id), "reading set");
+export async function requireReadingSet(db: Db, user: SessionUser, id: string, intent: Intent) {
+  enforce(await readingSetAccess(db, user, id, intent), "reading set");
 }
 
 // ---- tunes -----------------------------------------------------------------------------------------
 
-async function tuneAccess(db: Db, user: SessionUser, tuneId: string, change: boolean): Promise<Access> {
-  // Built-in tunes belong to every school and to nobody: all may play them, none may change them.
-  if (builtinTune(tuneId)) return change ? "forbidden" : "ok";
+/**
+ * A tune. Seeing it: everyone in its school (teachers host it, students take its rhythm pass). Changing or
+ * deleting an upload: the teacher who uploaded it and the school's admins. Built-in tunes belong to every
+ * school and to nobody: all may play them, none may change them.
+ */
+export async function tuneAccess(db: Db, user: SessionUser, tuneId: string, intent: Intent): Promise<Access> {
+  if (builtinTune(tuneId)) return intent === "see" ? "ok" : "forbidden";
   const [tune] = await db.select({ createdBy: tunes.createdBy }).from(tunes).where(and(eq(tunes.id, tuneId), eq(tunes.orgId, user.orgId)));
   if (!tune) return "missing";
-  return verdict(true, !change || user.role === "admin" || (user.role === "teacher" && tune.createdBy === user.id));
+  return verdict(true, intent === "see" || user.role === "admin" || (user.role === "teacher" && tune.createdBy === user.id));
 }
 
-/** Seeing a tune: everyone in its school (teachers host it, students take its rhythm pass). */
-export function canSeeTune(db: Db, user: SessionUser, tuneId: string) {
-  return tuneAccess(db, user, tuneId, false);
-}
-
-/** Changing or deleting an uploaded tune: the teacher who uploaded it and the school's admins. */
-export function canEditTune(db: Db, user: SessionUser, tuneId: string) {
-  return tuneAccess(db, user, tuneId, true);
-}
-
-export async function requireTune(db: Db, user: SessionUser, tuneId: string, intent: "see" | "edit") {
-  enforce(await (intent === "edit" ? canEditTune : canSeeTune)(db, user, tuneId), "tune");
+export async function requireTune(db: Db, user: SessionUser, tuneId: string, intent: Intent) {
+  enforce(await tuneAccess(db, user, tuneId, intent), "tune");
 }
 
 // ---- students and their data -----------------------------------------------------------------------

@@ -1,5 +1,5 @@
 import { data, Form, Link, redirect } from "react-router";
-import { canEditTune, requireTune } from "~/auth/access.server";
+import { requireTune, tuneAccess } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { Staff } from "~/components/Staff";
 import { Button, buttonClass, Card, Notice, PageTitle, SelectField } from "~/components/ui";
@@ -29,7 +29,7 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   // A Tune walk in this position can only ask for notes the position reaches.
   const outside = notes.filter((n) => !homeSpotFor(map, pitchMidi(parsePitch(n.pitch)))).map((n) => `${displayPitch(parsePitch(n.pitch))} (bar ${n.bar})`);
   const bars = Array.from({ length: to - from + 1 }, (_, i) => from + i).map((bar) => ({ bar, notes: notes.filter((n) => n.bar === bar).map((n) => n.pitch) }));
-  const canDelete = (await canEditTune(db, user, tune.id)) === "ok";
+  const canDelete = (await tuneAccess(db, user, tune.id, "edit")) === "ok";
   return { tune: { id: tune.id, title: tune.title, builtin: tune.builtin, keyFifths: tune.keyFifths, lastBar }, canDelete, position, from, to, bars, outside };
 }
 
