@@ -2,7 +2,7 @@
 // the note pool on the staff and the neck, computed in the browser by the isomorphic engine.
 import { useMemo, useRef, useState } from "react";
 import { data, Form, Link, redirect, useNavigation } from "react-router";
-import { mayFileUnderClass, requireReadingSet } from "~/auth/access.server";
+import { mayFileUnderClass, readingSetAccess, requireReadingSet } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { PoolPreview } from "~/components/PoolPreview";
 import { Button, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
@@ -28,12 +28,13 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
     const url = new URL(request.url);
     const preset = readingPreset(url.searchParams.get("from") ?? "ready-naturals-5")!;
     const classId = url.searchParams.get("class");
-    return { id: null, name: "", classId: classList.some((c) => c.id === classId) ? classId : null, spec: preset.spec, classes: classList };
+    return { id: null, name: "", classId: classList.some((c) => c.id === classId) ? classId : null, spec: preset.spec, classes: classList, canDelete: false };
   }
   await requireReadingSet(db, user, params.id, "see");
   const set = await setFor(db, user, params.id);
   if (!set) throw data({ error: "No such reading set." }, { status: 404 });
-  return { id: set.id, name: set.name, classId: set.classId, spec: set.spec ?? readingPreset("ready-naturals-5")!.spec, classes: classList };
+  const canDelete = (await readingSetAccess(db, user, set.id, "edit")) === "ok";
+  return { id: set.id, name: set.name, classId: set.classId, spec: set.spec ?? readingPreset("ready-naturals-5")!.spec, classes: classList, canDelete };
 }
 
 export async function action({ request, params, context }: Route.ActionArgs) {
@@ -245,7 +246,7 @@ export default function ReadingSetPage({ loaderData, actionData }: Route.Compone
           ) : null}
         </Card>
       </div>
-      {loaderData.id ? (
+      {loaderData.canDelete ? (
         <Form method="post" onSubmit={(e) => !confirm(`Delete “${loaderData.name}”?`) && e.preventDefault()}>
           <input type="hidden" name="intent" value="delete" />
           <Button type="submit" tone="ghost">
