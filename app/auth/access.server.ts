@@ -16,14 +16,14 @@ export type Access = "ok" | "forbidden" | "missing";
 
 const verdict = (inSchool: boolean, allowed: boolean): Access => (!inSchool ? "missing" : allowed ? "ok" : "forbidden");
 
-const FORBIDDEN: Record<string, string> = {
+const FORBIDDEN = {
   class: "Only the class's teachers and the school's admins may open this class.",
   round: "Only the round's host, its class's teachers and the school's admins may open this round.",
   "reading set": "Only its author, its class's teachers and the school's admins may change this reading set. Copy it to make your own.",
   tune: "Only the teacher who uploaded a tune and the school's admins may change it; built-in tunes can't be changed.",
   student: "Only the student, their class's teachers and the school's admins may see this student's data.",
   person: "Only the person and their school's admins may download this data.",
-};
+} as const;
 
 /** Throws the refusal for a verdict that isn't "ok": 404 without a hint, or 403 with the rule in words. */
 function enforce(access: Access, what: keyof typeof FORBIDDEN) {
