@@ -59,19 +59,8 @@ const SCORE = `<?xml version="1.0" encoding="UTF-8"?>
   </part>
 </score-partwise>`;
 
-const SET_FORM = {
-  mode: "sprint",
-  position: "5",
-  tuning: "standard",
-  frets: "15",
-  lowest: "",
-  highest: "",
-  keyFifths: "0",
-  accidentals: "naturals",
-  homeOnly: "on",
-  prompts: "6",
-  seconds: "10",
-};
+// A reading set's form as the page posts it (no lowest or highest note: the whole position).
+const SET_FORM = { mode: "sprint", position: "5", tuning: "standard", frets: "15", keyFifths: "0", accidentals: "naturals", homeOnly: "on", prompts: "6", seconds: "10" };
 
 const ROLES = ["anonymous", "adminA", "t1", "t2", "t3", "sIn", "sOut", "adminB", "teacherB", "studentB"] as const;
 type Role = (typeof ROLES)[number];
