@@ -181,9 +181,10 @@ export class Hub implements RoomHost {
     if (conn.playerId && room.pads.get(conn.playerId) === conn) {
       return refuse(conn, ERROR_CODES.badMessage, "This phone has already joined the room.");
     }
-    // A signed-in student plays under their own name, linked to their account; a name that is
-    // not a valid nickname (too long, odd characters) must not lock them out, so the typed one is used then.
-    const account = conn.userId ? await this.store.studentName(conn.userId) : undefined;
+    // A signed-in student of the room's school plays under their own name, linked to their account (in
+    // another school's room, as a guest); a name that is not a valid nickname (too long, odd characters)
+    // must not lock them out, so the typed one is used then.
+    const account = conn.userId ? await this.store.studentName(conn.userId, room.id) : undefined;
     this.leave(conn);
     const playerId = nanoid(12);
     conn.room = room;

@@ -70,11 +70,6 @@ export async function setFor(db: Db, user: SessionUser, id: string): Promise<Sav
   return row ? toSaved(row) : undefined;
 }
 
-/** Whether the user may file a set under this class (none = school-wide, always allowed). */
-export async function mayUseClass(db: Db, user: SessionUser, classId: string | null | undefined) {
-  return !classId || (await classesFor(db, user)).some((c) => c.id === classId);
-}
-
 export async function createSet(db: Db, user: SessionUser, input: { name: string; classId: string | null; spec: ReadingSetSpec }) {
   const id = nanoid();
   await db.insert(readingSets).values({ id, orgId: user.orgId, createdBy: user.id, updatedAt: new Date(), ...input });

@@ -5,7 +5,7 @@
  * history both write through here, so both store the same rows.
  */
 import type { InStatement, InValue } from "@libsql/client";
-import { eq, getTableColumns, getTableName, sql, type InferInsertModel, type Table } from "drizzle-orm";
+import { and, eq, getTableColumns, getTableName, sql, type InferInsertModel, type Table } from "drizzle-orm";
 import type { Db } from "~/db/client.server";
 import { answers, roomEvents, roomPlayers, rooms, users } from "~/db/schema";
 import { initialState, type Effect, type RoomState } from "~/game/room";
@@ -186,9 +186,14 @@ export class RoomStore {
   }
 
   /** A signed-in student's display name; undefined for staff or an unknown account. */
-  async studentName(userId: string) {
-    const [row] = await this.db.select({ name: users.displayName, role: users.role }).from(users).where(eq(users.id, userId));
-    return row?.role === "student" ? row.name : undefined;
+  /** The account name of a student of the room's own school; in another school's room they are a guest. */
+  async studentName(userId: string, roomId: string) {
+    const [row] = await this.db
+      .select({ name: users.displayName })
+      .from(users)
+      .innerJoin(rooms, eq(rooms.orgId, users.orgId))
+      .where(and(eq(users.id, userId), eq(users.role, "student"), eq(rooms.id, roomId)));
+    return row?.name;
   }
 
   /** Points from the class's earlier rounds, by player of this room, to balance Teams. */

@@ -1,7 +1,7 @@
-// Classes, rosters and people: who may see a class, who is in it, and the admin's changes to the school.
+// Classes, rosters and people: who is in a class, and the admin's changes to the school (who may see what: app/auth/access.server.ts).
 import { and, eq, inArray, isNull, sql } from "drizzle-orm";
 import { nanoid } from "nanoid";
-import { data } from "react-router";
+import type { ClassRecord } from "~/auth/access.server";
 import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
 import { listApiTokens } from "~/auth/tokens.server";
@@ -25,31 +25,6 @@ import {
 import { newRoomCode, normaliseRoomCode } from "~/game/roomCode";
 import { checkRosterRows, type CheckedRow, type RosterRow } from "./roster";
 import { createInvitation, revokeInvitations } from "./invitations.server";
-
-export interface ClassRecord {
-  id: string;
-  orgId: string;
-  name: string;
-  joinCode: string;
-}
-
-/**
- * A class's teachers and the school's admins may open it; anyone else gets a 404, not a hint that it
- * exists. Students are turned away earlier, by requireUserWithRole.
- */
-export async function requireClassAccess(db: Db, user: SessionUser, classId: string): Promise<ClassRecord> {
-  const [row] = await db
-    .select({ id: classes.id, orgId: classes.orgId, name: classes.name, joinCode: classes.joinCode, teaches: memberships.userId })
-    .from(classes)
-    .leftJoin(
-      memberships,
-      and(eq(memberships.classId, classes.id), eq(memberships.userId, user.id), eq(memberships.role, "teacher")),
-    )
-    .where(and(eq(classes.id, classId), eq(classes.orgId, user.orgId)));
-  if (!row || (user.role !== "admin" && !row.teaches)) throw data({ error: "No such class." }, { status: 404 });
-  const { teaches: _omit, ...cls } = row;
-  return cls;
-}
 
 export type SignInStatus = "nickname" | "active" | "invited" | "invite-expired";
 

@@ -79,20 +79,20 @@ describe("role matrix: route × role → status", () => {
   } as const;
   type R = keyof typeof roles;
   const self = "demo-student-1";
-  // 302 = sent to sign in; 403 = wrong role; 404 = not theirs (no hint that it exists).
+  // 302 = sent to sign in; 403 = wrong role, or the school's but not theirs; 404 = no such thing in their school.
   const table: [string, Record<R, number>][] = [
     ["/admin", { anonymous: 302, student: 403, teacherOfClass: 403, otherTeacher: 403, admin: 200 }],
     ["/admin/students/demo-student-2", { anonymous: 302, student: 403, teacherOfClass: 403, otherTeacher: 403, admin: 200 }],
     ["/admin/students/demo-teacher-rafe", { anonymous: 302, student: 403, teacherOfClass: 403, otherTeacher: 403, admin: 404 }],
-    [`/teach/classes/${TUE}`, { anonymous: 302, student: 403, teacherOfClass: 200, otherTeacher: 404, admin: 200 }],
+    [`/teach/classes/${TUE}`, { anonymous: 302, student: 403, teacherOfClass: 200, otherTeacher: 403, admin: 200 }],
     ["/teach/classes/no-such-class", { anonymous: 302, student: 403, teacherOfClass: 404, otherTeacher: 404, admin: 404 }],
     ["/me", { anonymous: 302, student: 200, teacherOfClass: 403, otherTeacher: 403, admin: 403 }],
     ["/me/join-class", { anonymous: 302, student: 200, teacherOfClass: 403, otherTeacher: 403, admin: 403 }],
     ["/invite/not-a-real-token", { anonymous: 200, student: 200, teacherOfClass: 200, otherTeacher: 200, admin: 200 }],
-    [`/people/${self}/export.json`, { anonymous: 302, student: 200, teacherOfClass: 404, otherTeacher: 404, admin: 200 }],
-    ["/people/demo-student-2/export.json", { anonymous: 302, student: 404, teacherOfClass: 404, otherTeacher: 404, admin: 200 }],
+    [`/people/${self}/export.json`, { anonymous: 302, student: 200, teacherOfClass: 403, otherTeacher: 403, admin: 200 }],
+    ["/people/demo-student-2/export.json", { anonymous: 302, student: 403, teacherOfClass: 403, otherTeacher: 403, admin: 200 }],
     ["/api/v1/classes", { anonymous: 401, student: 200, teacherOfClass: 200, otherTeacher: 200, admin: 200 }],
-    [`/api/v1/classes/${TUE}/roster`, { anonymous: 401, student: 403, teacherOfClass: 200, otherTeacher: 404, admin: 200 }],
+    [`/api/v1/classes/${TUE}/roster`, { anonymous: 401, student: 403, teacherOfClass: 200, otherTeacher: 403, admin: 200 }],
   ];
   const clients: Partial<Record<R, Client>> = {};
   beforeAll(async () => {
@@ -111,7 +111,7 @@ describe("role matrix: route × role → status", () => {
   it("refuses the class page's actions to another teacher, and changes nothing", async () => {
     const before = await studentsIn(TUE);
     const res = await clients.otherTeacher!.post(`/teach/classes/${TUE}`, { intent: "add", name: "Intruder X." });
-    expect(res.status).toBe(404);
+    expect(res.status).toBe(403);
     expect(await studentsIn(TUE)).toEqual(before);
   });
 
@@ -272,7 +272,7 @@ describe("invitations through the captured e-mail", () => {
     expect(done.headers.get("location")).toBe("/teach");
     const list = (await (await pim.get("/api/v1/classes")).json()) as { classes: { name: string }[] };
     expect(list.classes.map((c) => c.name)).toEqual(["Invite Test Class"]);
-    expect((await pim.get(`/teach/classes/${TUE}`)).status).toBe(404);
+    expect((await pim.get(`/teach/classes/${TUE}`)).status).toBe(403);
   });
 
   it("lets a signed-in student join a class by its code", async () => {
@@ -296,7 +296,7 @@ describe("API with a personal token", () => {
     const body = (await roster.json()) as { class: { joinCode: string }; students: { displayName: string }[] };
     expect(body.class.joinCode).toBe("TUEBEG");
     expect(body.students.map((s) => s.displayName)).toContain("Amani K.");
-    expect((await get("/api/v1/classes/demo-class-sat/roster")).status).toBe(404);
+    expect((await get("/api/v1/classes/demo-class-sat/roster")).status).toBe(403);
     expect(await revokeApiToken(db(), RAFE.id, id)).toBe(true);
     expect((await get("/api/v1/classes")).status).toBe(401);
     expect((await get(`/api/v1/classes/${TUE}/roster`)).status).toBe(401);

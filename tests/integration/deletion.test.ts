@@ -13,8 +13,7 @@ import { loadRoomState } from "~/rooms/log.server";
 import { REMOVED_STUDENT } from "~/school/people.server";
 import { seedDemo } from "../../server/seed";
 import { Client, signedIn, startTestServer, type TestServer } from "./harness";
-import { openStage, openTestRoom, spotOf, untilShown } from "./rooms";
-import { TestSocket } from "./socket";
+import { openStage, openTestRoom, ScriptedSocket, spotOf, untilShown } from "../../server/scripted-rooms";
 
 let server: TestServer;
 const db = () => server.services.db;
@@ -36,7 +35,7 @@ async function playSignedIn(student: Client, end: boolean) {
   const room = await openTestRoom(db(), { prompts: 2 });
   await db().update(rooms).set({ classId: TUE }).where(eq(rooms.id, room.id));
   const stage = await openStage(server.url, server.services.env.SESSION_SECRET, room);
-  const pad = await TestSocket.open(server.url, server.url, { Cookie: student.cookieHeader() });
+  const pad = await ScriptedSocket.open(server.url, server.url, { Cookie: student.cookieHeader() });
   pad.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: room.code });
   await pad.next("welcome");
   pad.send({ type: "join", room: room.code, nickname: "ignored" });

@@ -7,8 +7,7 @@ import { DEMO_SCHOOL } from "~/demo/school";
 import { PROTOCOL_VERSION } from "~/game/protocol";
 import { seedDemo } from "../../server/seed";
 import { Client, signedIn, startTestServer, type TestServer } from "./harness";
-import { joinPlayer, openStage, openTestRoom } from "./rooms";
-import { TestSocket } from "./socket";
+import { joinPlayer, openStage, openTestRoom, ScriptedSocket } from "../../server/scripted-rooms";
 
 let server: TestServer;
 const db = () => server.services.db;
@@ -42,7 +41,7 @@ describe("in a room", () => {
     ["Z\u0301\u0302\u0303\u0304\u0305ed", /accent marks/],
   ])("refuses the nickname %j with a clear message", async (nickname, message) => {
     const room = await openTestRoom(db());
-    const pad = await TestSocket.open(server.url);
+    const pad = await ScriptedSocket.open(server.url);
     pad.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: room.code });
     await pad.next("welcome");
     pad.send({ type: "join", room: room.code, nickname });

@@ -36,8 +36,8 @@ beforeAll(async () => {
 });
 
 describe("class review: route × role → status", () => {
-  // 302 = sent to sign in; 403 = wrong role; 404 = not one of your classes (no hint it exists).
-  const page = { anonymous: 302, student: 403, rafe: 200, saoirse: 404, admin: 200 };
+  // 302 = sent to sign in; 403 = wrong role, or a class of the school you don't teach; 404 = no such thing in your school.
+  const page = { anonymous: 302, student: 403, rafe: 200, saoirse: 403, admin: 200 };
   const api = { ...page, anonymous: 401 };
   const table: [string, Record<Who, number>][] = [
     ["/teach/classes/demo-class-tue/review", page],
@@ -47,13 +47,13 @@ describe("class review: route × role → status", () => {
     ["/teach/classes/demo-class-tue/export.csv?session=demo-round-tue-1", page],
     ["/api/v1/classes/demo-class-tue/results", api],
     ["/api/v1/rounds/demo-round-tue-1/results", api],
-    ["/teach/classes/demo-class-sat/review", { ...page, rafe: 404, saoirse: 200 }],
-    ["/api/v1/rounds/demo-round-sat-1/results", { ...api, rafe: 404, saoirse: 200 }],
+    ["/teach/classes/demo-class-sat/review", { ...page, rafe: 403, saoirse: 200 }],
+    ["/api/v1/rounds/demo-round-sat-1/results", { ...api, rafe: 403, saoirse: 200 }],
     // Wrong pairings are 404s, not other classes' data.
     ["/teach/classes/demo-class-tue/review?session=demo-round-sat-1", { ...page, rafe: 404, admin: 404 }],
     ["/teach/classes/demo-class-tue/students/demo-student-17", { ...page, rafe: 404, admin: 404 }],
-    ["/teach/classes/no-such-class/review", { ...page, rafe: 404, admin: 404 }],
-    ["/teach/classes/demo-class-tue/review/live?session=demo-round-sat-1", { ...page, rafe: 404, admin: 404 }],
+    ["/teach/classes/no-such-class/review", { ...page, rafe: 404, saoirse: 404, admin: 404 }],
+    ["/teach/classes/demo-class-tue/review/live?session=demo-round-sat-1", { ...page, rafe: 403, admin: 404 }],
   ];
   for (const [path, expected] of table) {
     for (const who of Object.keys(roles) as Who[]) {

@@ -10,8 +10,7 @@ import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
 import { PROTOCOL_VERSION } from "~/game/protocol";
 import { seedDemo } from "../../server/seed";
 import { Client, startTestServer, type TestServer } from "./harness";
-import { openTestRoom } from "./rooms";
-import { TestSocket } from "./socket";
+import { openTestRoom, ScriptedSocket } from "../../server/scripted-rooms";
 
 let server: TestServer;
 beforeAll(async () => {
@@ -289,7 +288,7 @@ describe("lifetimes on the server", () => {
 describe("the live hub", () => {
   /** Joins a room from a pad that sends the given cookies; the account its seat is linked to. */
   async function seatOwner(cookie: string, code: string, nickname: string) {
-    const pad = await TestSocket.open(server.url, server.url, { Cookie: cookie });
+    const pad = await ScriptedSocket.open(server.url, server.url, { Cookie: cookie });
     pad.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: code });
     await pad.next("welcome");
     pad.send({ type: "join", room: code, nickname });

@@ -72,7 +72,7 @@ export async function action({ request, context }: Route.ActionArgs): Promise<Ac
       const address = normaliseEmail(input.email);
       if (await emailTaken(db, address)) return { errors: { email: "An account with this e-mail already exists." }, intent };
       const { token } = await addTeacher(db, admin.orgId, { displayName: input.displayName, email: address, classId: cls.id }, admin.id);
-      const failed = await mailInvitations(mailer, env.PUBLIC_URL, [{ email: address, displayName: input.displayName, token }], "teacher", cls.name);
+      const failed = await mailInvitations(mailer, env.PUBLIC_URL, [{ email: address, displayName: input.displayName, token }], "teacher", cls.name, admin.orgId);
       return mailed(failed, `Added ${input.displayName} to ${cls.name}; an invitation to set a password is on its way to ${address}.`);
     }
     case "resendTeacher": {
@@ -80,7 +80,7 @@ export async function action({ request, context }: Route.ActionArgs): Promise<Ac
       const last = teacher && !teacher.passwordHash && teacher.email ? await lastInvitedClass(db, teacher.id) : undefined;
       if (!teacher?.email || !last) return { errors: { form: "Only a teacher who hasn't set a password yet can be sent a new invitation." }, intent };
       const token = await createInvitation(db, { userId: teacher.id, classId: last.classId, invitedBy: admin.id });
-      const failed = await mailInvitations(mailer, env.PUBLIC_URL, [{ email: teacher.email, displayName: teacher.displayName, token }], "teacher", last.className);
+      const failed = await mailInvitations(mailer, env.PUBLIC_URL, [{ email: teacher.email, displayName: teacher.displayName, token }], "teacher", last.className, admin.orgId);
       return mailed(failed, `A new invitation is on its way to ${teacher.email}; the previous link no longer works.`);
     }
     case "createClass": {

@@ -23,6 +23,7 @@ export async function action({ request, context }: Route.ActionArgs) {
   if (reset) {
     const link = `${env.PUBLIC_URL}/reset/${reset.token}`;
     await mailer.send({
+      orgId: null,
       to: address,
       subject: "Reset your Fretcall password",
       text: `Hello ${reset.displayName},\n\nSomeone asked to reset the password of your Fretcall account. To choose a new password, open this link within the next hour:\n\n${link}\n\nThe link works once. If you didn't ask for this, ignore this e-mail; your password stays as it is.\n`,

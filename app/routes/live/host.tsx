@@ -1,5 +1,6 @@
 import { useState } from "react";
 import { Form, Link, redirect, useNavigation, useSearchParams } from "react-router";
+import { mayFileUnderClass, requireReadingSet, requireRound } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { Button, buttonClass, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
@@ -11,9 +12,8 @@ import { TUNINGS } from "~/music/tuning";
 import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
 import { READING_PRESETS } from "~/reading/presets";
-import { hostableSet, mayUseClass, setsFor } from "~/reading/sets.server";
+import { hostableSet, setsFor } from "~/reading/sets.server";
 import { summarise } from "~/reading/spec";
-import { requireRoomAccess } from "~/rooms/access.server";
 import { createRoom, roomSetup, type RoomSource } from "~/rooms/rooms.server";
 import { QUICK_DEFAULTS, quickSetupSchema, setupFromSet, type QuickSetup } from "~/rooms/setup";
 import { classesFor } from "~/school/classes.server";
@@ -46,7 +46,7 @@ type Errors = Record<string, string | undefined>;
 
 /** Opens the room, or says in plain words why the settings don't make one. */
 async function open(db: Db, user: SessionUser, setup: QuickSetup, source?: RoomSource) {
-  if (setup.classId && !(await mayUseClass(db, user, setup.classId))) return { errors: { classId: "You don't teach that class." } as Errors };
+  if (setup.classId && !(await mayFileUnderClass(db, user, setup.classId))) return { errors: { classId: "You don't teach that class." } as Errors };
   try {
     const room = await createRoom(db, user, setup, source);
     return redirect(`/stage/${room.id}`);
@@ -65,12 +65,14 @@ export async function action({ request, context }: Route.ActionArgs) {
   const intent = form.get("intent");
   const classId = String(form.get("classId") ?? "") || undefined;
   if (intent === "set") {
-    const chosen = await hostableSet(db, user, String(form.get("set") ?? ""));
+    const setId = String(form.get("set") ?? "");
+    await requireReadingSet(db, user, setId, "see");
+    const chosen = await hostableSet(db, user, setId);
     if (!chosen) return { errors: { set: "That reading set doesn't exist or needs an edit first." } as Errors };
     return open(db, user, setupFromSet(chosen.spec, classId), chosen.source);
   }
   if (intent === "again") {
-    const room = await requireRoomAccess(db, user, String(form.get("roomId") ?? ""));
+    const room = await requireRound(db, user, String(form.get("roomId") ?? ""));
     const again = roomSetup(room);
     if (!again) return { errors: { form: "This round was hosted before its settings were kept; set it up again below." } as Errors };
     return open(db, user, again.setup, again.source);

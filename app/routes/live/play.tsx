@@ -26,8 +26,9 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
     tuning: config.tuning,
     frets: config.frets,
     position: room.position,
-    // A signed-in student plays under their own name; the server links the seat to the account.
-    accountName: user?.role === "student" ? user.displayName : null,
+    // A signed-in student of the room's school plays under their own name; the server links the seat to the
+    // account. In another school's room they are a guest, like anyone with the code.
+    accountName: user?.role === "student" && user.orgId === room.orgId ? user.displayName : null,
   };
 }
 

@@ -1,10 +1,10 @@
 import { data, Form, Link } from "react-router";
+import { requireRound } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { buttonClass, Card, PageTitle } from "~/components/ui";
 import { services } from "~/context";
 import { Icon } from "~/live/parts";
 import { displayPitch, parsePitch } from "~/music/pitch";
-import { requireRoomAccess } from "~/rooms/access.server";
 import { roundResults } from "~/rooms/results.server";
 import { roomSetup } from "~/rooms/rooms.server";
 import type { Route } from "./+types/results";
@@ -14,7 +14,7 @@ export const meta: Route.MetaFunction = () => [{ title: "Round results · Fretca
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const room = await requireRoomAccess(db, user, params.roomId);
+  const room = await requireRound(db, user, params.roomId);
   const results = await roundResults(db, room.id);
   if (!results) throw data({ error: "No such round." }, { status: 404 });
   // Same settings, same reading set, a new draw: one click for the next class.

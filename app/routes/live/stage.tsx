@@ -1,10 +1,10 @@
 import QRCode from "qrcode";
+import { requireRound } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
 import { snapshot } from "~/game/room";
 import type { RoomConfig } from "~/game/roomConfig";
 import { Stage } from "~/live/Stage";
-import { requireRoomAccess } from "~/rooms/access.server";
 import { loadRoomState } from "~/rooms/log.server";
 import { hostKeyFor } from "~/rooms/rooms.server";
 import { IMMERSIVE } from "~/components/AppShell";
@@ -19,7 +19,7 @@ export const handle = IMMERSIVE;
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db, env } = services(context);
-  const room = await requireRoomAccess(db, user, params.roomId);
+  const room = await requireRound(db, user, params.roomId);
   const config = room.config as RoomConfig;
   // The address the teacher reached us on is the one the class's phones can reach too.
   const joinUrl = `${new URL(request.url).origin}/join?code=${room.code}`;

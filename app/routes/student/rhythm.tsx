@@ -1,6 +1,7 @@
 // /me/rhythm/:tuneId — the rhythm pass of a tune, open once its pitches are steady (see app/practice/adaptive.ts).
 import { useEffect } from "react";
 import { data, Link } from "react-router";
+import { requireTune } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { buttonClass, Card, NeedsJavaScript, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
@@ -16,6 +17,7 @@ export const meta: Route.MetaFunction = ({ data: d }) => [{ title: `${d && "stat
 export async function loader({ request, context, params }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["student"]);
   const { db } = services(context);
+  await requireTune(db, user, params.tuneId, "see");
   const text = new URL(request.url).searchParams.get("position");
   const position = text && /^(?:[1-9]|1[0-2])$/.test(text) ? Number(text) : TUNE_POSITION;
   const state = await rhythmState(db, user, params.tuneId, position);

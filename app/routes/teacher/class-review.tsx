@@ -2,6 +2,7 @@
 import { useEffect } from "react";
 import { data, Form, Link, useRevalidator, useSubmit } from "react-router";
 import { useEventSource } from "remix-utils/sse/react";
+import { requireClassTeacher } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { DataTable, type Column } from "~/components/DataTable";
 import { Badge, buttonClass, Card, Notice, PageTitle } from "~/components/ui";
@@ -9,7 +10,7 @@ import { services } from "~/context";
 import { MISTAKE_LABELS } from "~/music/mistakes";
 import { change, day, noteName, pct, secs } from "~/review/format";
 import { HeatmapFretboard, HeatmapStaves, MistakeChart } from "~/review/ReviewParts";
-import { requireReviewClass, reviewInput } from "~/review/review.server";
+import { reviewInput } from "~/review/review.server";
 import { classReview, MIN_RANKED, RETEACH_ACCURACY_BAR, RETEACH_MIN_SAMPLE, type PlayerFigures } from "~/review/stats";
 import type { Route } from "./+types/class-review";
 
@@ -18,7 +19,7 @@ export const meta: Route.MetaFunction = ({ data }) => [{ title: `Class review${d
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const cls = await requireReviewClass(db, user, params.classId);
+  const cls = await requireClassTeacher(db, user, params.classId);
   const input = await reviewInput(db, { classId: cls.id });
   const sessionId = new URL(request.url).searchParams.get("session") || null;
   const chosen = sessionId === null ? undefined : input.sessions.find((s) => s.id === sessionId);

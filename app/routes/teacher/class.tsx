@@ -1,5 +1,6 @@
 import { Form, Link, useNavigation } from "react-router";
 import { z } from "zod";
+import { requireClassTeacher } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { DataTable, type Column } from "~/components/DataTable";
 import { Badge, Button, Card, Field, Notice, PageTitle } from "~/components/ui";
@@ -10,7 +11,6 @@ import {
   addStudents,
   checkRowsForClass,
   removeFromClass,
-  requireClassAccess,
   resendStudentInvite,
   rosterOf,
   type RosterEntry,
@@ -24,7 +24,7 @@ export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.cls.nam
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const cls = await requireClassAccess(db, user, params.classId);
+  const cls = await requireClassTeacher(db, user, params.classId);
   return { cls: { id: cls.id, name: cls.name, joinCode: cls.joinCode }, roster: await rosterOf(db, cls.id) };
 }
 
@@ -46,7 +46,7 @@ const addSchema = z.object({
 export async function action({ request, params, context }: Route.ActionArgs): Promise<ActionResult> {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db, mailer, env } = services(context);
-  const cls = await requireClassAccess(db, user, params.classId);
+  const cls = await requireClassTeacher(db, user, params.classId);
   // Refuse an oversized upload before reading it into memory.
   if (Number(request.headers.get("Content-Length") ?? 0) > CSV_MAX_BYTES * 2) {
     return { error: `The file is too large (at most ${CSV_MAX_BYTES / 1000} KB).` };
@@ -54,7 +54,7 @@ export async function action({ request, params, context }: Route.ActionArgs): Pr
   const form = await request.formData();
   const intent = form.get("intent");
   const sent = async (invites: Parameters<typeof mailInvitations>[2], what: string) => {
-    const failed = await mailInvitations(mailer, env.PUBLIC_URL, invites, "student", cls.name);
+    const failed = await mailInvitations(mailer, env.PUBLIC_URL, invites, "student", cls.name, cls.orgId);
     return failed
       ? { notice: what, error: `${failed} invitation e-mail${failed === 1 ? "" : "s"} couldn't be sent; use “Resend invitation” later.` }
       : { notice: what };

@@ -2,6 +2,7 @@
 // the note pool on the staff and the neck, computed in the browser by the isomorphic engine.
 import { useMemo, useRef, useState } from "react";
 import { data, Form, Link, redirect, useNavigation } from "react-router";
+import { mayFileUnderClass, readingSetAccess, requireReadingSet } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { PoolPreview } from "~/components/PoolPreview";
 import { Button, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
@@ -12,7 +13,7 @@ import { displayPitchClass, MusicError } from "~/music/pitch";
 import { buildPool, type PoolNote } from "~/music/pools";
 import { resolveTuning, TUNINGS } from "~/music/tuning";
 import { readingPreset } from "~/reading/presets";
-import { createSet, deleteSet, mayUseClass, setFor, updateSet } from "~/reading/sets.server";
+import { createSet, deleteSet, setFor, updateSet } from "~/reading/sets.server";
 import { collectStrings, MODE_NAMES, readingSetFormSchema, readingSetSpecSchema, readingSpecOf, SET_MODES, type ReadingSetSpec } from "~/reading/spec";
 import { classesFor } from "~/school/classes.server";
 import type { Route } from "./+types/reading-set";
@@ -27,16 +28,19 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
     const url = new URL(request.url);
     const preset = readingPreset(url.searchParams.get("from") ?? "ready-naturals-5")!;
     const classId = url.searchParams.get("class");
-    return { id: null, name: "", classId: classList.some((c) => c.id === classId) ? classId : null, spec: preset.spec, classes: classList };
+    return { id: null, name: "", classId: classList.some((c) => c.id === classId) ? classId : null, spec: preset.spec, classes: classList, canDelete: false };
   }
+  await requireReadingSet(db, user, params.id, "see");
   const set = await setFor(db, user, params.id);
   if (!set) throw data({ error: "No such reading set." }, { status: 404 });
-  return { id: set.id, name: set.name, classId: set.classId, spec: set.spec ?? readingPreset("ready-naturals-5")!.spec, classes: classList };
+  const canDelete = (await readingSetAccess(db, user, set.id, "edit")) === "ok";
+  return { id: set.id, name: set.name, classId: set.classId, spec: set.spec ?? readingPreset("ready-naturals-5")!.spec, classes: classList, canDelete };
 }
 
 export async function action({ request, params, context }: Route.ActionArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
+  if (params.id !== "new") await requireReadingSet(db, user, params.id, "edit");
   const existing = params.id === "new" ? undefined : await setFor(db, user, params.id);
   if (params.id !== "new" && !existing) throw data({ error: "No such reading set." }, { status: 404 });
   const form = collectStrings(await request.formData());
@@ -47,7 +51,7 @@ export async function action({ request, params, context }: Route.ActionArgs) {
   const parsed = parseForm(readingSetFormSchema, form);
   if (!parsed.ok) return { errors: parsed.errors };
   const { name, classId, ...rest } = parsed.data;
-  if (!(await mayUseClass(db, user, classId))) return { errors: { classId: "You don't teach that class." } as FieldErrors };
+  if (!(await mayFileUnderClass(db, user, classId))) return { errors: { classId: "You don't teach that class." } as FieldErrors };
   const spec = readingSetSpecSchema.parse(rest);
   const input = { name, classId: classId ?? null, spec };
   if (existing) await updateSet(db, existing.id, input);
@@ -242,7 +246,7 @@ export default function ReadingSetPage({ loaderData, actionData }: Route.Compone
           ) : null}
         </Card>
       </div>
-      {loaderData.id ? (
+      {loaderData.canDelete ? (
         <Form method="post" onSubmit={(e) => !confirm(`Delete “${loaderData.name}”?`) && e.preventDefault()}>
           <input type="hidden" name="intent" value="delete" />
           <Button type="submit" tone="ghost">

@@ -3,6 +3,7 @@
 import { useMemo, useState } from "react";
 import { data, Form, redirect, useNavigation } from "react-router";
 import { z } from "zod";
+import { requireClassTeacher } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { Fretboard, type Highlight } from "~/components/Fretboard";
 import { parseSpotMapQuery } from "~/components/neckQuery";
@@ -15,17 +16,9 @@ import { displayPitch, parsePitch } from "~/music/pitch";
 import { positionWindow, validateSpotMap, type HomeSpot, type SpotMap, type SpotMapProblem } from "~/music/positions";
 import { TUNINGS } from "~/music/tuning";
 import { classSpotMap, resetClassSpotMap, saveClassSpotMap } from "~/reading/spotMaps.server";
-import { classesFor } from "~/school/classes.server";
 import type { Route } from "./+types/spot-maps";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Home-spot map · ${data?.className ?? "class"} · Fretcall` }];
-
-/** The class, if the user teaches it (admins: any of the school's); otherwise 404, not a hint that it exists. */
-async function requireClass(db: Parameters<typeof classesFor>[0], user: Parameters<typeof classesFor>[1], classId: string) {
-  const found = (await classesFor(db, user)).find((c) => c.id === classId);
-  if (!found) throw data({ error: "No such class." }, { status: 404 });
-  return found;
-}
 
 function mapQuery(request: Request) {
   const params = new URL(request.url).searchParams;
@@ -37,7 +30,7 @@ function mapQuery(request: Request) {
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const klass = await requireClass(db, user, params.classId);
+  const klass = await requireClassTeacher(db, user, params.classId);
   const q = mapQuery(request);
   const saved = await classSpotMap(db, klass.id, q.map.position, q.tuning.id);
   return {
@@ -58,7 +51,7 @@ const spotsSchema = z.array(
 export async function action({ request, params, context }: Route.ActionArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const klass = await requireClass(db, user, params.classId);
+  const klass = await requireClassTeacher(db, user, params.classId);
   const q = mapQuery(request);
   const form = await request.formData();
   const back = (done: string) => redirect(`${new URL(request.url).pathname}?position=${q.map.position}&tuning=${q.tuning.id}&done=${encodeURIComponent(done)}`);
