@@ -4,6 +4,7 @@ import { nanoid } from "nanoid";
 import type { ClassRecord } from "~/auth/access.server";
 import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
+import { listSessions } from "~/auth/session.server";
 import { listApiTokens } from "~/auth/tokens.server";
 import {
   answers,
@@ -21,6 +22,7 @@ import {
   roomPlayers,
   rooms,
   users,
+  userSessions,
 } from "~/db/schema";
 import { newRoomCode, normaliseRoomCode } from "~/game/roomCode";
 import { checkRosterRows, type CheckedRow, type RosterRow } from "./roster";
@@ -294,8 +296,8 @@ export async function deleteStudent(db: Db, orgId: string, userId: string) {
         .where(and(sql`json_extract(${roomEvents.event}, '$.event.type') = 'join'`, inArray(sql`json_extract(${roomEvents.event}, '$.event.playerId')`, seats)));
       await tx.update(roomPlayers).set({ userId: null, nickname: REMOVED_STUDENT }).where(inArray(roomPlayers.id, seats));
     }
-    // A table that keeps a user id (server-side sessions, a mail queue) belongs in this list too.
-    for (const table of [memberships, invitations, passwordResets, apiTokens, assignmentTargets, practiceAnswers, rhythmAttempts, mailLog]) {
+    // A table that keeps a user id belongs in this list too.
+    for (const table of [userSessions, memberships, invitations, passwordResets, apiTokens, assignmentTargets, practiceAnswers, rhythmAttempts, mailLog]) {
       await tx.delete(table).where(eq(table.userId, userId));
     }
     await tx.delete(users).where(eq(users.id, userId));
@@ -334,7 +336,7 @@ export async function exportPersonalData(db: Db, userId: string) {
     .from(users)
     .where(eq(users.id, userId));
   if (!profile) return undefined;
-  const [classList, seats, practice, rhythm, invites, targets, mail, tokens] = await Promise.all([
+  const [classList, seats, practice, rhythm, invites, targets, mail, tokens, devices] = await Promise.all([
     db
       .select({ className: classes.name, role: memberships.role, joinedAt: memberships.createdAt })
       .from(memberships)
@@ -360,6 +362,7 @@ export async function exportPersonalData(db: Db, userId: string) {
       .where(eq(assignmentTargets.userId, userId)),
     db.select({ kind: mailLog.kind, subjectId: mailLog.subjectId, sentAt: mailLog.sentAt }).from(mailLog).where(eq(mailLog.userId, userId)),
     listApiTokens(db, userId),
+    listSessions(db, userId),
   ]);
   const seatIds = seats.map((s) => s.seatId);
   const [roundAnswers, events] = seatIds.length
@@ -388,7 +391,7 @@ export async function exportPersonalData(db: Db, userId: string) {
     assignedTo: targets,
     mailSent: mail,
     apiTokens: tokens,
-    // Signed-in devices go here once sessions are kept on the server: device, signed in, last seen.
+    devices,
   };
 }
 

@@ -252,6 +252,9 @@ const MATRIX: Record<string, () => { path: string; expect: Statuses }> = {
     expect: { ...each(403), anonymous: 302, adminA: 200, sIn: 200, adminB: 404, teacherB: 404, studentB: 404 },
   }),
   "settings/tokens": () => ({ path: "/settings/tokens", expect: staffPage() }),
+  // Each user's own sessions and password: every signed-in role, nothing of anyone else's.
+  "settings/devices": () => ({ path: "/settings/devices", expect: signedIn() }),
+  "settings/password": () => ({ path: "/settings/password", expect: signedIn() }),
   "teach/tunes": () => ({ path: "/teach/tunes", expect: staffPage() }),
   "teach/tunes/:tuneId": () => ({ path: `/teach/tunes/${ids.tune}`, expect: { ...staffPage(), adminB: 404, teacherB: 404 } }),
   host: () => ({ path: `/host?class=${ids.class1}&set=${ids.set}`, expect: staffPage() }),
