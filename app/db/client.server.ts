@@ -3,6 +3,7 @@ import { drizzle, type LibSQLDatabase } from "drizzle-orm/libsql";
 import { migrate } from "drizzle-orm/libsql/migrator";
 import { mkdirSync } from "node:fs";
 import { dirname, resolve } from "node:path";
+import { fillAnswerVerdicts } from "~/rooms/verdicts.server";
 import * as schema from "./schema";
 
 export type Db = LibSQLDatabase<typeof schema> & { $client: Client };
@@ -33,8 +34,10 @@ export async function openDb(url: string, authToken?: string): Promise<Db> {
   return drizzle(client, { schema }) as Db;
 }
 
+/** The SQL migrations, then the data steps that need the app's own code (each idempotent). */
 export async function migrateDb(db: Db, migrationsFolder = MIGRATIONS_FOLDER) {
   await migrate(db, { migrationsFolder });
+  await fillAnswerVerdicts(db);
 }
 
 /** Writes the WAL back into the main file so a stopped server leaves one self-contained file. */

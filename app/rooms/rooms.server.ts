@@ -61,7 +61,7 @@ export interface RoomSource {
 
 /**
  * Opens a room; a room code clash with another open room (rare: 19⁶ codes) draws a new code. The setup is kept
- * beside the game's config (the game ignores it) so "Host this again" can draw afresh from the same settings.
+ * in its own column so "Host this again" can draw afresh from the same settings.
  */
 export async function createRoom(db: Db, host: SessionUser, setup: QuickSetup, source: RoomSource = {}) {
   const spotMap = setup.classId ? await classSpotMap(db, setup.classId, setup.position, setup.tuning) : undefined;
@@ -82,7 +82,9 @@ export async function createRoom(db: Db, host: SessionUser, setup: QuickSetup, s
         title,
         mode: setup.mode,
         position: setup.position,
-        config: { ...config, setup, sourceName: source.name ?? null },
+        config,
+        setup,
+        sourceName: source.name ?? null,
       });
       return { id, code };
     } catch (error) {
@@ -112,10 +114,10 @@ export async function roomsHostedBy(db: Db, userId: string, limit = 20) {
 }
 
 /** The settings a room was opened with, to host it again with a new draw; undefined for rooms from before they were kept. */
-export function roomSetup(room: { config: unknown; readingSetId: string | null; classId: string | null }) {
-  const kept = room.config as { setup?: unknown; sourceName?: unknown };
-  const parsed = quickSetupSchema.safeParse(kept.setup);
+export function roomSetup(room: { setup: QuickSetup | null; sourceName: string | null; readingSetId: string | null; classId: string | null }) {
+  // Checked again: a setup kept under older rules may no longer make a round.
+  const parsed = quickSetupSchema.safeParse(room.setup);
   if (!parsed.success) return undefined;
-  const source: RoomSource = { readingSetId: room.readingSetId, ...(typeof kept.sourceName === "string" ? { name: kept.sourceName } : {}) };
+  const source: RoomSource = { readingSetId: room.readingSetId, ...(room.sourceName !== null ? { name: room.sourceName } : {}) };
   return { setup: { ...parsed.data, classId: room.classId ?? undefined }, source };
 }

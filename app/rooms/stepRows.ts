@@ -26,6 +26,7 @@ export function stepRows(roomId: string, before: RoomState, after: RoomState, us
         fret: a.spot.fret,
         kind: a.diagnosis.kind,
         pitchRight: a.diagnosis.pitchRight,
+        verdict: a.verdict,
         points: a.points,
         reactionMs: Math.round(a.reactionMs),
         streak: a.streak,

@@ -1,7 +1,6 @@
 import QRCode from "qrcode";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
-import type { RoomConfig } from "~/game/roomConfig";
 import { Stage } from "~/live/Stage";
 import { requireRoomAccess } from "~/rooms/access.server";
 import { hostKeyFor } from "~/rooms/rooms.server";
@@ -17,7 +16,7 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db, env } = services(context);
   const room = await requireRoomAccess(db, user, params.roomId);
-  const config = room.config as RoomConfig;
+  const config = room.config;
   // The address the teacher reached us on is the one the class's phones can reach too.
   const joinUrl = `${new URL(request.url).origin}/join?code=${room.code}`;
   return {
