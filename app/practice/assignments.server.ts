@@ -8,7 +8,7 @@ import type { Db } from "~/db/client.server";
 import { assignments, assignmentTargets, classes, memberships, practiceAnswers, readingSets, tunes, users } from "~/db/schema";
 import { READING_PRESETS, readingPreset } from "~/reading/presets";
 import { setsFor } from "~/reading/sets.server";
-import { readingSetSpecSchema, summarise, type ReadingSetSpec } from "~/reading/spec";
+import { parseReadingSet, readingSetSpecSchema, summarise, type ReadingSetSpec } from "~/reading/spec";
 import { BUILTIN_TUNES, type Tune } from "~/tunes/builtin";
 import { practicePath, type MaterialKind, type MaterialRef } from "./assignmentForm";
 import type { OpenAssignment } from "./AssignmentParts";
@@ -55,8 +55,8 @@ export async function resolveMaterial(db: Db, orgId: string, ref: MaterialRef): 
     return t ? { kind: "tune", id: t.id, name: t.title, tune: t } : null;
   }
   const [row] = await db.select().from(readingSets).where(and(eq(readingSets.id, ref.id), eq(readingSets.orgId, orgId)));
-  const spec = row ? readingSetSpecSchema.safeParse(row.spec) : undefined;
-  return row && spec?.success ? { kind: "set", id: row.id, name: row.name, spec: spec.data } : null;
+  const parsed = row && parseReadingSet(readingSetSpecSchema, row.spec);
+  return row && parsed?.ok ? { kind: "set", id: row.id, name: row.name, spec: parsed.set } : null;
 }
 
 export function materialRefOf(a: Pick<Assignment, "readingSetId" | "presetId" | "tuneId">): MaterialRef | null {

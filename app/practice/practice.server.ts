@@ -6,18 +6,17 @@ import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
 import { answers, assignments, practiceAnswers, roomPlayers, rooms, tunes } from "~/db/schema";
 import { MusicError } from "~/music/pitch";
-import { buildPool } from "~/music/pools";
 import { defaultSpotMap, positionWindow, type SpotMap } from "~/music/positions";
 import { MAX_FRETS, resolveTuning } from "~/music/tuning";
 import { READING_PRESETS, readingPreset } from "~/reading/presets";
 import { setFor, setsFor } from "~/reading/sets.server";
-import { readingSpecOf, type ReadingSetSpec } from "~/reading/spec";
+import { applySpotMap, parseReadingSet, readingSetSpecSchema, type ReadingSetSpec } from "~/reading/spec";
 import { classSpotMap } from "~/reading/spotMaps.server";
 import { classesFor } from "~/school/classes.server";
 import { BUILTIN_TUNES, type Tune } from "~/tunes/builtin";
 import type { PracticeAnswer } from "./adaptive";
 import { assignmentForStudent } from "./assignments.server";
-import { onClassMap, setOrder, tunePool, type PracticePlan } from "./pool";
+import { setOrder, tunePool, type PracticePlan } from "./pool";
 
 /** Built-in tunes are written for fifth position; a tune is practised there unless the student picks another. */
 export const TUNE_POSITION = 5;
@@ -69,10 +68,12 @@ async function planOf(
       material.kind === "position"
         ? { ...READING_PRESETS[0]!.spec, position: material.position, frets: Math.max(15, positionWindow(material.position).stretchHigh) }
         : material.spec;
-    const engine = readingSpecOf(spec);
+    const reading = parseReadingSet(readingSetSpecSchema, spec);
+    if (!reading.ok) return { ok: false, status: 400, message: Object.values(reading.errors)[0] ?? "This reading set needs an edit by your teacher." };
+    const engine = reading.spec;
     const tuning = resolveTuning(engine.tuning).id;
     const { map, fromClass } = await spotMapFor(db, classId, engine.position, tuning);
-    const notes = setOrder(onClassMap(buildPool(engine), fromClass ? map : undefined));
+    const notes = setOrder(applySpotMap(reading.pool, fromClass ? map : undefined, engine.frets));
     const plan = {
       source: material.kind === "position" ? `position:${material.position}` : `${material.kind}:${material.id}`,
       title: material.kind === "position" ? `Position ${material.position}, naturals` : material.name,

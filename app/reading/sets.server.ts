@@ -7,7 +7,7 @@ import type { Db } from "~/db/client.server";
 import { classes, readingSets } from "~/db/schema";
 import { classesFor } from "~/school/classes.server";
 import { readingPreset } from "./presets";
-import { readingSetSpecSchema, summarise, type ReadingSetSpec } from "./spec";
+import { parseReadingSet, readingSetSpecSchema, summarise, type ReadingSetSpec } from "./spec";
 
 export interface SavedSet {
   id: string;
@@ -27,15 +27,17 @@ async function visibleFilter(db: Db, user: SessionUser) {
   return and(inOrg, or(isNull(readingSets.classId), mine.length ? inArray(readingSets.classId, mine) : undefined));
 }
 
-function toSaved(row: { id: string; name: string; classId: string | null; className: string | null; spec: unknown; createdAt: Date; updatedAt: Date | null }): SavedSet {
-  const parsed = readingSetSpecSchema.safeParse(row.spec);
+type Row = { id: string; name: string; classId: string | null; className: string | null; spec: unknown; createdAt: Date; updatedAt: Date | null };
+
+function toSaved(row: Row): SavedSet {
+  const parsed = parseReadingSet(readingSetSpecSchema, row.spec);
   return {
     id: row.id,
     name: row.name,
     classId: row.classId,
     className: row.className,
-    spec: parsed.success ? parsed.data : null,
-    summary: parsed.success ? summarise(parsed.data) : `Needs an edit: ${parsed.error.issues[0]?.message ?? "it no longer checks out"}`,
+    spec: parsed.ok ? parsed.set : null,
+    summary: parsed.ok ? summarise(parsed.set) : `Needs an edit: ${Object.values(parsed.errors)[0] ?? "it no longer checks out"}`,
     updatedAt: (row.updatedAt ?? row.createdAt).toISOString(),
   };
 }
@@ -60,13 +62,18 @@ export async function setsFor(db: Db, user: SessionUser): Promise<SavedSet[]> {
   return rows.map(toSaved);
 }
 
-/** One set the user may see, or undefined (callers answer 404, never a hint that it exists elsewhere). */
-export async function setFor(db: Db, user: SessionUser, id: string): Promise<SavedSet | undefined> {
+async function visibleRow(db: Db, user: SessionUser, id: string): Promise<Row | undefined> {
   const [row] = await db
     .select(columns)
     .from(readingSets)
     .leftJoin(classes, eq(classes.id, readingSets.classId))
     .where(and(eq(readingSets.id, id), await visibleFilter(db, user)));
+  return row;
+}
+
+/** One set the user may see, or undefined (callers answer 404, never a hint that it exists elsewhere). */
+export async function setFor(db: Db, user: SessionUser, id: string): Promise<SavedSet | undefined> {
+  const row = await visibleRow(db, user, id);
   return row ? toSaved(row) : undefined;
 }
 
@@ -89,10 +96,11 @@ export async function deleteSet(db: Db, id: string) {
   await db.delete(readingSets).where(eq(readingSets.id, id));
 }
 
-/** What "host this set" opens from: a ready-made set by its id, or a saved one the user may see. */
+/** What "host this set" opens from, parsed: a ready-made set by its id, or a saved one the user may see that still checks out. */
 export async function hostableSet(db: Db, user: SessionUser, id: string) {
   const preset = readingPreset(id);
-  if (preset) return { spec: preset.spec, source: { name: preset.name } };
-  const saved = await setFor(db, user, id);
-  return saved?.spec ? { spec: saved.spec, source: { name: saved.name, readingSetId: saved.id } } : undefined;
+  const row = preset ? undefined : await visibleRow(db, user, id);
+  const parsed = preset ? parseReadingSet(readingSetSpecSchema, preset.spec) : row && parseReadingSet(readingSetSpecSchema, row.spec);
+  if (!parsed?.ok) return undefined;
+  return { reading: parsed, source: preset ? { name: preset.name } : { name: row!.name, readingSetId: row!.id } };
 }
