@@ -7,7 +7,7 @@ import type { Db } from "~/db/client.server";
 import { classes, readingSets } from "~/db/schema";
 import { classesFor } from "~/school/classes.server";
 import { readingPreset } from "./presets";
-import { parseReadingSet, readingSetSpecSchema, summarise, type ReadingSetSpec } from "./spec";
+import { parseReadingSet, readingSetSpecSchema, summarise, type ParsedReadingSet, type ReadingSetSpec } from "./spec";
 
 export interface SavedSet {
   id: string;
@@ -29,9 +29,10 @@ async function visibleFilter(db: Db, user: SessionUser) {
 
 type Row = { id: string; name: string; classId: string | null; className: string | null; spec: unknown; createdAt: Date; updatedAt: Date | null };
 
-function toSaved(row: Row): SavedSet {
+/** A stored set parsed once: what lists show, and the parsed set (null when it needs an edit) for hosting or practice. */
+function parsedRow(row: Row): { saved: SavedSet; reading: ParsedReadingSet | null } {
   const parsed = parseReadingSet(readingSetSpecSchema, row.spec);
-  return {
+  const saved = {
     id: row.id,
     name: row.name,
     classId: row.classId,
@@ -40,6 +41,7 @@ function toSaved(row: Row): SavedSet {
     summary: parsed.ok ? summarise(parsed.set) : `Needs an edit: ${Object.values(parsed.errors)[0] ?? "it no longer checks out"}`,
     updatedAt: (row.updatedAt ?? row.createdAt).toISOString(),
   };
+  return { saved, reading: parsed.ok ? parsed : null };
 }
 
 const columns = {
@@ -59,22 +61,21 @@ export async function setsFor(db: Db, user: SessionUser): Promise<SavedSet[]> {
     .leftJoin(classes, eq(classes.id, readingSets.classId))
     .where(await visibleFilter(db, user))
     .orderBy(desc(readingSets.updatedAt), desc(readingSets.createdAt));
-  return rows.map(toSaved);
+  return rows.map((row) => parsedRow(row).saved);
 }
 
-async function visibleRow(db: Db, user: SessionUser, id: string): Promise<Row | undefined> {
+/** One set the user may see, with its parse; undefined when there is none (callers answer 404, never a hint that it exists elsewhere). */
+export async function readingSetFor(db: Db, user: SessionUser, id: string) {
   const [row] = await db
     .select(columns)
     .from(readingSets)
     .leftJoin(classes, eq(classes.id, readingSets.classId))
     .where(and(eq(readingSets.id, id), await visibleFilter(db, user)));
-  return row;
+  return row ? parsedRow(row) : undefined;
 }
 
-/** One set the user may see, or undefined (callers answer 404, never a hint that it exists elsewhere). */
 export async function setFor(db: Db, user: SessionUser, id: string): Promise<SavedSet | undefined> {
-  const row = await visibleRow(db, user, id);
-  return row ? toSaved(row) : undefined;
+  return (await readingSetFor(db, user, id))?.saved;
 }
 
 /** Whether the user may file a set under this class (none = school-wide, always allowed). */
@@ -99,8 +100,10 @@ export async function deleteSet(db: Db, id: string) {
 /** What "host this set" opens from, parsed: a ready-made set by its id, or a saved one the user may see that still checks out. */
 export async function hostableSet(db: Db, user: SessionUser, id: string) {
   const preset = readingPreset(id);
-  const row = preset ? undefined : await visibleRow(db, user, id);
-  const parsed = preset ? parseReadingSet(readingSetSpecSchema, preset.spec) : row && parseReadingSet(readingSetSpecSchema, row.spec);
-  if (!parsed?.ok) return undefined;
-  return { reading: parsed, source: preset ? { name: preset.name } : { name: row!.name, readingSetId: row!.id } };
+  if (preset) {
+    const reading = parseReadingSet(readingSetSpecSchema, preset.spec);
+    return reading.ok ? { reading, source: { name: preset.name } } : undefined;
+  }
+  const found = await readingSetFor(db, user, id);
+  return found?.reading ? { reading: found.reading, source: { name: found.saved.name, readingSetId: found.saved.id } } : undefined;
 }
