@@ -94,15 +94,18 @@ const SPEC: ReadingSpec = {
   ledgerLines: false,
 };
 
-/** Opens a room for the demo teacher with a short countdown, as the host form would. */
-export async function openTestRoom(db: Db, overrides: Partial<Parameters<typeof roomConfig>[1]> & { prompts?: number } = {}) {
+type TestSettings = Partial<Parameters<typeof roomConfig>[1]> & { prompts?: number };
+
+/** A Sprint config with a short countdown, as the host form would make it. */
+export function testRoomConfig(code: string, overrides: TestSettings = {}): RoomConfig {
   const { prompts = 4, ...settings } = overrides;
+  return roomConfig(SPEC, { code, mode: "sprint", countdownMs: 300, answerMs: 5_000, ...settings }, drawnPrompts(SPEC, prompts, 42));
+}
+
+/** Opens a room for the demo teacher. */
+export async function openTestRoom(db: Db, overrides: TestSettings = {}) {
   const code = newRoomCode();
-  const config: RoomConfig = roomConfig(
-    SPEC,
-    { code, mode: "sprint", countdownMs: 300, answerMs: 5_000, ...settings },
-    drawnPrompts(SPEC, prompts, 42),
-  );
+  const config = testRoomConfig(code, overrides);
   const id = nanoid();
   await db.insert(rooms).values({
     id,

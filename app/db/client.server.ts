@@ -4,6 +4,7 @@ import { migrate } from "drizzle-orm/libsql/migrator";
 import type { BaseSQLiteDatabase } from "drizzle-orm/sqlite-core";
 import { mkdirSync } from "node:fs";
 import { dirname, resolve } from "node:path";
+import { fillAnswerVerdicts } from "~/rooms/verdicts.server";
 import * as schema from "./schema";
 
 export type Db = LibSQLDatabase<typeof schema> & { $client: Client };
@@ -38,8 +39,10 @@ export async function openDb(url: string, authToken?: string): Promise<Db> {
   return drizzle(client, { schema }) as Db;
 }
 
+/** The SQL migrations, then the data steps that need the app's own code (each idempotent). */
 export async function migrateDb(db: Db, migrationsFolder = MIGRATIONS_FOLDER) {
   await migrate(db, { migrationsFolder });
+  await fillAnswerVerdicts(db);
 }
 
 /** Writes the WAL back into the main file so a stopped server leaves one self-contained file. */

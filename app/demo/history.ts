@@ -16,7 +16,7 @@ import { parsePitch } from "~/music/pitch";
 import { seededRandom } from "~/music/pools";
 import { resolveTuning } from "~/music/tuning";
 import { configFromSetup } from "~/rooms/rooms.server";
-import { QUICK_DEFAULTS, type QuickSetup } from "~/rooms/setup";
+import { parsedSetup, QUICK_DEFAULTS, type QuickSetup } from "~/rooms/setup";
 import { RoomLog, writeStatements, type StepWrites } from "~/rooms/store.server";
 import { DEMO_SCHOOL as S } from "./school";
 
@@ -165,7 +165,7 @@ export async function seedHistory(db: Db) {
       const start = today.getTime() - (SESSIONS - week) * WEEK + c * 60 * 60 * 1000;
       const setup: QuickSetup = { ...QUICK_DEFAULTS, classId: cls.id, ...plan.weeks[week] };
       const roomCode = code(random);
-      const config = configFromSetup(setup, roomCode, 1_000 + c * 10 + week);
+      const config = configFromSetup(parsedSetup(setup), roomCode, 1_000 + c * 10 + week);
       // Now and then somebody is away.
       const present = roster.filter(() => random() > 0.12);
       const writes = playRound(config, roomId, start, week, present, plan.trouble, random);

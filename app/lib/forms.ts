@@ -3,11 +3,16 @@ import type { z } from "zod";
 export type FieldErrors = Partial<Record<string, string>>;
 
 /** Parses a form with a zod schema; on failure gives the first message per field. */
-export function parseForm<S extends z.ZodType>(
+export function parseForm<S extends z.ZodType>(schema: S, form: FormData) {
+  return parseFields(schema, Object.fromEntries(form));
+}
+
+/** As parseForm, for fields that arrive as an object (stored JSON, a request body). */
+export function parseFields<S extends z.ZodType>(
   schema: S,
-  form: FormData,
+  fields: unknown,
 ): { ok: true; data: z.infer<S> } | { ok: false; errors: FieldErrors } {
-  const result = schema.safeParse(Object.fromEntries(form));
+  const result = schema.safeParse(fields);
   if (result.success) return { ok: true, data: result.data };
   const errors: FieldErrors = {};
   for (const issue of result.error.issues) {

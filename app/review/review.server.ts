@@ -18,7 +18,10 @@ export async function requireClassStudent(db: Db, classId: string, userId: strin
   return student;
 }
 
-/** Every round of the class (or the given rounds), with its seats and answers. */
+/**
+ * Every round of the class (or the one round), with its seats and answer rows: the one read every report
+ * of round figures starts from (results page, class review, CSV export, JSON API), so they all agree.
+ */
 export async function reviewInput(db: Db, where: { classId: string } | { roomId: string }): Promise<ReviewInput> {
   const roomRows = await db
     .select({ id: rooms.id, title: rooms.title, position: rooms.position, createdAt: rooms.createdAt, endedAt: rooms.endedAt, config: rooms.config })

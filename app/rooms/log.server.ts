@@ -2,7 +2,6 @@ import { asc, eq } from "drizzle-orm";
 import type { Db } from "~/db/client.server";
 import { roomEvents, rooms } from "~/db/schema";
 import { replay, type RoomEvent, type RoomRecord, type RoomState } from "~/game/room";
-import type { RoomConfig } from "~/game/roomConfig";
 
 /**
  * A room rebuilt from SQLite: its config and every persisted record, replayed through the reducer.
@@ -18,7 +17,7 @@ export async function loadRoomState(db: Db, roomId: string): Promise<{ state: Ro
     .where(eq(roomEvents.roomId, roomId))
     .orderBy(asc(roomEvents.seq));
   const last = rows.at(-1);
-  return { state: replay(room.config as RoomConfig, rows.map((r) => upgraded(r.event as RoomRecord))), seq: last?.seq ?? 0, lastAt: last?.at ?? null };
+  return { state: replay(room.config, rows.map((r) => upgraded(r.event))), seq: last?.seq ?? 0, lastAt: last?.at ?? null };
 }
 
 /** Join events logged before the field was named `seatToken` carry it as `seat`. */

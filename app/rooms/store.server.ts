@@ -53,6 +53,7 @@ export class RoomLog {
           fret: a.spot.fret,
           kind: a.diagnosis.kind,
           pitchRight: a.diagnosis.pitchRight,
+          verdict: a.verdict,
           points: a.points,
           reactionMs: Math.round(a.reactionMs),
           streak: a.streak,
@@ -64,7 +65,7 @@ export class RoomLog {
   }
 }
 
-/** Rows per multi-row INSERT: well under SQLite's 32 766 bound parameters for the widest table (13 columns). */
+/** Rows per multi-row INSERT: well under SQLite's 32 766 bound parameters for the widest table (14 columns). */
 const ROWS_PER_INSERT = 500;
 
 function chunks<T>(list: readonly T[], size: number): T[][] {

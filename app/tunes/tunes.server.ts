@@ -50,7 +50,7 @@ const fromRow = (row: typeof tunes.$inferSelect): Tune => ({
   composer: row.composer,
   keyFifths: row.keyFifths,
   beatsPerBar: row.beatsPerBar,
-  notes: row.notes as TuneNote[],
+  notes: row.notes,
 });
 
 /** The school's uploaded tunes after the built-in ones. */

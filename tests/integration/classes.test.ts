@@ -6,6 +6,7 @@ import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
 import { createClass } from "~/school/people.server";
 import { seedDemo } from "../../server/seed";
 import { Client, startTestServer, type TestServer } from "./harness";
+import { testRoomConfig } from "../../server/scripted-rooms";
 
 let server: TestServer;
 const db = () => server.services.db;
@@ -332,7 +333,7 @@ describe("removing and deleting students", () => {
       title: "Old round",
       mode: "sprint",
       position: 5,
-      config: {},
+      config: testRoomConfig("DELTST"),
       endedAt: new Date(),
     });
     await db().insert(roomPlayers).values({ id: "seat-delete-test", roomId: "room-delete-test", userId: victim, nickname: "Bram" });

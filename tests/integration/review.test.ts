@@ -105,7 +105,7 @@ describe("CSV export", () => {
     await db.update(rooms).set({ classId: "demo-class-tue", endedAt: new Date() }).where(eq(rooms.id, room.id));
     await db.insert(roomPlayers).values({ id: `${room.id}-evil`, roomId: room.id, nickname: "=HYPERLINK(\"http://evil.example\")", userId: null });
     const note = room.config.prompts[0]!;
-    await db.insert(answers).values({ roomId: room.id, playerId: `${room.id}-evil`, promptIndex: 0, written: note.written, writtenMidi: note.writtenMidi, string: note.home.string, fret: note.home.fret, kind: "home-spot", pitchRight: true, points: 900, reactionMs: 1200, streak: 1, at: Date.now() });
+    await db.insert(answers).values({ roomId: room.id, playerId: `${room.id}-evil`, promptIndex: 0, written: note.written, writtenMidi: note.writtenMidi, string: note.home.string, fret: note.home.fret, kind: "home-spot", pitchRight: true, verdict: "right", points: 900, reactionMs: 1200, streak: 1, at: Date.now() });
 
     const res = await clients.rafe!.get(`/teach/classes/demo-class-tue/export.csv?session=${room.id}`);
     expect(res.headers.get("content-type")).toMatch(/^text\/csv/);
@@ -148,7 +148,7 @@ describe("live review", () => {
 
     await db.insert(roomPlayers).values({ id: `${room.id}-p`, roomId: room.id, nickname: "Pia", userId: null });
     const note = room.config.prompts[0]!;
-    await db.insert(answers).values({ roomId: room.id, playerId: `${room.id}-p`, promptIndex: 0, written: note.written, writtenMidi: note.writtenMidi, string: note.home.string, fret: note.home.fret, kind: "home-spot", pitchRight: true, points: 900, reactionMs: 1000, streak: 1, at: Date.now() });
+    await db.insert(answers).values({ roomId: room.id, playerId: `${room.id}-p`, promptIndex: 0, written: note.written, writtenMidi: note.writtenMidi, string: note.home.string, fret: note.home.fret, kind: "home-spot", pitchRight: true, verdict: "right", points: 900, reactionMs: 1000, streak: 1, at: Date.now() });
     expect(await readUntil(body, /data: 1\n\n/)).toContain("event: answers\ndata: 1\n\n");
 
     await db.update(rooms).set({ endedAt: new Date() }).where(eq(rooms.id, room.id));

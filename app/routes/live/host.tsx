@@ -5,7 +5,6 @@ import { requireUserWithRole } from "~/auth/guards.server";
 import { Button, buttonClass, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
 import { RoomConfigError } from "~/game/roomConfig";
-import { parseForm } from "~/lib/forms";
 import { KEYS } from "~/music/keys";
 import { MusicError } from "~/music/pitch";
 import { TUNINGS } from "~/music/tuning";
@@ -13,9 +12,9 @@ import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
 import { READING_PRESETS } from "~/reading/presets";
 import { hostableSet, setsFor } from "~/reading/sets.server";
-import { summarise } from "~/reading/spec";
+import { parseReadingSet, summarise } from "~/reading/spec";
 import { createRoom, roomSetup, type RoomSource } from "~/rooms/rooms.server";
-import { QUICK_DEFAULTS, quickSetupSchema, setupFromSet, type QuickSetup } from "~/rooms/setup";
+import { QUICK_DEFAULTS, quickSetupSchema, setupFromSet, type ParsedSetup } from "~/rooms/setup";
 import { classesFor } from "~/school/classes.server";
 import { tunesFor } from "~/tunes/tunes.server";
 import type { Route } from "./+types/host";
@@ -45,8 +44,8 @@ export async function loader({ request, context }: Route.LoaderArgs) {
 type Errors = Record<string, string | undefined>;
 
 /** Opens the room, or says in plain words why the settings don't make one. */
-async function open(db: Db, user: SessionUser, setup: QuickSetup, source?: RoomSource) {
-  if (setup.classId && !(await mayFileUnderClass(db, user, setup.classId))) return { errors: { classId: "You don't teach that class." } as Errors };
+async function open(db: Db, user: SessionUser, setup: ParsedSetup, source?: RoomSource) {
+  if (setup.set.classId && !(await mayFileUnderClass(db, user, setup.set.classId))) return { errors: { classId: "You don't teach that class." } as Errors };
   try {
     const room = await createRoom(db, user, setup, source);
     return redirect(`/stage/${room.id}`);
@@ -69,7 +68,7 @@ export async function action({ request, context }: Route.ActionArgs) {
     await requireReadingSet(db, user, setId, "see");
     const chosen = await hostableSet(db, user, setId);
     if (!chosen) return { errors: { set: "That reading set doesn't exist or needs an edit first." } as Errors };
-    return open(db, user, setupFromSet(chosen.spec, classId), chosen.source);
+    return open(db, user, setupFromSet(chosen.reading, classId), chosen.source);
   }
   if (intent === "again") {
     const room = await requireRound(db, user, String(form.get("roomId") ?? ""));
@@ -77,9 +76,9 @@ export async function action({ request, context }: Route.ActionArgs) {
     if (!again) return { errors: { form: "This round was hosted before its settings were kept; set it up again below." } as Errors };
     return open(db, user, again.setup, again.source);
   }
-  const parsed = parseForm(quickSetupSchema, form);
+  const parsed = parseReadingSet(quickSetupSchema, form);
   if (!parsed.ok) return { errors: parsed.errors };
-  return open(db, user, parsed.data);
+  return open(db, user, parsed);
 }
 
 const MODES = [

@@ -2,7 +2,6 @@ import { data } from "react-router";
 import { getOptionalUser } from "~/auth/guards.server";
 import { services } from "~/context";
 import { parseRoomCode } from "~/game/roomCode";
-import type { RoomConfig } from "~/game/roomConfig";
 import { Pad } from "~/live/Pad";
 import { openRoomByCode } from "~/rooms/rooms.server";
 import { IMMERSIVE } from "~/components/AppShell";
@@ -20,7 +19,7 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const room = await openRoomByCode(services(context).db, parsed.code);
   if (!room) throw data({ error: "No open room has that code. Check the code on the class screen." }, { status: 404 });
   const user = await getOptionalUser(request, context);
-  const config = room.config as RoomConfig;
+  const config = room.config;
   return {
     code: room.code,
     tuning: config.tuning,

@@ -3,7 +3,6 @@ import { requireRound } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
 import { snapshot } from "~/game/room";
-import type { RoomConfig } from "~/game/roomConfig";
 import { Stage } from "~/live/Stage";
 import { loadRoomState } from "~/rooms/log.server";
 import { hostKeyFor } from "~/rooms/rooms.server";
@@ -20,7 +19,7 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db, env } = services(context);
   const room = await requireRound(db, user, params.roomId);
-  const config = room.config as RoomConfig;
+  const config = room.config;
   // The address the teacher reached us on is the one the class's phones can reach too.
   const joinUrl = `${new URL(request.url).origin}/join?code=${room.code}`;
   // An ended room has no live socket to connect to: its last screen comes from its log.

@@ -9,12 +9,12 @@ import { Button, Card, Field, Notice, PageTitle, SelectField } from "~/component
 import { services } from "~/context";
 import { parseForm, type FieldErrors } from "~/lib/forms";
 import { KEYS, spellInKey } from "~/music/keys";
-import { displayPitchClass, MusicError } from "~/music/pitch";
-import { buildPool, type PoolNote } from "~/music/pools";
+import { displayPitchClass } from "~/music/pitch";
+import type { PoolNote } from "~/music/pools";
 import { resolveTuning, TUNINGS } from "~/music/tuning";
 import { readingPreset } from "~/reading/presets";
 import { createSet, deleteSet, setFor, updateSet } from "~/reading/sets.server";
-import { collectStrings, MODE_NAMES, readingSetFormSchema, readingSetSpecSchema, readingSpecOf, SET_MODES, type ReadingSetSpec } from "~/reading/spec";
+import { MODE_NAMES, parseReadingSet, readingSetFormSchema, readingSetSpecSchema, SET_MODES, setFilingSchema, type ReadingSetSpec } from "~/reading/spec";
 import { classesFor } from "~/school/classes.server";
 import type { Route } from "./+types/reading-set";
 
@@ -43,16 +43,15 @@ export async function action({ request, params, context }: Route.ActionArgs) {
   if (params.id !== "new") await requireReadingSet(db, user, params.id, "edit");
   const existing = params.id === "new" ? undefined : await setFor(db, user, params.id);
   if (params.id !== "new" && !existing) throw data({ error: "No such reading set." }, { status: 404 });
-  const form = collectStrings(await request.formData());
+  const form = await request.formData();
   if (existing && form.get("intent") === "delete") {
     await deleteSet(db, existing.id);
     return redirect(`/teach/sets?done=${encodeURIComponent(`Deleted “${existing.name}”.`)}`);
   }
-  const parsed = parseForm(readingSetFormSchema, form);
+  const parsed = parseReadingSet(readingSetFormSchema, form);
   if (!parsed.ok) return { errors: parsed.errors };
-  const { name, classId, ...rest } = parsed.data;
+  const { name, classId, ...spec } = parsed.set;
   if (!(await mayFileUnderClass(db, user, classId))) return { errors: { classId: "You don't teach that class." } as FieldErrors };
-  const spec = readingSetSpecSchema.parse(rest);
   const input = { name, classId: classId ?? null, spec };
   if (existing) await updateSet(db, existing.id, input);
   const id = existing?.id ?? (await createSet(db, user, input));
@@ -93,29 +92,25 @@ function asForm(values: Values) {
   return form;
 }
 
-function preview(values: Values) {
-  const parsed = parseForm(readingSetSpecSchema, asForm(values));
-  if (!parsed.ok) return { error: parsed.errors.pool ?? "Fix the settings marked in red to see the notes.", pool: null };
-  const spec = readingSpecOf(parsed.data);
-  try {
-    return { error: null, pool: buildPool(spec), spec, tuning: resolveTuning(spec.tuning) };
-  } catch (error) {
-    if (error instanceof MusicError) return { error: error.message, pool: null };
-    throw error;
-  }
+/** Everything the page shows while typing, from one parse of the reading set (so one pool) and a check of its name. */
+function check(values: Values) {
+  const form = asForm(values);
+  const filing = parseForm(setFilingSchema, form);
+  const reading = parseReadingSet(readingSetSpecSchema, form);
+  const errors: FieldErrors = { ...(filing.ok ? {} : filing.errors), ...(reading.ok ? {} : reading.errors) };
+  const preview = reading.ok
+    ? { error: null, pool: reading.pool, spec: reading.spec, tuning: resolveTuning(reading.spec.tuning) }
+    : { error: errors.pool ?? "Fix the settings marked in red to see the notes.", pool: null };
+  return { errors, preview };
 }
 
 export default function ReadingSetPage({ loaderData, actionData }: Route.ComponentProps) {
   const [values, setValues] = useState(() => valuesOf(loaderData.spec, loaderData.name, loaderData.classId));
   const [touched, setTouched] = useState<Set<string>>(new Set());
   const busy = useNavigation().state !== "idle";
-  const live = useMemo(() => {
-    const parsed = parseForm(readingSetFormSchema, asForm(values));
-    return parsed.ok ? {} : parsed.errors;
-  }, [values]);
-  const shown = useMemo(() => preview(values), [values]);
+  const { errors: live, preview: shown } = useMemo(() => check(values), [values]);
   // While a field is being fixed the last good preview stays, dimmed, rather than vanishing mid-edit.
-  const lastGood = useRef<Extract<ReturnType<typeof preview>, { pool: PoolNote[] }> | null>(null);
+  const lastGood = useRef<Extract<typeof shown, { pool: PoolNote[] }> | null>(null);
   if (shown.pool) lastGood.current = shown;
   const server: FieldErrors = actionData?.errors ?? {};
   // A field shows its live error once the teacher has changed it; after a post the server's word stands.

@@ -44,7 +44,7 @@ export async function action({ request, context }: Route.ActionArgs) {
     const from = await hostableSet(db, user, id);
     if (!from) return { error: "That reading set doesn't exist or needs an edit first." };
     if (!(await mayFileUnderClass(db, user, classId))) return { error: "You don't teach that class." };
-    const copy = await createSet(db, user, { name: from.source.name, classId, spec: from.spec });
+    const copy = await createSet(db, user, { name: from.source.name, classId, spec: from.reading.set });
     return redirect(`/teach/sets/${copy}`);
   }
   return { error: "Choose delete or copy." };
