@@ -1,4 +1,4 @@
-import { createClient, type Client, type InStatement, type Transaction, type TransactionMode } from "@libsql/client";
+import { createClient, type Client, type InArgs, type InStatement, type ResultSet, type Transaction, type TransactionMode } from "@libsql/client";
 import { drizzle, type LibSQLDatabase } from "drizzle-orm/libsql";
 import { migrate } from "drizzle-orm/libsql/migrator";
 import { mkdirSync } from "node:fs";
@@ -52,20 +52,25 @@ function takeTurnsToWrite(client: Client, file: string) {
     return run;
   };
   const isRead = (stmt: InStatement) => /^\s*(select|explain)\b/i.test(typeof stmt === "string" ? stmt : stmt.sql);
-  const { execute, batch, migrate, executeMultiple, transaction } = client;
-  client.execute = ((stmt: InStatement, args?: never) =>
-    isRead(stmt) ? execute.call(client, stmt, args) : inTurn(() => execute.call(client, stmt, args))) as Client["execute"];
+  const { batch, migrate, executeMultiple } = client;
+  const transaction = client.transaction.bind(client) as (mode?: TransactionMode) => Promise<Transaction>;
+  const execute = client.execute.bind(client) as (stmt: InStatement) => Promise<ResultSet>;
+  // Drizzle always passes one statement object; the (sql, args) form is folded into one.
+  client.execute = ((stmt: InStatement, args?: InArgs) => {
+    const one: InStatement = typeof stmt === "string" && args ? { sql: stmt, args } : stmt;
+    return isRead(one) ? execute(one) : inTurn(() => execute(one));
+  }) as Client["execute"];
   client.batch = (stmts, mode) => inTurn(() => batch.call(client, stmts, mode));
   client.migrate = (stmts) => inTurn(() => migrate.call(client, stmts));
   client.executeMultiple = (sql) => inTurn(() => executeMultiple.call(client, sql));
   // A write transaction holds its turn until it commits, rolls back or is closed.
-  client.transaction = (mode?: TransactionMode) => {
-    if (mode === "read") return transaction.call(client, mode);
+  client.transaction = ((mode?: TransactionMode) => {
+    if (mode === "read") return transaction(mode);
     return new Promise<Transaction>((opened, failed) => {
       void inTurn(
         () =>
           new Promise<void>((done) => {
-            transaction.call(client, mode).then(
+            transaction(mode).then(
               (tx) => opened(endingTurn(tx, done)),
               (error: unknown) => {
                 done();
@@ -75,7 +80,7 @@ function takeTurnsToWrite(client: Client, file: string) {
           }),
       );
     });
-  };
+  }) as Client["transaction"];
 }
 
 function endingTurn(tx: Transaction, done: () => void): Transaction {
