@@ -32,6 +32,7 @@ import { loadRoomState } from "~/rooms/log.server";
 import { hostKeyMatches, openRoomByCode } from "~/rooms/rooms.server";
 import { stepRows, type StepRows } from "~/rooms/stepRows";
 import { SqlWriter } from "./sql-writer";
+import { seatRefusal } from "./seat-limits";
 
 interface Conn {
   ws: WebSocket;
@@ -366,7 +367,11 @@ export class Hub {
       return send(conn, JSON.stringify({ type: "pong", ...pong } satisfies ServerMessage));
     }
     if (m.type === "hello") return this.hello(conn, m);
-    if (m.type === "join") return this.join(conn, m.room, m.nickname);
+    if (m.type === "join") {
+      const refused = await seatRefusal(conn.ws);
+      if (refused) return send(conn, JSON.stringify(errorMessage(ERROR_CODES.rateLimited, refused.message)));
+      return this.join(conn, m.room, m.nickname);
+    }
     const room = conn.room;
     if (!room) return send(conn, JSON.stringify(errorMessage(ERROR_CODES.notJoined, "Say hello to a room first.")));
     if (m.type === "answer") {

@@ -27,7 +27,11 @@ export async function startTestServer(extra: Record<string, string> = {}): Promi
   return {
     ...running,
     mailDir,
-    mail: () => readOutbox(mailDir),
+    // Mail leaves after the answer, from a queue: wait for what is queued so far.
+    mail: async () => {
+      await running.services.mailQueue.idle();
+      return readOutbox(mailDir);
+    },
     async close() {
       await running.close();
       await catcher.close();

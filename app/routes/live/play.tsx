@@ -4,7 +4,8 @@ import { services } from "~/context";
 import { parseRoomCode } from "~/game/roomCode";
 import type { RoomConfig } from "~/game/roomConfig";
 import { Pad } from "~/live/Pad";
-import { openRoomByCode } from "~/rooms/rooms.server";
+import { tooMany } from "~/auth/rate-limit.server";
+import { lookUpRoom } from "~/rooms/rooms.server";
 import { IMMERSIVE } from "~/components/AppShell";
 import type { Route } from "./+types/play";
 
@@ -16,8 +17,12 @@ export const handle = IMMERSIVE;
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const parsed = parseRoomCode(params.code);
   if (!parsed.ok) throw data({ error: parsed.message }, { status: 400 });
-  const room = await openRoomByCode(services(context).db, parsed.code);
-  if (!room) throw data({ error: "No open room has that code. Check the code on the class screen." }, { status: 404 });
+  const found = await lookUpRoom(services(context), request, parsed.code);
+  if (!found.ok) {
+    if (found.refused) throw tooMany(found.refused, { error: found.refused.message });
+    throw data({ error: found.error }, { status: 404 });
+  }
+  const room = found.room;
   const user = await getOptionalUser(request, context);
   const config = room.config as RoomConfig;
   return {
