@@ -107,3 +107,9 @@ export type TooMany<T> = ReturnType<typeof data<T>>;
 export function tooMany<T>(refused: Refusal, body: T): TooMany<T> {
   return data(body, { status: 429, headers: { "Retry-After": String(refused.retryAfter) } });
 }
+
+/** A route's `headers` export: the document answer keeps the Retry-After of a 429. */
+export function retryAfterHeaders(args: { actionHeaders: Headers; loaderHeaders: Headers; errorHeaders?: Headers }): HeadersInit {
+  const value = [args.errorHeaders, args.actionHeaders, args.loaderHeaders].map((h) => h?.get("Retry-After")).find(Boolean);
+  return value ? { "Retry-After": value } : {};
+}

@@ -2,7 +2,7 @@ import { Form, Link, useNavigation, useSearchParams } from "react-router";
 import { z } from "zod";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { email, NAME_MAX } from "~/auth/schemas";
-import { take, tooMany, type TooMany } from "~/auth/rate-limit.server";
+import { retryAfterHeaders, take, tooMany, type TooMany } from "~/auth/rate-limit.server";
 import { normaliseEmail } from "~/auth/users.server";
 import { DataTable, type Column } from "~/components/DataTable";
 import { Badge, Button, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
@@ -24,6 +24,8 @@ import {
 import type { Route } from "./+types/school";
 
 export const meta: Route.MetaFunction = () => [{ title: "School · Fretcall" }];
+
+export const headers: Route.HeadersFunction = retryAfterHeaders;
 
 export async function loader({ request, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["admin"]);

@@ -1,6 +1,6 @@
 import { Form, Link, useNavigation } from "react-router";
 import { z } from "zod";
-import { clientAddress, firstRefusal, take, tooMany } from "~/auth/rate-limit.server";
+import { retryAfterHeaders, clientAddress, firstRefusal, take, tooMany } from "~/auth/rate-limit.server";
 import { email } from "~/auth/schemas";
 import { createPasswordReset, normaliseEmail } from "~/auth/users.server";
 import { Button, Card, Field, Notice, PageTitle } from "~/components/ui";
@@ -9,6 +9,8 @@ import { parseForm } from "~/lib/forms";
 import type { Route } from "./+types/forgot";
 
 export const meta: Route.MetaFunction = () => [{ title: "Reset your password · Fretcall" }];
+
+export const headers: Route.HeadersFunction = retryAfterHeaders;
 
 export async function action({ request, context }: Route.ActionArgs) {
   const { db, mailQueue, limits, env } = services(context);

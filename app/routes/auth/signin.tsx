@@ -1,6 +1,6 @@
 import { Form, Link, redirect, useNavigation, useSearchParams } from "react-router";
 import { getOptionalUser } from "~/auth/guards.server";
-import { tooMany } from "~/auth/rate-limit.server";
+import { retryAfterHeaders, tooMany } from "~/auth/rate-limit.server";
 import { homeFor, startSession } from "~/auth/session.server";
 import { Button, Card, Field, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
@@ -8,6 +8,8 @@ import { safeRedirect } from "~/lib/forms";
 import type { Route } from "./+types/signin";
 
 export const meta: Route.MetaFunction = () => [{ title: "Sign in · Fretcall" }];
+
+export const headers: Route.HeadersFunction = retryAfterHeaders;
 
 export async function loader({ request, context }: Route.LoaderArgs) {
   const user = await getOptionalUser(request, context);

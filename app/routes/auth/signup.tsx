@@ -1,7 +1,7 @@
 import { Form, Link, redirect, useNavigation, useSearchParams } from "react-router";
 import { z } from "zod";
 import { getOptionalUser } from "~/auth/guards.server";
-import { clientAddress, take, tooMany } from "~/auth/rate-limit.server";
+import { retryAfterHeaders, clientAddress, take, tooMany } from "~/auth/rate-limit.server";
 import { signUpSchema } from "~/auth/schemas";
 import { homeFor, startSession } from "~/auth/session.server";
 import { confirmStudio, requestStudio } from "~/auth/signup.server";
@@ -11,6 +11,8 @@ import { parseForm } from "~/lib/forms";
 import type { Route } from "./+types/signup";
 
 export const meta: Route.MetaFunction = () => [{ title: "Start a studio · Fretcall" }];
+
+export const headers: Route.HeadersFunction = retryAfterHeaders;
 
 export async function loader({ request, context }: Route.LoaderArgs) {
   const user = await getOptionalUser(request, context);

@@ -2,11 +2,13 @@ import { Form, redirect, useNavigation, useSearchParams } from "react-router";
 import { Button, Card, Field, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
 import { parseRoomCode } from "~/game/roomCode";
-import { tooMany } from "~/auth/rate-limit.server";
+import { retryAfterHeaders, tooMany } from "~/auth/rate-limit.server";
 import { lookUpRoom } from "~/rooms/rooms.server";
 import type { Route } from "./+types/join";
 
 export const meta: Route.MetaFunction = () => [{ title: "Join a round · Fretcall" }];
+
+export const headers: Route.HeadersFunction = retryAfterHeaders;
 
 /** /join?code=… (the QR code's link) goes straight to the pad when the room is open. */
 export async function loader({ request, context }: Route.LoaderArgs) {

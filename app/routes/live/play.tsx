@@ -4,12 +4,14 @@ import { services } from "~/context";
 import { parseRoomCode } from "~/game/roomCode";
 import type { RoomConfig } from "~/game/roomConfig";
 import { Pad } from "~/live/Pad";
-import { tooMany } from "~/auth/rate-limit.server";
+import { retryAfterHeaders, tooMany } from "~/auth/rate-limit.server";
 import { lookUpRoom } from "~/rooms/rooms.server";
 import { IMMERSIVE } from "~/components/AppShell";
 import type { Route } from "./+types/play";
 
 export const meta: Route.MetaFunction = () => [{ title: "Fretcall pad" }];
+
+export const headers: Route.HeadersFunction = retryAfterHeaders;
 
 // The class screen and the phone need every pixel; the site menu would only be tapped by accident.
 export const handle = IMMERSIVE;

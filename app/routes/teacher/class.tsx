@@ -5,7 +5,7 @@ import { DataTable, type Column } from "~/components/DataTable";
 import { Badge, Button, Card, Field, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
 import { parseForm } from "~/lib/forms";
-import { take, tooMany, type TooMany } from "~/auth/rate-limit.server";
+import { retryAfterHeaders, take, tooMany, type TooMany } from "~/auth/rate-limit.server";
 import { addressInUseMail, mailInvitations } from "~/school/invitations.server";
 import {
   addStudents,
@@ -22,6 +22,8 @@ import { CSV_MAX_BYTES, parseRosterCsv, rosterRowSchema, type CheckedRow } from 
 import type { Route } from "./+types/class";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.cls.name ?? "Class"} · Fretcall` }];
+
+export const headers: Route.HeadersFunction = retryAfterHeaders;
 
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
