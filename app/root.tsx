@@ -4,6 +4,7 @@ import "./app.css";
 import { getOptionalUser } from "./auth/guards.server";
 import { AppShell } from "./components/AppShell";
 import { nonceContext, services } from "./context";
+import { retryAfterHeaders } from "./auth/rate-limit.server";
 
 export const meta: Route.MetaFunction = () => [
   { title: "Fretcall — read the note, find the fret" },
@@ -47,6 +48,9 @@ export default function App({ loaderData }: Route.ComponentProps) {
     </AppShell>
   );
 }
+
+// A loader's thrown 429 (the pad's room-code look-up) reaches this boundary with its Retry-After.
+export const headers: Route.HeadersFunction = retryAfterHeaders;
 
 /** The `error` of a route's JSON answer; a refusal made before the app (413) arrives as its text. */
 function errorSentence(data: unknown): string | undefined {

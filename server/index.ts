@@ -115,7 +115,13 @@ export async function startServer(overrides: Record<string, string | undefined> 
   );
   app.use(compression());
   app.use((req, res, next) => {
-    if (["GET", "HEAD", "OPTIONS"].includes(req.method) || sameOrigin(req.headers)) return next();
+    if (["GET", "HEAD", "OPTIONS"].includes(req.method)) return next();
+    if (sameOrigin(req.headers)) {
+      // An opaque "null" Origin vouched for by Sec-Fetch-Site says nothing more; React Router's own
+      // check would read it as another site.
+      if (req.headers.origin === "null") delete req.headers.origin;
+      return next();
+    }
     const message = "This form was sent from another website, so it was refused. Open Fretcall itself and try again.";
     if (req.accepts(["json", "html"]) === "html" && !req.path.startsWith("/api/")) res.status(403).type("html").send(`<!doctype html><title>Refused · Fretcall</title><p>${message}</p>`);
     else res.status(403).json({ error: message });

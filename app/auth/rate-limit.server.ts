@@ -108,8 +108,13 @@ export function tooMany<T>(refused: Refusal, body: T): TooMany<T> {
   return data(body, { status: 429, headers: { "Retry-After": String(refused.retryAfter) } });
 }
 
-/** A route's `headers` export: the document answer keeps the Retry-After of a 429. */
-export function retryAfterHeaders(args: { actionHeaders: Headers; loaderHeaders: Headers; errorHeaders?: Headers }): HeadersInit {
+/**
+ * A route's `headers` export: the document answer keeps the Retry-After of a 429 (returned, or
+ * thrown to the error boundary); everything else is the parent's, as without an export.
+ */
+export function retryAfterHeaders(args: { parentHeaders: Headers; actionHeaders: Headers; loaderHeaders: Headers; errorHeaders?: Headers }): HeadersInit {
+  const headers = new Headers(args.parentHeaders);
   const value = [args.errorHeaders, args.actionHeaders, args.loaderHeaders].map((h) => h?.get("Retry-After")).find(Boolean);
-  return value ? { "Retry-After": value } : {};
+  if (value) headers.set("Retry-After", value);
+  return headers;
 }
