@@ -22,6 +22,7 @@ export async function startTestServer(extra: Record<string, string> = {}): Promi
     SESSION_SECRET: randomBytes(24).toString("hex"),
     SMTP_URL: catcher.url,
     MAIL_DIR: mailDir,
+    LOG_LEVEL: "silent",
     ...extra,
   });
   return {
