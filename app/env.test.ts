@@ -26,4 +26,21 @@ describe("loadEnv", () => {
   it("refuses a short session secret", () => {
     expect(() => loadEnv({ SESSION_SECRET: "short" })).toThrow(/SESSION_SECRET: must be at least 32 characters/);
   });
+  it.each([
+    [undefined, false],
+    ["0", false],
+    ["1", 1],
+    ["2", 2],
+    ["loopback", "loopback"],
+    ["10.0.0.1, 10.0.0.0/8", "10.0.0.1, 10.0.0.0/8"],
+  ])("TRUST_PROXY=%s → trust proxy %s", (value, trust) => {
+    expect(loadEnv({ TRUST_PROXY: value }).trustProxy).toBe(trust);
+  });
+  it("refuses a TRUST_PROXY that would trust any client", () => {
+    expect(() => loadEnv({ TRUST_PROXY: "true" })).toThrow(/TRUST_PROXY: must be 0, a hop count/);
+  });
+  it("takes a log level", () => {
+    expect(loadEnv({}).LOG_LEVEL).toBe("info");
+    expect(() => loadEnv({ LOG_LEVEL: "loud" })).toThrow(/LOG_LEVEL/);
+  });
 });

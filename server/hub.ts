@@ -27,6 +27,7 @@ import { hostKeyMatches } from "~/rooms/rooms.server";
 import { RoomStore } from "~/rooms/store.server";
 import { LiveRoom, send, type Conn, type RoomHost } from "./live-room";
 import { SqlWriter } from "./sql-writer";
+import { seatRefusal } from "./seat-limits";
 
 /** An `error` to one socket: what it sent was refused, and nothing changed. */
 const refuse = (conn: Conn, code: ErrorCode, message: string) => send(conn, JSON.stringify({ type: "error", code, message } satisfies ServerMessage));
@@ -112,7 +113,11 @@ export class Hub implements RoomHost {
       return send(conn, JSON.stringify({ type: "pong", ...pong } satisfies ServerMessage));
     }
     if (m.type === "hello") return this.hello(conn, m);
-    if (m.type === "join") return this.join(conn, m.room, m.nickname);
+    if (m.type === "join") {
+      const refused = await seatRefusal(conn.ws);
+      if (refused) return refuse(conn, ERROR_CODES.rateLimited, refused.message);
+      return this.join(conn, m.room, m.nickname);
+    }
     const room = conn.room;
     if (!room) return refuse(conn, ERROR_CODES.notJoined, "Say hello to a room first.");
     if (m.type === "answer") {

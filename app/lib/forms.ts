@@ -22,8 +22,23 @@ export function parseFields<S extends z.ZodType>(
   return { ok: false, errors };
 }
 
-/** Only same-site paths may be redirect targets after sign-in (no open redirects). */
+const REDIRECT_MAX = 2000;
+const SITE = "http://site.invalid";
+
+/**
+ * Only same-site paths may be redirect targets after sign-in (no open redirects). Anything odd —
+ * another scheme or host, "//", backslashes, tabs or other control characters (browsers drop or
+ * turn them into slashes), encoded slashes, backslashes or control characters, a file (not a
+ * string), an overlong value — gives the fallback (the role's home), never an error.
+ */
 export function safeRedirect(to: FormDataEntryValue | string | null | undefined, fallback: string) {
-  if (typeof to !== "string" || !to.startsWith("/") || to.startsWith("//") || to.startsWith("/\\")) return fallback;
-  return to;
+  if (typeof to !== "string" || to.length > REDIRECT_MAX) return fallback;
+  if (!to.startsWith("/") || to.startsWith("//")) return fallback;
+  if (/[\\\u0000-\u001f\u007f-\u009f\s]/.test(to) || /%(2f|5c|[01][0-9a-f]|7f)/i.test(to)) return fallback;
+  try {
+    const url = new URL(to, SITE);
+    return url.origin === SITE ? `${url.pathname}${url.search}${url.hash}` : fallback;
+  } catch {
+    return fallback;
+  }
 }

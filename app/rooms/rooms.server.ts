@@ -1,6 +1,7 @@
 import { and, desc, eq, isNull } from "drizzle-orm";
 import { nanoid } from "nanoid";
 import { createHmac, randomInt, timingSafeEqual } from "node:crypto";
+import { clientAddress, peek, take, type Limits } from "~/auth/rate-limit.server";
 import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
 import { rooms } from "~/db/schema";
@@ -97,6 +98,20 @@ export async function createRoom(db: Db, host: SessionUser, parsed: ParsedSetup,
 export async function openRoomByCode(db: Db, code: string) {
   const [room] = await db.select().from(rooms).where(and(eq(rooms.code, code), isNull(rooms.endedAt)));
   return room;
+}
+
+/**
+ * A typed room code from a visitor: an address that has tried too many codes that open no room is
+ * refused for a while (codes can't be found by guessing), right codes never count.
+ */
+export async function lookUpRoom(svc: { db: Db; limits: Limits }, request: Request, code: string) {
+  const address = clientAddress(request);
+  const refused = await peek(svc.limits.roomLookups, address);
+  if (refused) return { ok: false as const, refused };
+  const room = await openRoomByCode(svc.db, code);
+  if (room) return { ok: true as const, room };
+  await take(svc.limits.roomLookups, address);
+  return { ok: false as const, refused: undefined, error: "No open room has that code. Check the code on the class screen." };
 }
 
 export async function roomById(db: Db, id: string) {

@@ -151,3 +151,14 @@ export async function mailInvitations(
   }
   return failed;
 }
+
+/** The note that goes to an address added to a class while it has an account at another school. */
+export function addressInUseMail(publicUrl: string, to: { email: string; displayName: string }, role: "teacher" | "student", className: string) {
+  return {
+    // System mail: in the adding school's outbox it would tell them the address has an account.
+    orgId: null,
+    to: to.email,
+    subject: "Someone tried to add you on Fretcall",
+    text: `Hello,\n\nA ${role === "student" ? "guitar teacher" : "school"} on Fretcall tried to add this address, under the name ${to.displayName}, as a ${role} of the class "${className}". This address already has a Fretcall account, and one address can hold one account, so nothing was sent to join.\n\nIf you want to join that class, ask them to use another e-mail address. Your own account is unchanged; you can sign in at ${publicUrl}/signin. If you don't know them, ignore this e-mail.\n`,
+  };
+}

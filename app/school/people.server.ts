@@ -65,7 +65,12 @@ export async function rosterOf(db: Db, classId: string, now = Date.now()): Promi
   }));
 }
 
-/** What the import needs to know about the e-mails in a batch: which belong to the school's students, which to nobody we may use. */
+/**
+ * What the import needs to know about the e-mails in a batch: which belong to the school's students,
+ * which to other people of the school, and which to accounts elsewhere. An address in use at
+ * another school is treated like a new one in every answer (adding someone must not tell whether
+ * an address has an account anywhere); see addStudents.
+ */
 async function emailOwners(db: Db, orgId: string, emails: string[]) {
   const found = emails.length
     ? await db
@@ -75,11 +80,13 @@ async function emailOwners(db: Db, orgId: string, emails: string[]) {
     : [];
   const reusable = new Map<string, { id: string; hasPassword: boolean }>();
   const blocked = new Map<string, string>();
+  const elsewhere = new Set<string>();
   for (const u of found) {
-    if (u.orgId === orgId && u.role === "student") reusable.set(u.email!, { id: u.id, hasPassword: Boolean(u.hasPassword) });
-    else blocked.set(u.email!, "This e-mail belongs to another account that can't join as a student.");
+    if (u.orgId !== orgId) elsewhere.add(u.email!);
+    else if (u.role === "student") reusable.set(u.email!, { id: u.id, hasPassword: Boolean(u.hasPassword) });
+    else blocked.set(u.email!, "This e-mail belongs to a teacher or admin of your school, who can't join as a student.");
   }
-  return { reusable, blocked };
+  return { reusable, blocked, elsewhere };
 }
 
 export async function checkRowsForClass(db: Db, cls: ClassRecord, rows: readonly RosterRow[]) {
@@ -91,7 +98,13 @@ export async function checkRowsForClass(db: Db, cls: ClassRecord, rows: readonly
     emails: roster.flatMap((r) => (r.email ? [r.email] : [])),
     blockedEmails: owners.blocked,
   });
-  return { checked, reusable: owners.reusable };
+  return { checked, reusable: owners.reusable, elsewhere: owners.elsewhere };
+}
+
+/** An address that already has an account at another school: its owner is told instead of invited. */
+export interface AddressInUse {
+  email: string;
+  displayName: string;
 }
 
 export interface InviteToSend {
@@ -103,39 +116,44 @@ export interface InviteToSend {
 /**
  * Adds checked rows to a class in one transaction: new students are created (nickname-only when
  * there is no e-mail); a student of the school who already has that e-mail is enrolled as they are.
- * Returns the invitations to mail, or the rows' errors when any row fails (nothing is stored then).
+ * An address in use at another school gives a nickname-only student here and a note to its owner,
+ * with the same answer as a new address. Returns the invitations and notes to mail, or the rows'
+ * errors when any row fails (nothing is stored then).
  */
 export async function addStudents(
   db: Db,
   cls: ClassRecord,
   invitedBy: string,
   rows: readonly RosterRow[],
-): Promise<{ ok: true; invites: InviteToSend[]; added: number } | { ok: false; rows: CheckedRow[] }> {
-  const { checked, reusable } = await checkRowsForClass(db, cls, rows);
+): Promise<{ ok: true; invites: InviteToSend[]; inUse: AddressInUse[]; added: number } | { ok: false; rows: CheckedRow[] }> {
+  const { checked, reusable, elsewhere } = await checkRowsForClass(db, cls, rows);
   if (rows.length === 0 || checked.some((r) => r.errors.length)) return { ok: false, rows: checked };
+  const inUse: AddressInUse[] = [];
   const invites = await db.transaction(async (tx) => {
     const out: InviteToSend[] = [];
     for (const row of checked) {
       const existing = row.email ? reusable.get(row.email) : undefined;
       const userId = existing?.id ?? nanoid();
+      const taken = Boolean(row.email && elsewhere.has(row.email));
+      if (taken) inUse.push({ email: row.email, displayName: row.name });
       if (!existing) {
         await tx.insert(users).values({
           id: userId,
           orgId: cls.orgId,
           role: "student",
           displayName: row.name,
-          email: row.email || null,
+          email: (!taken && row.email) || null,
         });
       }
       await tx.insert(memberships).values({ classId: cls.id, userId, role: "student" });
-      if (row.email && !existing?.hasPassword) {
+      if (row.email && !taken && !existing?.hasPassword) {
         const token = await createInvitation(tx, { userId, classId: cls.id, invitedBy });
         out.push({ email: row.email, displayName: row.name, token });
       }
     }
     return out;
   });
-  return { ok: true, invites, added: checked.length };
+  return { ok: true, invites, inUse, added: checked.length };
 }
 
 /** Takes a student off a class roster; their account and other classes stay. */
@@ -231,13 +249,25 @@ export async function setTeacher(db: Db, classId: string, userId: string, teach:
   }
 }
 
-/** A new teacher account, without a password until they accept the invitation to their first class. */
+/** Whether an address belongs to someone of this school (other schools' accounts are not told). */
+export async function emailInSchool(db: Db, orgId: string, email: string) {
+  const [row] = await db.select({ id: users.id }).from(users).where(and(eq(users.email, email), eq(users.orgId, orgId)));
+  return Boolean(row);
+}
+
+/**
+ * A new teacher account, without a password until they accept the invitation to their first class.
+ * When the address already has an account at another school, the teacher is added without it and
+ * no invitation is made (`token` undefined): the caller mails the address's owner a note instead,
+ * and answers as for a new address.
+ */
 export async function addTeacher(db: Db, orgId: string, input: { displayName: string; email: string; classId: string }, invitedBy: string) {
   const id = nanoid();
+  const [elsewhere] = await db.select({ id: users.id }).from(users).where(eq(users.email, input.email));
   return db.transaction(async (tx) => {
-    await tx.insert(users).values({ id, orgId, role: "teacher", displayName: input.displayName, email: input.email });
+    await tx.insert(users).values({ id, orgId, role: "teacher", displayName: input.displayName, email: elsewhere ? null : input.email });
     await tx.insert(memberships).values({ classId: input.classId, userId: id, role: "teacher" });
-    return { id, token: await createInvitation(tx, { userId: id, classId: input.classId, invitedBy }) };
+    return { id, token: elsewhere ? undefined : await createInvitation(tx, { userId: id, classId: input.classId, invitedBy }) };
   });
 }
 

@@ -46,6 +46,11 @@ test("a new teacher starts a studio; empty fields get clear errors first", async
   await page.getByLabel("Password again").fill("strings and frets");
   await shot(page, "signup");
   await page.getByRole("button", { name: "Create studio" }).click();
+  await expect(page.getByText("Open the link in it within 24 hours")).toBeVisible();
+  const mail = (await readMail()).find((m) => m.to.includes("bettany@harbourlight.example"));
+  const link = new URL(mail!.text.match(/https?:\/\/\S+\/signup\?studio=\S+/)![0]);
+  await page.goto(link.pathname + link.search);
+  await page.getByRole("button", { name: "Create my studio" }).click();
   await expect(page).toHaveURL(/\/admin$/);
   await expect(page.getByRole("heading", { name: "Your school" })).toBeVisible();
 });

@@ -166,7 +166,7 @@ describe("CSV import", () => {
       "A student with this name is already in the class.",
       "A student with this e-mail is already in the class.",
       "Same name as line 7.",
-      "This e-mail belongs to another account that can't join as a student.",
+      "This e-mail belongs to a teacher or admin of your school, who can't join as a student.",
     ]) {
       expect(page).toContain(message);
     }
@@ -266,7 +266,7 @@ describe("invitations through the captured e-mail", () => {
     const res = await admin.post("/admin", { intent: "addTeacher", displayName: "Pim Quarles", email: "pim@example.org", classId });
     expect(await html(res)).toContain("Added Pim Quarles to Invite Test Class");
     const dup = await admin.post("/admin", { intent: "addTeacher", displayName: "Pim Again", email: "PIM@example.org", classId });
-    expect(await html(dup)).toContain("An account with this e-mail already exists.");
+    expect(await html(dup)).toContain("Someone in your school already has this e-mail.");
     const link = await inviteLink("pim@example.org");
     const pim = new Client(server.url);
     const done = await pim.post(link, password);

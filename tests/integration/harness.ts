@@ -23,12 +23,17 @@ export async function startTestServer(extra: Record<string, string> = {}): Promi
     SESSION_SECRET: randomBytes(24).toString("hex"),
     SMTP_URL: catcher.url,
     MAIL_DIR: mailDir,
+    LOG_LEVEL: "silent",
     ...extra,
   });
   return {
     ...running,
     mailDir,
-    mail: () => readOutbox(mailDir),
+    // Mail leaves after the answer, from a queue: wait for what is queued so far.
+    mail: async () => {
+      await running.services.mailQueue.idle();
+      return readOutbox(mailDir);
+    },
     async close() {
       await running.close();
       await catcher.close();
