@@ -13,6 +13,7 @@ import { startMailSchedule } from "~/practice/mail.server";
 import { createServices, type Services } from "~/services.server";
 import type { createAppHandler } from "./app";
 import { startMailCatcher } from "./mail-catcher";
+import { ScoreReader } from "./score-reader";
 import { Hub } from "./hub";
 import { attachSockets } from "./sockets";
 
@@ -43,7 +44,8 @@ export async function startServer(overrides: Record<string, string | undefined> 
   await migrateDb(db);
   const catcher = env.mailCapture ? await startMailCatcher(env.MAIL_DIR) : undefined;
   const mailer = createMailer(catcher?.url ?? env.SMTP_URL!, env.MAIL_FROM);
-  const services = createServices(env, db, mailer);
+  const scores = new ScoreReader();
+  const services = createServices(env, db, mailer, scores.read);
   // Assignment notices, reminders and weekly digests (app/practice/mail.server.ts).
   const practiceMail = startMailSchedule(db, mailer, env.PUBLIC_URL);
   const hub = new Hub(db, env.SESSION_SECRET, services.sessions, { url: env.DATABASE_URL, authToken: env.DATABASE_AUTH_TOKEN });
@@ -134,6 +136,7 @@ export async function startServer(overrides: Record<string, string | undefined> 
       await stopped;
       await closeVite();
       await practiceMail.stop();
+      await scores.close();
       services.mailer.close();
       await catcher?.close();
       await closeDb(db);

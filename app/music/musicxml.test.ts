@@ -1,6 +1,6 @@
 import { strToU8, zipSync } from "fflate";
 import { describe, expect, it } from "vitest";
-import { MAX_XML_CHARS, parseMusicXml, parseMxl, parseScoreFile } from "./musicxml";
+import { MAX_DEPTH, MAX_NOTES, MAX_XML_CHARS, parseMusicXml, parseMxl, parseScoreFile } from "./musicxml";
 import { MusicError } from "./pitch";
 
 // Hand-written fixtures; the melody is invented for Fretcall.
@@ -84,6 +84,12 @@ describe("parseMusicXml", () => {
     [score(`${note("E", 4, -1)}</measure>`), /Bar 1: duration must be a number of zero or more/],
     [score(`</measure><measure number="2a"><attributes><key><fifths>9</fifths></key></attributes></measure>`), /Bar 2a: A key signature/],
     [LANTERN.replace("<divisions>2</divisions>", ""), /Bar 1: a duration comes before <divisions>/],
+    [LANTERN.replace("<note>", "<note>\n<pitch>"), /not well-formed XML \(line 11\)/],
+    // Entity declarations are refused before any parsing (XML 1.0 §2.8: the internal subset sits in [ … ]).
+    [LANTERN.replace(/<!DOCTYPE[^>]*>/, '<!DOCTYPE score-partwise [<!ENTITY a "aaaa"><!ENTITY b "&a;&a;&a;">]>'), /declares its own XML entities/],
+    [LANTERN.replace("<work>", `${"<direction>".repeat(MAX_DEPTH + 1)}${"</direction>".repeat(MAX_DEPTH + 1)}<work>`), new RegExp(`more than ${MAX_DEPTH} levels deep`)],
+    [score(`${note("E", 4, 1).repeat(MAX_NOTES + 1)}</measure>`), /more than 5000 notes/],
+    [`${LANTERN}<!--${" ".repeat(MAX_XML_CHARS)}-->`, /larger than 3 MB of text/],
   ])("rejects %#", (text, message) => {
     expect(() => parseMusicXml(text)).toThrow(MusicError);
     expect(() => parseMusicXml(text)).toThrow(message);
@@ -121,12 +127,12 @@ describe("parseMxl and parseScoreFile", () => {
   it("refuses an archive that unpacks beyond the limit", () => {
     const bomb = mxl({ "META-INF/container.xml": CONTAINER, "score/lantern.musicxml": `<!--${" ".repeat(MAX_XML_CHARS + 1)}-->` });
     expect(bomb.length).toBeLessThan(100_000);
-    expect(() => parseScoreFile(bomb)).toThrow(/unpacks to more than 20 MB/);
+    expect(() => parseScoreFile(bomb)).toThrow(/unpacks to more than 3 MB/);
   });
 
   it("rejects empty, oversized and non-UTF-8 files", () => {
     expect(() => parseScoreFile(new Uint8Array(0))).toThrow(/empty/);
-    expect(() => parseScoreFile(new Uint8Array(6 * 1024 * 1024))).toThrow(/at most 5 MB/);
+    expect(() => parseScoreFile(new Uint8Array(MAX_XML_CHARS + 1))).toThrow(/at most 3 MB/);
     expect(() => parseScoreFile(new Uint8Array([0x3c, 0xff, 0xfe, 0xfd]))).toThrow(/not valid UTF-8 text/);
   });
 });

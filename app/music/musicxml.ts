@@ -22,13 +22,31 @@ export interface Tune {
   notes: TuneNote[];
 }
 
-// Limits keep a hostile or mistaken upload from exhausting memory; real melodies are far smaller.
-export const MAX_FILE_BYTES = 5 * 1024 * 1024;
-export const MAX_XML_CHARS = 20 * 1024 * 1024;
+/*
+ * Limits keep a hostile or mistaken upload from exhausting memory or time. Sizing: one melody note
+ * as notation programs export it (pitch, duration, voice, type, stem, beam, layout attributes) is
+ * 250–500 bytes of XML, so even a long study of 2 000 notes is about 1 MB, and a guitar part that
+ * repeats every note on a TAB staff about 2 MB; the tunes a class reads are 20–200 KB. 3 MB leaves
+ * half as much again. The densest legal file at the limit takes 2–3 s to read on a busy 2-core
+ * machine, on the score reader's own thread (server/score-reader.ts, bench/upload-stall.ts).
+ */
+export const MAX_XML_CHARS = 3 * 1024 * 1024;
+/** A plain .musicxml upload is its own text; a compressed .mxl is smaller. */
+export const MAX_FILE_BYTES = MAX_XML_CHARS;
 const MAX_ZIP_ENTRIES = 500;
-const MAX_NOTES = 20_000;
+/** A melody played at a note a second for over an hour. */
+export const MAX_NOTES = 5_000;
+/** MusicXML's deepest real nesting (score, part, measure, note, notations, technical, …) is about 8. */
+export const MAX_DEPTH = 32;
 // Fed to the inflater in small slices, so one push can expand to at most a few MB before the limit is checked.
 const ZIP_SLICE = 4096;
+const megabytes = (n: number) => `${n / 1024 / 1024} MB`;
+export const FILE_TOO_BIG = `A score file may be at most ${megabytes(MAX_FILE_BYTES)}.`;
+
+/** What reading an upload gives: the melody, or the words that tell the teacher why not. */
+export type ScoreReading = { ok: true; score: Tune } | { ok: false; error: string };
+/** Reads an uploaded score away from the event loop (server/score-reader.ts). */
+export type ReadScore = (bytes: Uint8Array) => Promise<ScoreReading>;
 
 type XmlNode = Record<string, unknown>;
 
@@ -39,6 +57,7 @@ const parser = new XMLParser({
   parseTagValue: false,
   parseAttributeValue: false,
   trimValues: true,
+  maxNestedTags: MAX_DEPTH,
 });
 
 function tagOf(node: XmlNode): string | undefined {
@@ -65,10 +84,20 @@ function attr(node: XmlNode | undefined, name: string): string | undefined {
 }
 
 function parseXml(text: string, what: string): XmlNode[] {
-  if (text.length > MAX_XML_CHARS) throw new MusicError(`${what} is larger than ${MAX_XML_CHARS / 1024 / 1024} MB of text.`);
+  if (text.length > MAX_XML_CHARS) throw new MusicError(`${what} is larger than ${megabytes(MAX_XML_CHARS)} of text; a melody needs far less.`);
+  // A DOCTYPE naming the public MusicXML DTD is normal; one declaring its own entities (an internal
+  // subset) is how entity-expansion attacks start, and no score needs it.
+  if (/<!DOCTYPE[^>[]*\[/iu.test(text) || /<!ENTITY/iu.test(text)) {
+    throw new MusicError(`${what} declares its own XML entities (a DOCTYPE with [ … ]); MusicXML needs none. Export the score again from your notation program.`);
+  }
   const valid = XMLValidator.validate(text);
   if (valid !== true) throw new MusicError(`${what} is not well-formed XML (line ${valid.err.line}): ${valid.err.msg}`);
-  return parser.parse(text) as XmlNode[];
+  try {
+    return parser.parse(text) as XmlNode[];
+  } catch (error) {
+    if (/nested tags/iu.test((error as Error).message)) throw new MusicError(`${what} nests its elements more than ${MAX_DEPTH} levels deep; a MusicXML score needs about 8.`);
+    throw new MusicError(`${what} could not be read as XML: ${(error as Error).message}`);
+  }
 }
 
 const ACCIDENTAL_NAMES: Readonly<Record<string, PrintedAccidental>> = {
@@ -171,7 +200,7 @@ function readPart(part: XmlNode): { notes: RawNote[]; bars: number } {
           tieStart: ties.includes("start"),
           tieStop: ties.includes("stop"),
         });
-        if (notes.length > MAX_NOTES) throw new MusicError(`The first part has more than ${MAX_NOTES} notes.`);
+        if (notes.length > MAX_NOTES) throw new MusicError(`The first part has more than ${MAX_NOTES} notes; a melody for a class needs far fewer.`);
       }
     }
     barStart += longest;
@@ -265,7 +294,7 @@ function unzipXml(bytes: Uint8Array): Map<string, Uint8Array> {
       }
       total += chunk.length;
       if (total > MAX_XML_CHARS) {
-        failure ??= new MusicError(`This .mxl archive unpacks to more than ${MAX_XML_CHARS / 1024 / 1024} MB.`);
+        failure ??= new MusicError(`This .mxl archive unpacks to more than ${megabytes(MAX_XML_CHARS)}; a melody needs far less.`);
         file.terminate();
         return;
       }
@@ -310,7 +339,7 @@ export function parseMxl(bytes: Uint8Array): Tune {
 /** An uploaded score file of either kind, told apart by content rather than by name. */
 export function parseScoreFile(bytes: Uint8Array): Tune {
   if (!(bytes instanceof Uint8Array) || bytes.length === 0) throw new MusicError("The score file is empty.");
-  if (bytes.length > MAX_FILE_BYTES) throw new MusicError(`A score file may be at most ${MAX_FILE_BYTES / 1024 / 1024} MB.`);
+  if (bytes.length > MAX_FILE_BYTES) throw new MusicError(FILE_TOO_BIG);
   const isZip = bytes[0] === 0x50 && bytes[1] === 0x4b && bytes[2] === 0x03 && bytes[3] === 0x04; // "PK\3\4"
   return isZip ? parseMxl(bytes) : parseMusicXml(decodeText(bytes, "The score file"));
 }

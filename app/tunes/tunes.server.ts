@@ -3,7 +3,7 @@ import { nanoid } from "nanoid";
 import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
 import { tunes } from "~/db/schema";
-import { parseScoreFile, type Tune as ParsedScore } from "~/music/musicxml";
+import type { ReadScore, Tune as ParsedScore } from "~/music/musicxml";
 import { BUILTIN_TUNES, builtinTune, type Tune, type TuneNote } from "./builtin";
 
 export const TITLE_MAX = 80;
@@ -20,9 +20,11 @@ export function toStoredTune(score: ParsedScore, title: string): Omit<Tune, "id"
   };
 }
 
-/** Parses an upload and stores it; a MusicError from the parser carries the message for the teacher. */
-export async function saveUploadedTune(db: Db, user: SessionUser, bytes: Uint8Array, typedTitle: string) {
-  const score = parseScoreFile(bytes);
+/** Reads an upload (off the event loop) and stores it, or gives the reader's refusal for the teacher. */
+export async function saveUploadedTune(db: Db, read: ReadScore, user: SessionUser, bytes: Uint8Array, typedTitle: string) {
+  const reading = await read(bytes);
+  if (!reading.ok) return reading;
+  const { score } = reading;
   const title = (typedTitle.trim() || score.title || "Untitled tune").slice(0, TITLE_MAX);
   const stored = toStoredTune(score, title);
   const id = nanoid();
@@ -36,7 +38,7 @@ export async function saveUploadedTune(db: Db, user: SessionUser, bytes: Uint8Ar
     notes: stored.notes,
     createdBy: user.id,
   });
-  return { id, title, notes: stored.notes.length, bars: score.bars };
+  return { ok: true as const, id, title, notes: stored.notes.length, bars: score.bars };
 }
 
 const fromRow = (row: typeof tunes.$inferSelect): Tune => ({

@@ -81,6 +81,10 @@ describe("tune uploads", () => {
     ["letter.xml", `<?xml version="1.0"?><letter>hello</letter>`, "is not a MusicXML score"],
     ["silent.musicxml", SCORE.replace(/<note><pitch>.*?<\/note>/gs, ""), "no notes"],
     ["fake.mxl", zipSync({ "score.musicxml": strToU8(SCORE) }), "container.xml"],
+    ["pictures.mxl", zipSync({ "META-INF/container.xml": strToU8(`<container><rootfiles><rootfile full-path="score.pdf"/></rootfiles></container>`), "score.pdf": new Uint8Array(8) }), "but does not contain it"],
+    ["line.musicxml", SCORE.replace("<duration>2</duration></note>", "<duration>2</note>"), "not well-formed XML (line 10)"],
+    ["entities.musicxml", SCORE.replace("<score-partwise", `<!DOCTYPE score-partwise [<!ENTITY x "&#60;note/&#62;">]><score-partwise`), "declares its own XML entities"],
+    ["deep.musicxml", SCORE.replace("<work>", `${"<direction>".repeat(40)}${"</direction>".repeat(40)}<work>`), "more than 32 levels deep"],
   ])("refuses %s with a clear message and stores nothing", async (name, bytes, message) => {
     const before = (await stored()).length;
     const res = await upload(teacher, name, bytes);
@@ -92,7 +96,15 @@ describe("tune uploads", () => {
   it("refuses an archive that expands too far", async () => {
     const bomb = zipSync({ "META-INF/container.xml": strToU8("x"), "big.xml": new Uint8Array(21 * 1024 * 1024) }, { level: 9 });
     const res = await upload(teacher, "bomb.mxl", bomb);
-    expect(await res.text()).toMatch(/unpacks to more than/);
+    expect(await res.text()).toMatch(/unpacks to more than 3 MB/);
+  });
+
+  it("answers a 20 MB upload with the limit on the page, not a broken connection", async () => {
+    const before = (await stored()).length;
+    const res = await upload(teacher, "huge.musicxml", new Uint8Array(20 * 1024 * 1024).fill(0x20));
+    expect(res.status).toBe(200);
+    expect(await res.text()).toContain("A score file may be at most 3 MB. Nothing was saved.");
+    expect((await stored()).length).toBe(before);
   });
 
   it("is for teachers: students get 403, strangers are sent to sign in", async () => {
