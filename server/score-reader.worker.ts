@@ -14,7 +14,7 @@ port.on("message", (m: ScoreRequest) => {
   if (m.type === "close") return port.close();
   let result: ScoreReading;
   try {
-    result = { ok: true, score: parseScoreFile(m.bytes) };
+    result = { ok: true, score: parseScoreFile(m.bytes, m.partId) };
   } catch (error) {
     // Anything but the parser's own refusal is a fault in Fretcall; the teacher still gets words.
     if (!(error instanceof MusicError)) console.error("score reader failed", error);
