@@ -1,6 +1,6 @@
 // The one place the database is described; drizzle-kit generates migrations from it.
 import { sql } from "drizzle-orm";
-import { index, integer, primaryKey, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
+import { blob, index, integer, primaryKey, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
 
 const createdAt = () =>
   integer("created_at", { mode: "timestamp_ms" })
@@ -237,8 +237,13 @@ export const tunes = sqliteTable(
     composer: text("composer").notNull().default(""),
     keyFifths: integer("key_fifths").notNull(),
     beatsPerBar: integer("beats_per_bar").notNull(),
-    // [{ pitch, beats, bar }]: the shape app/tunes/builtin.ts uses.
+    // [{ pitch, beats, bar, onset, tied }]: the shape app/tunes/builtin.ts uses.
     notes: text("notes", { mode: "json" }).notNull(),
+    // Bars with their meter and key, the part read, the score's parts and what was left out
+    // (StoredScore in app/tunes/builtin.ts); null for tunes uploaded before these were kept.
+    score: text("score", { mode: "json" }),
+    // The uploaded file, so the score can be read again (another part, a better reader).
+    source: blob("source", { mode: "buffer" }),
     createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: createdAt(),
   },

@@ -36,7 +36,7 @@ export default function Tunes({ loaderData, actionData }: Route.ComponentProps) 
   const busy = useNavigation().state !== "idle";
   return (
     <div className="mx-auto max-w-3xl space-y-6">
-      <PageTitle lead="Melodies for Tune walks and rhythm passes. Upload a score as MusicXML — Fretcall reads the top line of its first part.">Tunes</PageTitle>
+      <PageTitle lead="Melodies for Tune walks and rhythm passes. Upload a score as MusicXML — Fretcall reads the top line of the first part with notes, and says what it left out; another part can be chosen on the tune's page.">Tunes</PageTitle>
       <Card>
         <Form method="post" encType="multipart/form-data" className="space-y-4" noValidate>
           {actionData?.error ? <Notice tone="error">{actionData.error}</Notice> : null}
