@@ -32,7 +32,7 @@ export function RhythmPass({ tune, position }: { tune: Tune; position: number })
   const tapsRef = useRef<number[]>([]);
   // A stored pass joins "Your last passes" on the page.
   const { revalidate } = useRevalidator();
-  const plan = timeline(tune.notes, tune.beatsPerBar, tempo);
+  const plan = timeline(tune, tempo);
 
   // A frame clock while playing: for the beat light and the bar on the staff, not for scoring.
   useEffect(() => {
@@ -70,7 +70,7 @@ export function RhythmPass({ tune, position }: { tune: Tune; position: number })
     run.stop();
     const taps = tapsRef.current.map((t) => Math.round(t));
     const id = nanoid();
-    setPhase({ kind: "done", score: scoreTaps(tune.notes, tune.beatsPerBar, tempo, taps), saved: "saving", id, taps });
+    setPhase({ kind: "done", score: scoreTaps(tune, tempo, taps), saved: "saving", id, taps });
     void save(id, taps);
   }
 
