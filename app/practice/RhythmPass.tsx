@@ -10,6 +10,7 @@ import { SoundControl } from "~/components/SoundControl";
 import { unlockSound } from "~/components/sound";
 import { Staff } from "~/components/Staff";
 import { Button, Card, Notice, SelectField } from "~/components/ui";
+import { drawnBar } from "~/tunes/bars";
 import type { Tune } from "~/tunes/builtin";
 import { startClickTrack, type ClickRun } from "./click";
 import { CLOSE_MS, DEFAULT_TEMPO, GRADE_WORDS, ON_TIME_MS, scoreTaps, timeline, type Grade, type RhythmScore } from "./rhythm";
@@ -93,6 +94,7 @@ export function RhythmPass({ tune, position }: { tune: Tune; position: number })
   const current = [...plan.onsets.keys()].findLast((i) => plan.onsets[i]! <= now + plan.beatMs / 2) ?? 0;
   const bar = tune.notes[current]!.bar;
   const barNotes = tune.notes.filter((n) => n.bar === bar);
+  const drawn = drawnBar(tune, bar);
 
   return (
     <div className="space-y-4">
@@ -105,7 +107,7 @@ export function RhythmPass({ tune, position }: { tune: Tune; position: number })
             <span aria-hidden="true" className={`h-8 w-8 rounded-full ${now >= 0 && now % plan.beatMs < 120 ? "bg-brass" : "bg-ink/10"}`} />
           </div>
           <Card className="p-3">
-            <Staff notes={barNotes.map((n) => ({ written: n.pitch }))} keyFifths={tune.keyFifths} size="phone" />
+            <Staff notes={drawn.notes} keyFifths={drawn.keyFifths} size="phone" />
             <p className="text-center text-ink-soft">{barNotes.map((n) => `${n.pitch} (${n.beats} ${n.beats === 1 ? "beat" : "beats"})`).join(" · ")}</p>
           </Card>
           <button

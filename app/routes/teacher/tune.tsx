@@ -6,6 +6,7 @@ import { services } from "~/context";
 import { defaultSpotMap, homeSpotFor } from "~/music/positions";
 import { displayPitch, parsePitch, pitchMidi } from "~/music/pitch";
 import { resolveTuning } from "~/music/tuning";
+import { drawnBar } from "~/tunes/bars";
 import type { StoredScore } from "~/tunes/builtin";
 import { barRange, choosePart, deleteTune, findTune } from "~/tunes/tunes.server";
 import type { Route } from "./+types/tune";
@@ -27,7 +28,7 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const notes = barRange(tune, from, to);
   // A Tune walk in this position can only ask for notes the position reaches.
   const outside = notes.filter((n) => !homeSpotFor(map, pitchMidi(parsePitch(n.pitch)))).map((n) => `${displayPitch(parsePitch(n.pitch))} (bar ${n.bar})`);
-  const bars = Array.from({ length: to - from + 1 }, (_, i) => from + i).map((bar) => ({ bar, notes: notes.filter((n) => n.bar === bar).map((n) => n.pitch) }));
+  const bars = Array.from({ length: to - from + 1 }, (_, i) => drawnBar(tune, from + i));
   return {
     tune: { id: tune.id, title: tune.title, builtin: tune.builtin, keyFifths: tune.keyFifths, lastBar },
     score: tune.score ? { part: tune.score.part, partId: tune.score.partId, parts: tune.score.parts, leftOut: leftOutWords(tune.score) } : null,
@@ -121,7 +122,7 @@ export default function TunePage({ loaderData: d, actionData }: Route.ComponentP
         {d.bars.map((b) => (
           <Card key={b.bar} className="p-2">
             <p className="px-2 text-sm text-ink-soft">Bar {b.bar}</p>
-            {b.notes.length > 0 ? <Staff notes={b.notes.map((written) => ({ written }))} keyFifths={d.tune.keyFifths} size="card" /> : <p className="p-4 text-ink-soft">rests only</p>}
+            {b.notes.length > 0 ? <Staff notes={b.notes} keyFifths={b.keyFifths} size="card" /> : <p className="p-4 text-ink-soft">rests only</p>}
           </Card>
         ))}
       </div>
