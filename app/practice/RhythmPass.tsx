@@ -90,7 +90,7 @@ export function RhythmPass({ tune, position }: { tune: Tune; position: number })
   };
 
   const beat = Math.floor(now / plan.beatMs);
-  const countIn = beat < tune.beatsPerBar;
+  const countIn = beat < plan.countIn;
   const current = [...plan.onsets.keys()].findLast((i) => plan.onsets[i]! <= now + plan.beatMs / 2) ?? 0;
   const bar = tune.notes[current]!.bar;
   const barNotes = tune.notes.filter((n) => n.bar === bar);
@@ -131,7 +131,7 @@ export function RhythmPass({ tune, position }: { tune: Tune; position: number })
       ) : (
         <Card className="space-y-4">
           <p className="text-lg">
-            One bar of count-in ({tune.beatsPerBar} clicks), then tap the big button once for every note, in time with the click. You play the pitches
+            One bar of count-in ({plan.countIn} clicks), then tap the big button once for every note, in time with the click. You play the pitches
             on your guitar if you like; the taps are what is timed.
           </p>
           <div className="max-w-xs">

@@ -143,6 +143,7 @@ describe("the timeline of an upload read fully", () => {
     // Two clicks a bar: count-in 0, 1000; bar 1 at 2000 (accent), 3000; bar 2 at 4000 (accent), 5000; ends at 6000.
     expect(t.clicks.map((c) => [Math.round(c.at), c.accent])).toEqual([[0, true], [1000, false], [2000, true], [3000, false], [4000, true], [5000, false]]);
     expect(Math.round(t.endMs)).toBe(6000);
+    expect(t.countIn).toBe(2);
   });
 
   it("3/4 with a pickup and rests inside bars: rests are time between onsets", () => {

@@ -60,6 +60,8 @@ export interface Timeline {
   clicks: { at: number; accent: boolean }[];
   /** When the last note ends. */
   endMs: number;
+  /** Clicks of the count-in: one bar of the first full bar's beats (2 in 6/8 and cut time). */
+  countIn: number;
 }
 
 /** A meter's beat in quarter notes, and beats to its bar. */
@@ -144,7 +146,7 @@ export function timeline(tune: RhythmTune, bpm: number): Timeline {
     const until = Math.min(bar.start + bar.length, plan.bars[i + 1]?.start ?? Infinity, plan.end);
     for (let q = bar.start; q < until - 1e-9; q += bar.beat) clicks.push({ at: toMs(q), accent: q === bar.start });
   });
-  return { beatMs: beat, onsets: plan.onsets.map(toMs), clicks, endMs: toMs(plan.end) };
+  return { beatMs: beat, onsets: plan.onsets.map(toMs), clicks, endMs: toMs(plan.end), countIn: plan.countIn.perBar };
 }
 
 export type Grade = "on-time" | "close" | "early" | "late" | "missed";
