@@ -47,7 +47,7 @@ const lines = [
   "| upload | /healthz p50 / p99 / max ms | refused ack p50 / p99 / max ms | committed ack p50 / p99 / max ms | read (result) · same read on the event loop |",
   "|---|---|---|---|---|",
 ];
-lines.push(row("none (baseline)", (await probeWhile(server.url, live, Promise.resolve(), BASELINE_MS)).latencies, ""));
+lines.push(row("none (baseline)", (await probeWhile(server.url, live, () => Promise.resolve(), BASELINE_MS)).latencies, ""));
 const cases: [string, string, Uint8Array][] = [
   ["densest legal .musicxml", "dense.musicxml", strToU8(hugeLegalScore())],
   ["densest legal .mxl", "dense.mxl", hugeLegalMxl()],
@@ -56,7 +56,7 @@ const cases: [string, string, Uint8Array][] = [
 ];
 for (const [label, name, bytes] of cases) {
   // Probed for at least a second, so even a quick refusal gets a fair sample.
-  const { result, latencies, ms } = await probeWhile(server.url, live, upload(name, bytes.slice()), 1_000);
+  const { result, latencies, ms } = await probeWhile(server.url, live, () => upload(name, bytes.slice()), 1_000);
   const at = performance.now();
   try {
     parseScoreFile(bytes);

@@ -2,9 +2,9 @@ import type { Worker } from "node:worker_threads";
 import type { ScoreReading } from "~/music/musicxml";
 import { startThread } from "./threads";
 
-export type ScoreRequest = { type: "read"; id: number; bytes: Uint8Array; partId?: string } | { type: "close" };
-/** `json` is a ScoreReading as JSON text. */
-export type ScoreReply = { type: "ready" } | { type: "done"; id: number; json: string };
+export type ScoreRequest = { type: "read"; id: number; bytes: Uint8Array; partId?: string; kept?: boolean } | { type: "close" };
+/** `json` is a ScoreReading without `kept` as JSON text; `kept` comes beside it, handed over as bytes. */
+export type ScoreReply = { type: "ready" } | { type: "done"; id: number; json: string; kept?: Uint8Array };
 
 export interface ScoreReaderLimits {
   /** A file at the size limit parses in about a second here; ten times that means something is wrong. */
@@ -34,16 +34,16 @@ export class ScoreReader {
 
   constructor(private readonly limits: ScoreReaderLimits = SCORE_READER_LIMITS) {}
 
-  readonly read = (bytes: Uint8Array, partId?: string): Promise<ScoreReading> => {
+  readonly read = (bytes: Uint8Array, options: { partId?: string; kept?: boolean } = {}): Promise<ScoreReading> => {
     if (this.closed) return Promise.resolve(refused("The server is restarting; upload the score again in a minute."));
     if (this.waiting >= this.limits.waiting) return Promise.resolve(refused("Several scores are being read right now; upload this one again in a moment."));
     this.waiting++;
-    const job = this.queue.then(() => this.readNow(bytes, partId)).finally(() => this.waiting--);
+    const job = this.queue.then(() => this.readNow(bytes, options)).finally(() => this.waiting--);
     this.queue = job;
     return job;
   };
 
-  private async readNow(bytes: Uint8Array, partId: string | undefined): Promise<ScoreReading> {
+  private async readNow(bytes: Uint8Array, options: { partId?: string; kept?: boolean }): Promise<ScoreReading> {
     let worker: Worker;
     try {
       worker = await this.thread();
@@ -59,7 +59,7 @@ export class ScoreReader {
         worker.off("exit", onExit);
         resolve(result);
       };
-      const onMessage = (m: ScoreReply) => m.type === "done" && m.id === id && finish(JSON.parse(m.json) as ScoreReading);
+      const onMessage = (m: ScoreReply) => m.type === "done" && m.id === id && finish({ ...(JSON.parse(m.json) as ScoreReading), ...(m.kept ? { kept: m.kept } : {}) } as ScoreReading);
       // Node ends a thread that outgrows its heap limit.
       const onExit = () => finish(refused("Reading this score needed far more memory than a melody does, so it was stopped."));
       const timer = setTimeout(() => {
@@ -72,7 +72,7 @@ export class ScoreReader {
       // Handed over rather than copied (a copy of 3 MB costs the event loop tens of ms) when the bytes
       // own their whole buffer; a view into a shared pool must be copied, or the pool would go with it.
       const own = bytes.buffer instanceof ArrayBuffer && bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength;
-      worker.postMessage({ type: "read", id, bytes, partId } satisfies ScoreRequest, own ? [bytes.buffer as ArrayBuffer] : []);
+      worker.postMessage({ type: "read", id, bytes, ...options } satisfies ScoreRequest, own ? [bytes.buffer as ArrayBuffer] : []);
     });
   }
 

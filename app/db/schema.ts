@@ -242,7 +242,7 @@ export const tunes = sqliteTable(
     // Bars with their meter and key, the part read, the score's parts and what was left out
     // (StoredScore in app/tunes/builtin.ts); null for tunes uploaded before these were kept.
     score: text("score", { mode: "json" }),
-    // The uploaded file, so the score can be read again (another part, a better reader).
+    // The uploaded file, zlib-deflated, so the score can be read again (another part, a better reader).
     source: blob("source", { mode: "buffer" }),
     createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: createdAt(),

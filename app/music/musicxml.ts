@@ -81,10 +81,13 @@ const ZIP_SLICE = 4096;
 const megabytes = (n: number) => `${n / 1024 / 1024} MB`;
 export const FILE_TOO_BIG = `A score file may be at most ${megabytes(MAX_FILE_BYTES)}.`;
 
-/** What reading an upload gives: the melody, or the words that tell the teacher why not. */
-export type ScoreReading = { ok: true; score: Tune } | { ok: false; error: string };
-/** Reads an uploaded score away from the event loop (server/score-reader.ts). */
-export type ReadScore = (bytes: Uint8Array, partId?: string) => Promise<ScoreReading>;
+/**
+ * What reading an upload gives: the melody and the file deflated for keeping (zlib; a smaller write on the
+ * event loop's database connection), or the words that tell the teacher why not.
+ */
+export type ScoreReading = { ok: true; score: Tune; kept: Uint8Array } | { ok: false; error: string };
+/** Reads an uploaded score away from the event loop (server/score-reader.ts); `kept` bytes come from an earlier reading. */
+export type ReadScore = (bytes: Uint8Array, options?: { partId?: string; kept?: boolean }) => Promise<ScoreReading>;
 
 type XmlNode = Record<string, unknown>;
 

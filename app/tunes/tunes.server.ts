@@ -24,8 +24,6 @@ export function toStoredTune(score: ParsedScore, title: string): Omit<Tune, "id"
 
 /** Reads an upload (off the event loop) and stores it with its file, or gives the reader's refusal for the teacher. */
 export async function saveUploadedTune(db: Db, read: ReadScore, user: SessionUser, bytes: Uint8Array, typedTitle: string) {
-  // The reader takes the bytes over; the copy is what the database keeps.
-  const source = Buffer.from(bytes);
   const reading = await read(bytes);
   if (!reading.ok) return reading;
   const { score } = reading;
@@ -41,7 +39,7 @@ export async function saveUploadedTune(db: Db, read: ReadScore, user: SessionUse
     beatsPerBar: stored.beatsPerBar,
     notes: stored.notes,
     score: stored.score,
-    source,
+    source: Buffer.from(reading.kept),
     createdBy: user.id,
   });
   return { ok: true as const, id, title, notes: stored.notes.length, bars: score.bars };
@@ -51,7 +49,7 @@ export async function saveUploadedTune(db: Db, read: ReadScore, user: SessionUse
 export async function choosePart(db: Db, read: ReadScore, orgId: string, id: string, partId: string) {
   const [row] = await db.select({ source: tunes.source, title: tunes.title }).from(tunes).where(and(eq(tunes.id, id), eq(tunes.orgId, orgId)));
   if (!row?.source) return { ok: false as const, error: "This tune's file was not kept; upload it again to choose another part." };
-  const reading = await read(new Uint8Array(row.source), partId);
+  const reading = await read(new Uint8Array(row.source), { partId, kept: true });
   if (!reading.ok) return reading;
   const stored = toStoredTune(reading.score, row.title);
   await db

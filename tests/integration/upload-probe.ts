@@ -53,14 +53,14 @@ async function ackOf(pad: TestSocket, promptId: string, spot: { string: number; 
   await pad.next("answer-ack", (m) => m.promptId === promptId, before);
 }
 
-/** Probes until `work` settles (at least `minMs`), and returns what `work` gave with the latencies. */
-export async function probeWhile<T>(url: string, live: Awaited<ReturnType<typeof openLiveRoom>>, work: Promise<T>, minMs = 0) {
+/** Starts `work` once the room shows a prompt, probes until it settles (at least `minMs`), and returns what it gave with the latencies. */
+export async function probeWhile<T>(url: string, live: Awaited<ReturnType<typeof openLiveRoom>>, work: () => Promise<T>, minMs = 0) {
   const into: Latencies = { healthz: [], ack: [], committedAck: [] };
   const prompt = await live.next();
   let done = false;
   let workMs = 0;
   const started = performance.now();
-  const settled = work.finally(() => {
+  const settled = work().finally(() => {
     done = true;
     workMs = performance.now() - started;
   });

@@ -35,7 +35,7 @@ const summary = (l: Latencies) =>
 
 describe("uploads never stall a live room", () => {
   it("answers /healthz and a pad's acks within a few ms while the worst uploads are read", async () => {
-    const baseline = await probeWhile(server.url, live, Promise.resolve(), 1_500);
+    const baseline = await probeWhile(server.url, live, () => Promise.resolve(), 1_500);
     const during: Latencies = { healthz: [], ack: [], committedAck: [] };
     const cases: [string, Uint8Array, (r: { status: number; text: string }) => void][] = [
       ["densest-legal.musicxml", strToU8(hugeLegalScore()), (r) => expect(r.status).toBe(302)],
@@ -46,7 +46,7 @@ describe("uploads never stall a live room", () => {
     const figures: string[] = [`baseline: ${summary(baseline.latencies)}`];
     let longestRead = 0;
     for (const [name, bytes, check] of cases) {
-      const { result, latencies, ms } = await probeWhile(server.url, live, upload(name, bytes));
+      const { result, latencies, ms } = await probeWhile(server.url, live, () => upload(name, bytes));
       check(result);
       longestRead = Math.max(longestRead, ms);
       for (const k of ["healthz", "ack", "committedAck"] as const) during[k].push(...latencies[k]);
