@@ -6,9 +6,10 @@ import type { Env } from "~/env.server";
 import { createLogger } from "~/log.server";
 import type { Mailer } from "~/mail/mailer.server";
 import { createMailQueue } from "~/mail/queue.server";
+import type { ReadScore } from "~/music/musicxml";
 
 /** Everything a loader or action may reach, created once by the server and handed over per request. */
-export function createServices(env: Env, db: Db, mailer: Mailer) {
+export function createServices(env: Env, db: Db, mailer: Mailer, readScore: ReadScore) {
   const limits = createLimits();
   const log = createLogger(env.LOG_LEVEL);
   return {
@@ -18,6 +19,8 @@ export function createServices(env: Env, db: Db, mailer: Mailer) {
     log,
     /** Mail that must not delay (or time) the answer: see app/mail/queue.server.ts. */
     mailQueue: createMailQueue(mailer, log),
+    /** Parses an uploaded score off the event loop (server/score-reader.ts). */
+    readScore,
     sessions: createSessionStorage(db, {
       secret: env.SESSION_SECRET,
       // Follows the address people use, so a laptop serving the class over plain http on the school Wi-Fi can sign students in.

@@ -16,6 +16,7 @@ import { limitBodies } from "./body-limit";
 import { requestLog } from "./request-log";
 import { admitSocket, rememberSocket } from "./seat-limits";
 import { startMailCatcher } from "./mail-catcher";
+import { ScoreReader } from "./score-reader";
 import { Hub } from "./hub";
 import { attachSockets } from "./sockets";
 
@@ -71,7 +72,8 @@ export async function startServer(overrides: Record<string, string | undefined> 
   await migrateDb(db);
   const catcher = env.mailCapture ? await startMailCatcher(env.MAIL_DIR) : undefined;
   const mailer = createMailer(catcher?.url ?? env.SMTP_URL!, env.MAIL_FROM);
-  const services = createServices(env, db, mailer);
+  const scores = new ScoreReader();
+  const services = createServices(env, db, mailer, scores.read);
   // Assignment notices, reminders and weekly digests (app/practice/mail.server.ts).
   const practiceMail = startMailSchedule(db, mailer, env.PUBLIC_URL);
   const hub = new Hub(db, env.SESSION_SECRET, services.sessions, { url: env.DATABASE_URL, authToken: env.DATABASE_AUTH_TOKEN });
@@ -181,6 +183,7 @@ export async function startServer(overrides: Record<string, string | undefined> 
       await stopped;
       await closeVite();
       await practiceMail.stop();
+      await scores.close();
       services.mailer.close();
       await catcher?.close();
       await closeDb(db);

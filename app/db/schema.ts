@@ -1,6 +1,6 @@
 // The one place the database is described; drizzle-kit generates migrations from it.
 import { sql } from "drizzle-orm";
-import { index, integer, primaryKey, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
+import { blob, index, integer, primaryKey, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
 // Types only: drizzle-kit reads this file without the app's path aliases.
 import type { RoomRecord } from "~/game/room";
 import type { RoomConfig } from "~/game/roomConfig";
@@ -8,7 +8,7 @@ import type { SpotMap } from "~/music/positions";
 import type { RhythmScore } from "~/practice/rhythm";
 import type { ReadingSetSpec } from "~/reading/spec";
 import type { QuickSetup } from "~/rooms/setup";
-import type { TuneNote } from "~/tunes/builtin";
+import type { StoredScore, TuneNote } from "~/tunes/builtin";
 
 const createdAt = () =>
   integer("created_at", { mode: "timestamp_ms" })
@@ -278,8 +278,13 @@ export const tunes = sqliteTable(
     composer: text("composer").notNull().default(""),
     keyFifths: integer("key_fifths").notNull(),
     beatsPerBar: integer("beats_per_bar").notNull(),
-    // [{ pitch, beats, bar }]: the shape app/tunes/builtin.ts uses.
+    // [{ pitch, beats, bar, onset, tied }]: the shape app/tunes/builtin.ts uses.
     notes: text("notes", { mode: "json" }).$type<TuneNote[]>().notNull(),
+    // Bars with their meter and key, the part read, the score's parts and what was left out;
+    // null for tunes uploaded before these were kept.
+    score: text("score", { mode: "json" }).$type<StoredScore>(),
+    // The uploaded file, zlib-deflated, so the score can be read again (another part, a better reader).
+    source: blob("source", { mode: "buffer" }),
     createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: createdAt(),
   },

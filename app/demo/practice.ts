@@ -120,8 +120,8 @@ function playSession(s: Scripted, m: Material, start: number, history: PracticeA
 /** A rhythm pass by a scripted student whose taps scatter around the beat by up to `spreadMs`. */
 function rhythmPass(userId: string, tuneId: string, tempo: number, spreadMs: number, at: number, random: Rng, id: string) {
   const tune = builtinTune(tuneId)!;
-  const taps = timeline(tune.notes, tune.beatsPerBar, tempo).onsets.filter(() => random() > 0.04).map((t) => Math.round(t + (random() * 2 - 1) * spreadMs + 25));
-  const score = scoreTaps(tune.notes, tune.beatsPerBar, tempo, taps);
+  const taps = timeline(tune, tempo).onsets.filter(() => random() > 0.04).map((t) => Math.round(t + (random() * 2 - 1) * spreadMs + 25));
+  const score = scoreTaps(tune, tempo, taps);
   return { id, userId, tuneId, tempo, score: score.score, results: { ...score, position: 5 }, at: new Date(at) };
 }
 

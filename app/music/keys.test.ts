@@ -7,9 +7,10 @@ import {
   readStaffBar,
   resolveKey,
   spellInKey,
+  writeStaffBar,
   type StaffNote,
 } from "./keys";
-import { MusicError, parsePitch, pitchToString, type Letter } from "./pitch";
+import { LETTERS, MusicError, parsePitch, pitchToString, type Letter } from "./pitch";
 
 describe("KEYS", () => {
   // Circle of fifths key signatures and relative minors: from memory.
@@ -86,6 +87,37 @@ describe("keyAlter", () => {
 
   it("rejects a signature beyond 7", () => {
     expect(() => keyAlter(8, "C")).toThrow(/from 7 flats \(−7\) to 7 sharps \(7\)/);
+  });
+});
+
+describe("writeStaffBar", () => {
+  const signs = (fifths: number, written: string[], previous: string[] = []) =>
+    writeStaffBar(fifths, written.map(parsePitch), previous.map(parsePitch)).map((n) => n.accidental ?? "-");
+
+  it.each([
+    // Common practice, no source: a sign holds to the bar line for its letter and octave, and is cancelled by a natural.
+    [0, ["C#5", "C5"], [], ["sharp", "natural"]], // the case: C♯ then C♮ needs its natural
+    [0, ["C#5", "C#5", "D5"], [], ["sharp", "-", "-"]], // the sharp holds
+    [0, ["C#5", "C4"], [], ["sharp", "-"]], // another octave follows the key
+    [1, ["F#4", "F4", "F4", "F#4"], [], ["-", "natural", "-", "sharp"]], // in G: F♮ against the key, then back
+    [-1, ["B4", "Bb4"], [], ["natural", "flat"]], // in F
+    [0, ["C5", "D5"], ["C#5"], ["natural", "-"]], // courtesy natural after a bar with C♯5
+    [1, ["F#4"], ["F4"], ["sharp"]], // courtesy sharp after a bar with F♮4 in G
+    [0, ["C4"], ["C#5"], ["-"]], // no courtesy for another octave
+    [0, ["Bbb4", "F##4"], [], ["double-flat", "double-sharp"]],
+  ] as [number, string[], string[], string[]][])("key %i: %j after %j → %j", (fifths, written, previous, expected) => {
+    expect(signs(fifths, written, previous)).toEqual(expected);
+  });
+
+  it("reads back as written in every key (a round trip through readStaffBar)", () => {
+    let seed = 7;
+    const random = () => ((seed = (seed * 1103515245 + 12345) % 2 ** 31) / 2 ** 31);
+    for (let fifths = -7; fifths <= 7; fifths++) {
+      for (let trial = 0; trial < 40; trial++) {
+        const bar = Array.from({ length: 8 }, () => ({ letter: LETTERS[Math.floor(random() * 7)]!, alter: Math.floor(random() * 3) - 1, octave: 4 + Math.floor(random() * 2) }));
+        expect(readStaffBar(fifths, writeStaffBar(fifths, bar)).map(pitchToString)).toEqual(bar.map(pitchToString));
+      }
+    }
   });
 });
 

@@ -86,6 +86,30 @@ export function readStaffBar(fifths: number, notes: StaffNote[]): Pitch[] {
   });
 }
 
+const ALTER_ACCIDENTAL: Readonly<Record<number, PrintedAccidental>> = { [-2]: "double-flat", [-1]: "flat", 0: "natural", 1: "sharp", 2: "double-sharp" };
+
+/**
+ * The signs to print for one bar's pitches, the inverse of readStaffBar (same rule: an accidental holds for its
+ * letter and octave until the bar line; otherwise the key signature applies). A sign is printed exactly where a
+ * reader would otherwise take another pitch — so C♯ then C♮ in one bar gets its natural. Courtesy rule (common
+ * practice, no source): when `previousBar` altered a letter and octave away from the key, the first note of that
+ * letter and octave in this bar prints its sign too, though the bar line already cancelled the alteration.
+ */
+export function writeStaffBar(fifths: number, pitches: readonly Pitch[], previousBar: readonly Pitch[] = []): StaffNote[] {
+  checkFifths(fifths);
+  const courtesy = new Set(previousBar.filter((p) => p.alter !== keyAlter(fifths, p.letter)).map((p) => `${p.letter}${p.octave}`));
+  const carried = new Map<string, number>();
+  return pitches.map((p) => {
+    const place = `${p.letter}${p.octave}`;
+    const expected = carried.get(place) ?? keyAlter(fifths, p.letter);
+    const sign = p.alter !== expected || (courtesy.has(place) && !carried.has(place));
+    carried.set(place, p.alter);
+    const accidental = ALTER_ACCIDENTAL[p.alter];
+    if (!accidental) throw new MusicError(`${p.letter}${p.octave} with an alteration of ${p.alter} cannot be written with one sign.`);
+    return sign ? { letter: p.letter, octave: p.octave, accidental } : { letter: p.letter, octave: p.octave };
+  });
+}
+
 function checkMidi(midi: number): number {
   if (!Number.isInteger(midi) || midi < 0 || midi > 127) {
     throw new MusicError(`A MIDI note number must be a whole number from 0 to 127, not ${String(midi)}.`);

@@ -1,7 +1,8 @@
 import { describe, expect, it } from "vitest";
 import type { Spot } from "./fretboard";
 import { diagnose, MISTAKE_LABELS, type MistakeKind } from "./mistakes";
-import { MusicError } from "./pitch";
+import { keyAlter } from "./keys";
+import { MusicError, parsePitch } from "./pitch";
 import { buildPool, type PoolNote, type ReadingSpec } from "./pools";
 import { resolveTuning, TUNINGS } from "./tuning";
 
@@ -24,6 +25,73 @@ const note = (written: string, from: PoolNote[] = pool): PoolNote => {
 const tap = (written: string, tapped: Spot, homeOnly?: boolean) =>
   diagnose({ note: note(written), keyFifths: 1, tapped, tuning: TUNINGS.standard, reading: "guitar", homeOnly });
 
+describe("key-signature miss or half step off, in every key", () => {
+  // Expectations: common practice, no source — the key's sharps (F C G D A E B) or flats (B E A D G C F)
+  // in order, and which letters sit a half step apart within each key.
+  const ROWS: [number, string, number, MistakeKind, string][] = [
+    // fifths, written, semitones tapped (same string), kind, what "you played" names
+    [0, "B4", 1, "half-step-off", "C"],
+    [0, "E4", 1, "half-step-off", "F"],
+    [0, "F4", -1, "half-step-off", "E"],
+    [1, "F#4", -1, "key-signature-miss", "F"],
+    [1, "B4", 1, "half-step-off", "C"],
+    [1, "E4", 1, "half-step-off", "F"], // F is the key's own letter, but E was written
+    [1, "C5", 1, "half-step-off", "C♯"],
+    [2, "C#5", -1, "key-signature-miss", "C"],
+    [2, "B4", 1, "half-step-off", "C"],
+    [3, "G#4", -1, "key-signature-miss", "G"],
+    [3, "E4", 1, "half-step-off", "F"],
+    [4, "D#5", -1, "key-signature-miss", "D"],
+    [4, "B4", 1, "half-step-off", "C"],
+    [5, "A#4", -1, "key-signature-miss", "A"],
+    [5, "E5", 1, "half-step-off", "F"],
+    [6, "E#4", -1, "key-signature-miss", "E"],
+    [6, "B4", 1, "half-step-off", "C"],
+    [7, "B#4", -1, "key-signature-miss", "B"],
+    [7, "E#4", 1, "half-step-off", "F♯"],
+    [-1, "Bb4", 1, "key-signature-miss", "B"],
+    [-1, "E4", 1, "half-step-off", "F"],
+    [-1, "A4", 1, "half-step-off", "B♭"],
+    [-2, "Eb5", 1, "key-signature-miss", "E"],
+    [-2, "D5", 1, "half-step-off", "E♭"],
+    [-3, "Ab4", 1, "key-signature-miss", "A"],
+    [-3, "G4", 1, "half-step-off", "A♭"],
+    [-4, "Db5", 1, "key-signature-miss", "D"],
+    [-4, "C5", 1, "half-step-off", "D♭"],
+    [-5, "Gb4", 1, "key-signature-miss", "G"],
+    [-5, "F4", 1, "half-step-off", "G♭"],
+    [-6, "Cb5", 1, "key-signature-miss", "C"],
+    [-6, "F4", 1, "half-step-off", "G♭"],
+    // B♭ up a fret is C♭ in this key, but also B♭ without its flat: the written letter wins.
+    [-6, "Bb4", 1, "key-signature-miss", "B"],
+    [-7, "Fb4", 1, "key-signature-miss", "F"],
+    [-7, "Fb4", -1, "half-step-off", "E♭"],
+    [-7, "Eb4", 1, "key-signature-miss", "E"], // F♭ in this key, and E♭ without its flat
+
+  ];
+  const keyPool = (fifths: number) => buildPool({ ...spec, position: 5, keyFifths: fifths, accidentals: "key" });
+  const slip = (fifths: number, n: PoolNote, semitones: number) =>
+    diagnose({ note: n, keyFifths: fifths, tapped: { string: n.home.string, fret: n.home.fret + semitones }, tuning: TUNINGS.standard, reading: "guitar" });
+
+  it.each(ROWS)("key %i: %s played %i half step → %s (you played %s)", (fifths, written, semitones, kind, played) => {
+    const d = slip(fifths, note(written, keyPool(fifths)), semitones);
+    expect(d).toMatchObject({ kind, semitones });
+    expect(d.message).toContain(`you played ${played}${kind === "key-signature-miss" ? "." : ","}`);
+  });
+
+  it("every note of every key: a key-signature miss exactly when the key's alteration was left off", () => {
+    for (let fifths = -7; fifths <= 7; fifths++) {
+      for (const n of keyPool(fifths)) {
+        const alter = keyAlter(fifths, parsePitch(n.written).letter);
+        for (const semitones of [-1, 1]) {
+          if (n.home.fret + semitones < 0) continue;
+          expect([fifths, n.written, semitones, slip(fifths, n, semitones).kind]).toEqual([fifths, n.written, semitones, alter !== 0 && semitones === -alter ? "key-signature-miss" : "half-step-off"]);
+        }
+      }
+    }
+  });
+});
+
 describe("diagnose", () => {
   it.each([
     // written, tapped, kind, semitones, message
@@ -32,7 +100,10 @@ describe("diagnose", () => {
     ["F#5", { string: 4, fret: 4 }, "octave-off", -12, "Right letter, but an octave too low: you played F♯4, the note is F♯5. Home spot: string 1, fret 2."],
     ["F#5", { string: 1, fret: 14 }, "octave-off", 12, "Right letter, but an octave too high: you played F♯6, the note is F♯5. Home spot: string 1, fret 2."],
     ["F#5", { string: 1, fret: 1 }, "key-signature-miss", -1, "The key signature makes this F♯; you played F. Home spot: string 1, fret 2."],
-    ["C5", { string: 3, fret: 6 }, "key-signature-miss", 1, "The key signature leaves C alone; you played C♯. Home spot: string 3, fret 5."],
+    // The key does not touch C: C♯ is a half step off, not a misread signature.
+    ["C5", { string: 3, fret: 6 }, "half-step-off", 1, "A half step (one fret) too high: you played C♯, the note is C. Home spot: string 3, fret 5."],
+    // B→C is the neighbouring letter, a half step up in any key (the issue's own example).
+    ["B4", { string: 3, fret: 5 }, "half-step-off", 1, "A half step (one fret) too high: you played C, the note is B. Home spot: string 3, fret 4."],
     ["A#4", { string: 3, fret: 2 }, "accidental-miss", -1, "The sharp sign before this note makes it A♯; you played A. Home spot: string 3, fret 3."],
     ["F4", { string: 4, fret: 4 }, "accidental-miss", 1, "The natural sign before this note makes it F; you played F♯. Home spot: string 4, fret 3."],
     ["F#5", { string: 2, fret: 2 }, "string-over", -5, "Right fret, wrong string: F♯ is on string 1; you played string 2. Home spot: string 1, fret 2."],

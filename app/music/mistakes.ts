@@ -97,11 +97,11 @@ export function diagnose(input: {
   }
   const signature = keyAlter(fifths, written.letter);
   if (note.printedAccidental === null) {
+    // Only the written letter played without the key's sharp or flat is a key-signature miss. A slip
+    // to the neighbouring letter (B→C, E→F) or a sign the key does not give is a half step off:
+    // nothing shows the student misread the signature.
     if (signature !== 0 && semitones === -signature) {
       return result("key-signature-miss", `The key signature makes this ${wanted}; you played ${written.letter}. ${home}`);
-    }
-    if (signature === 0 && fifths !== 0 && semitones === Math.sign(fifths)) {
-      return result("key-signature-miss", `The key signature leaves ${written.letter} alone; you played ${played}. ${home}`);
     }
   } else {
     // Misreading the sign: playing the letter as the signature has it, as a natural, or with the opposite sign.

@@ -10,6 +10,7 @@ import { SoundControl } from "~/components/SoundControl";
 import { unlockSound } from "~/components/sound";
 import { Staff } from "~/components/Staff";
 import { Button, Card, Notice, SelectField } from "~/components/ui";
+import { drawnBar } from "~/tunes/bars";
 import type { Tune } from "~/tunes/builtin";
 import { startClickTrack, type ClickRun } from "./click";
 import { CLOSE_MS, DEFAULT_TEMPO, GRADE_WORDS, ON_TIME_MS, scoreTaps, timeline, type Grade, type RhythmScore } from "./rhythm";
@@ -32,7 +33,7 @@ export function RhythmPass({ tune, position }: { tune: Tune; position: number })
   const tapsRef = useRef<number[]>([]);
   // A stored pass joins "Your last passes" on the page.
   const { revalidate } = useRevalidator();
-  const plan = timeline(tune.notes, tune.beatsPerBar, tempo);
+  const plan = timeline(tune, tempo);
 
   // A frame clock while playing: for the beat light and the bar on the staff, not for scoring.
   useEffect(() => {
@@ -70,7 +71,7 @@ export function RhythmPass({ tune, position }: { tune: Tune; position: number })
     run.stop();
     const taps = tapsRef.current.map((t) => Math.round(t));
     const id = nanoid();
-    setPhase({ kind: "done", score: scoreTaps(tune.notes, tune.beatsPerBar, tempo, taps), saved: "saving", id, taps });
+    setPhase({ kind: "done", score: scoreTaps(tune, tempo, taps), saved: "saving", id, taps });
     void save(id, taps);
   }
 
@@ -89,10 +90,11 @@ export function RhythmPass({ tune, position }: { tune: Tune; position: number })
   };
 
   const beat = Math.floor(now / plan.beatMs);
-  const countIn = beat < tune.beatsPerBar;
+  const countIn = beat < plan.countIn;
   const current = [...plan.onsets.keys()].findLast((i) => plan.onsets[i]! <= now + plan.beatMs / 2) ?? 0;
   const bar = tune.notes[current]!.bar;
   const barNotes = tune.notes.filter((n) => n.bar === bar);
+  const drawn = drawnBar(tune, bar);
 
   return (
     <div className="space-y-4">
@@ -105,7 +107,7 @@ export function RhythmPass({ tune, position }: { tune: Tune; position: number })
             <span aria-hidden="true" className={`h-8 w-8 rounded-full ${now >= 0 && now % plan.beatMs < 120 ? "bg-brass" : "bg-ink/10"}`} />
           </div>
           <Card className="p-3">
-            <Staff notes={barNotes.map((n) => ({ written: n.pitch }))} keyFifths={tune.keyFifths} size="phone" />
+            <Staff notes={drawn.notes} keyFifths={drawn.keyFifths} size="phone" />
             <p className="text-center text-ink-soft">{barNotes.map((n) => `${n.pitch} (${n.beats} ${n.beats === 1 ? "beat" : "beats"})`).join(" · ")}</p>
           </Card>
           <button
@@ -129,7 +131,7 @@ export function RhythmPass({ tune, position }: { tune: Tune; position: number })
       ) : (
         <Card className="space-y-4">
           <p className="text-lg">
-            One bar of count-in ({tune.beatsPerBar} clicks), then tap the big button once for every note, in time with the click. You play the pitches
+            One bar of count-in ({plan.countIn} clicks), then tap the big button once for every note, in time with the click. You play the pitches
             on your guitar if you like; the taps are what is timed.
           </p>
           <div className="max-w-xs">

@@ -2,15 +2,21 @@
  * The rhythm pass, pure: when each note of a tune should be played at a tempo, and how a student's taps compare.
  * Times are milliseconds from the first click of the count-in.
  *
- * Timeline:
- * - A beat lasts 60 000 / bpm ms (a beat is the tune's `beats` unit, a quarter note in the built-in tunes).
- * - The count-in is one bar: `beatsPerBar` clicks at 0, 1, … beats; the tune's first full bar starts right after,
- *   at beatsPerBar beats. The click goes on, one per beat, until the last note has sounded.
- * - Within a bar, notes follow each other by their `beats`. Tunes keep no rests (uploads drop them), so each bar
- *   starts on its own bar line: a bar whose notes fill less than the bar leaves the rest at its end, and a bar
- *   number that jumps (a bar of rest) skips whole bars. A short *first* bar, when more bars follow, is a pickup:
- *   it ends on the bar line of the next bar, so its notes fall in the last beats of the count-in, as a band
- *   counts a pickup in.
+ * Timeline of an upload read fully (its stored bars carry their meters, its notes their onsets):
+ * - The beat follows the meter (common practice, no source): x/4 counts quarters, x/2 (cut time) halves,
+ *   6/8, 9/8 and 12/8 dotted quarters (three eighths to a beat), other x/8 eighths. The tempo is in the beat
+ *   of the first full bar: a beat lasts 60 000 / bpm ms. When the meter changes, the quarter note keeps its
+ *   length (no tempo marking is read), and the clicks follow the new bar's beat.
+ * - The count-in is one bar of the first full bar's meter; that bar starts right after it. A pickup's notes
+ *   fall in the count-in's last beats, as a band counts a pickup in.
+ * - Each note sounds at its written onset: rests anywhere are simply time between onsets, and tied notes
+ *   were merged when the score was read, so a tie is one tap.
+ * Built-in tunes and uploads stored before scores were read fully keep no onsets or meters:
+ * - Within a bar, notes follow each other by their `beats` (quarter notes). Each bar starts on its own bar line
+ *   (`beatsPerBar` quarters apart): a bar whose notes fill less than the bar leaves the rest at its end, and a
+ *   bar number that jumps (a bar of rest) skips whole bars. A short *first* bar, when more bars follow, is a
+ *   pickup: it ends on the bar line of the next bar.
+ * The click goes on, one per beat, until the last note has sounded, accented on each bar line.
  *
  * Tolerance (fixed in ms rather than in beats, because what it absorbs — ears and touch screens — does not change
  * with the tempo):
@@ -25,7 +31,11 @@
  * - Score = (on time × 1 + close × ½ − extra × ½) ÷ notes, as a whole percentage, never below 0: mashing the
  *   button cannot score well.
  */
-import type { TuneNote } from "~/tunes/builtin";
+import type { TuneBar } from "~/music/musicxml";
+import type { Tune, TuneNote } from "~/tunes/builtin";
+
+/** What the rhythm pass needs of a tune. */
+export type RhythmTune = Pick<Tune, "notes" | "beatsPerBar"> & { score?: { measures: readonly TuneBar[] } };
 
 export const ON_TIME_MS = 80;
 export const CLOSE_MS = 160;
@@ -50,17 +60,36 @@ export interface Timeline {
   clicks: { at: number; accent: boolean }[];
   /** When the last note ends. */
   endMs: number;
+  /** Clicks of the count-in: one bar of the first full bar's beats (2 in 6/8 and cut time). */
+  countIn: number;
 }
 
-/** Onsets in beats from the start of the first full bar (a pickup's are negative). */
-function onsetBeats(notes: readonly TuneNote[], beatsPerBar: number): { beats: number[]; end: number } {
+/** A meter's beat in quarter notes, and beats to its bar. */
+export function beatOf(beats: number, beatType: number): { beat: number; perBar: number } {
+  const unit = 4 / beatType;
+  // Compound meters (6/8, 9/8, 12/8) are felt in dotted beats of three.
+  if (beatType >= 8 && beats > 3 && beats % 3 === 0) return { beat: 3 * unit, perBar: beats / 3 };
+  return { beat: unit, perBar: beats };
+}
+
+/** Times in quarter notes from the first full bar line (a pickup's are negative). */
+interface Plan {
+  onsets: number[];
+  end: number;
+  /** From the first full bar on: where each starts, how long its meter is, its beat. */
+  bars: { start: number; length: number; beat: number }[];
+  countIn: { beat: number; perBar: number };
+}
+
+/** Built-in tunes and older uploads: onsets from the note lengths, bar after bar of `beatsPerBar` quarters. */
+function plainPlan(notes: readonly TuneNote[], beatsPerBar: number): Plan {
   const firstBar = notes[0]!.bar;
   const firstBarBeats = notes.filter((n) => n.bar === firstBar).reduce((sum, n) => sum + n.beats, 0);
   const pickup = firstBarBeats < beatsPerBar && notes.some((n) => n.bar !== firstBar);
   let barStart = pickup ? -firstBarBeats : 0;
   let bar = firstBar;
   let cursor = barStart;
-  const beats = notes.map((n) => {
+  const onsets = notes.map((n) => {
     if (n.bar !== bar) {
       // The next bar line is 0 after a pickup, else one bar on; skipped bar numbers are bars of rest. A bar
       // overfilled by a bad upload pushes the next one back rather than overlapping it.
@@ -73,7 +102,20 @@ function onsetBeats(notes: readonly TuneNote[], beatsPerBar: number): { beats: n
     cursor += n.beats;
     return at;
   });
-  return { beats, end: cursor };
+  const bars = Array.from({ length: Math.ceil(cursor / beatsPerBar) }, (_, i) => ({ start: i * beatsPerBar, length: beatsPerBar, beat: 1 }));
+  return { onsets, end: cursor, bars, countIn: { beat: 1, perBar: beatsPerBar } };
+}
+
+/** An upload read fully: each note's written onset, each bar's own meter. */
+function scorePlan(notes: readonly TuneNote[], measures: readonly TuneBar[]): Plan {
+  const first = measures.find((m) => !m.pickup) ?? measures[0]!;
+  const zero = first.start;
+  const onsets = notes.map((n) => n.onset! - zero);
+  const end = Math.max(...notes.map((n, i) => onsets[i]! + n.beats));
+  const bars = measures
+    .filter((m) => m.start >= zero)
+    .map((m) => ({ start: m.start - zero, length: (m.beats * 4) / m.beatType, beat: beatOf(m.beats, m.beatType).beat }));
+  return { onsets, end, bars, countIn: beatOf(first.beats, first.beatType) };
 }
 
 export function checkTune(notes: readonly TuneNote[], beatsPerBar: number) {
@@ -89,15 +131,22 @@ export function checkTune(notes: readonly TuneNote[], beatsPerBar: number) {
   });
 }
 
-export function timeline(notes: readonly TuneNote[], beatsPerBar: number, bpm: number): Timeline {
+export function timeline(tune: RhythmTune, bpm: number): Timeline {
+  const { notes, beatsPerBar } = tune;
   checkTune(notes, beatsPerBar);
   const beat = beatMs(bpm);
-  const { beats, end } = onsetBeats(notes, beatsPerBar);
+  const measures = tune.score?.measures;
+  const plan = measures?.length && notes.every((n) => Number.isFinite(n.onset)) ? scorePlan(notes, measures) : plainPlan(notes, beatsPerBar);
+  const quarterMs = beat / plan.countIn.beat;
   // Time 0 is the first count-in click, one bar before the first full bar.
-  const toMs = (b: number) => (beatsPerBar + b) * beat;
-  const clicks: Timeline["clicks"] = [];
-  for (let b = -beatsPerBar; b < end; b++) clicks.push({ at: toMs(b), accent: (b + beatsPerBar) % beatsPerBar === 0 });
-  return { beatMs: beat, onsets: beats.map(toMs), clicks, endMs: toMs(end) };
+  const countInMs = plan.countIn.perBar * beat;
+  const toMs = (q: number) => countInMs + q * quarterMs;
+  const clicks: Timeline["clicks"] = Array.from({ length: plan.countIn.perBar }, (_, k) => ({ at: k * beat, accent: k === 0 }));
+  plan.bars.forEach((bar, i) => {
+    const until = Math.min(bar.start + bar.length, plan.bars[i + 1]?.start ?? Infinity, plan.end);
+    for (let q = bar.start; q < until - 1e-9; q += bar.beat) clicks.push({ at: toMs(q), accent: q === bar.start });
+  });
+  return { beatMs: beat, onsets: plan.onsets.map(toMs), clicks, endMs: toMs(plan.end), countIn: plan.countIn.perBar };
 }
 
 export type Grade = "on-time" | "close" | "early" | "late" | "missed";
@@ -131,8 +180,9 @@ export function gradeOf(offset: number): Grade {
 }
 
 /** Scores taps (ms from the first count-in click, any order) against the tune's onsets at this tempo. */
-export function scoreTaps(notes: readonly TuneNote[], beatsPerBar: number, bpm: number, taps: readonly number[]): RhythmScore {
-  const { onsets } = timeline(notes, beatsPerBar, bpm);
+export function scoreTaps(tune: RhythmTune, bpm: number, taps: readonly number[]): RhythmScore {
+  const { notes } = tune;
+  const { onsets } = timeline(tune, bpm);
   if (!Array.isArray(taps) || taps.some((t) => !Number.isFinite(t))) throw new RhythmError("Every tap must be a time in milliseconds.");
   const sorted = [...taps].sort((a, b) => a - b);
   const used = new Set<number>();

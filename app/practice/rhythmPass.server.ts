@@ -81,9 +81,9 @@ export async function recordRhythmPass(db: Db, user: SessionUser, body: unknown,
   const state = await rhythmState(db, user, pass.tuneId, pass.position, now);
   if (!state) return { status: 404, body: { error: "No such tune." } };
   if (!state.unlocked) return { status: 409, body: { error: state.why } };
-  const { endMs } = timeline(state.tune.notes, state.tune.beatsPerBar, pass.tempo);
+  const { endMs } = timeline(state.tune, pass.tempo);
   if (pass.taps.some((t) => t > endMs + 10_000)) return { status: 400, body: { error: "Nothing was stored: a tap comes long after the tune has ended." } };
-  const score = scoreTaps(state.tune.notes, state.tune.beatsPerBar, pass.tempo, pass.taps);
+  const score = scoreTaps(state.tune, pass.tempo, pass.taps);
   const row = { id: pass.id, userId: user.id, tuneId: pass.tuneId, tempo: pass.tempo, score: score.score, results: { ...score, position: pass.position }, at: new Date(now) };
   await db.insert(rhythmAttempts).values(row);
   return { status: 200, body: { ...storedOf(row), duplicate: false } };

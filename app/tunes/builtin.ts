@@ -3,10 +3,26 @@
  * (written A3–A5 in standard tuning). Durations are in quarter-note beats, kept for the rhythm
  * pass; a Tune walk uses the pitches only.
  */
+import type { LeftOut, ScorePart, TuneBar } from "~/music/musicxml";
+
 export interface TuneNote {
   pitch: string;
   beats: number;
   bar: number;
+  /** Quarter notes from the start of the score (uploads read fully; built-in tunes follow bar after bar). */
+  onset?: number;
+  /** Made of tied notes: one note to play. */
+  tied?: boolean;
+}
+
+/** What an upload's score says beyond its notes (kept since uploads were read fully). */
+export interface StoredScore {
+  partId: string;
+  part: string;
+  parts: ScorePart[];
+  /** Bars in order: `bar` of a note is its index here plus 1. */
+  measures: TuneBar[];
+  leftOut: LeftOut;
 }
 
 export interface Tune {
@@ -16,6 +32,8 @@ export interface Tune {
   keyFifths: number;
   beatsPerBar: number;
   notes: TuneNote[];
+  /** Absent for built-in tunes and for uploads stored before scores were read fully. */
+  score?: StoredScore;
 }
 
 /** Builds a tune from bars written as "E4:1 G4:1 A4:2" (pitch:beats). */

@@ -269,7 +269,7 @@ describe("the practice page", () => {
 
 describe("POST /api/v1/practice/rhythm", () => {
   const tune = builtinTune("lantern-walk")!;
-  const onTheBeat = timeline(tune.notes, tune.beatsPerBar, 90).onsets.map(Math.round);
+  const onTheBeat = timeline(tune, 90).onsets.map(Math.round);
 
   it("scores the taps on the server, stores the pass once, and shows it", async () => {
     const pass = { id: "test-pass-0001", tuneId: "lantern-walk", tempo: 90, taps: onTheBeat, score: 3 };

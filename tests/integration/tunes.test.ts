@@ -1,5 +1,5 @@
 import { eq } from "drizzle-orm";
-import { zipSync, strToU8 } from "fflate";
+import { strToU8, unzlibSync, zipSync } from "fflate";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { tunes } from "~/db/schema";
 import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
@@ -52,18 +52,50 @@ describe("tune uploads", () => {
     const [tune] = await stored();
     expect(tune).toMatchObject({ title: "Quay Steps", keyFifths: 1 });
     expect(tune!.notes).toEqual([
-      { pitch: "G4", beats: 1, bar: 1 },
-      { pitch: "A4", beats: 1, bar: 1 },
-      { pitch: "B4", beats: 2, bar: 1 },
-      { pitch: "F#5", beats: 2, bar: 2 },
-      { pitch: "E3", beats: 1, bar: 2 },
+      { pitch: "G4", beats: 1, bar: 1, onset: 0, tied: false },
+      { pitch: "A4", beats: 1, bar: 1, onset: 1, tied: false },
+      { pitch: "B4", beats: 2, bar: 1, onset: 2, tied: false },
+      { pitch: "F#5", beats: 2, bar: 2, onset: 4, tied: false },
+      { pitch: "E3", beats: 1, bar: 2, onset: 6, tied: false },
     ]);
+    // The bars with their meter and key, and the file itself, are kept.
+    expect(tune!.score).toMatchObject({ partId: "P1", part: "Guitar", measures: [{ number: "1", beats: 4, beatType: 4, keyFifths: 1 }, { number: "2", start: 4, length: 4 }] });
+    expect(new TextDecoder().decode(unzlibSync(tune!.source!))).toBe(SCORE);
     // React separates interpolated text with <!-- --> in server HTML.
     const page = async (q: string) => (await (await teacher.get(`${res.headers.get("location")}?${q}`)).text()).replace(/<!-- -->/g, "");
     // The open low E (written E3) is in first position's reach, not in twelfth.
     expect(await page("position=1")).toContain("Every note of bars 1–2 has a home spot in position 1.");
     const low = await page("position=12");
     expect(low).toContain("1 note falls outside position 12: E3 (bar 2)");
+    expect(low).toContain("Read from the part <strong>Guitar</strong>. Nothing was left out.");
+  });
+
+  it("lets the teacher read another part of a stored score, and says what was left out", async () => {
+    const twoParts = SCORE.replace(
+      `<score-part id="P1"><part-name>Guitar</part-name></score-part>`,
+      `<score-part id="P1"><part-name>Guitar</part-name></score-part><score-part id="P2"><part-name>Flute</part-name></score-part>`,
+    ).replace(
+      "</part>\n</score-partwise>",
+      `</part><part id="P2"><measure number="1"><attributes><divisions>1</divisions></attributes><note><grace/><pitch><step>B</step><octave>5</octave></pitch></note><note><pitch><step>A</step><octave>5</octave></pitch><duration>4</duration></note></measure></part>\n</score-partwise>`,
+    );
+    const res = await upload(teacher, "duet.musicxml", twoParts, "Duet");
+    const path = res.headers.get("location")!;
+    const page = async () => (await (await teacher.get(path)).text()).replace(/<!-- -->/g, "");
+    expect(await page()).toContain("Left out of the melody line: the other part: Flute.");
+    const chosen = await teacher.request(path, { method: "POST", body: new URLSearchParams({ intent: "part", partId: "P2" }) });
+    expect(chosen.status).toBe(302);
+    const [tune] = (await stored()).filter((t) => t.title === "Duet");
+    expect(tune!.notes).toEqual([{ pitch: "A5", beats: 4, bar: 1, onset: 0, tied: false }]);
+    expect(await page()).toContain("Left out of the melody line: 1 grace note; the other part: Guitar.");
+    const wrong = await teacher.request(path, { method: "POST", body: new URLSearchParams({ intent: "part", partId: "P7" }) });
+    expect((await wrong.text()).replace(/&quot;/g, '"')).toContain('This score has no part "P7". The tune was left as it was.');
+  });
+
+  it("asks for a new upload of a tune stored before scores were kept", async () => {
+    const id = "old-upload";
+    await server.services.db.insert(tunes).values({ id, orgId: DEMO_SCHOOL.id, title: "Old upload", keyFifths: 0, beatsPerBar: 4, notes: [{ pitch: "E4", beats: 1, bar: 1 }] });
+    const text = (await (await teacher.get(`/teach/tunes/${id}`)).text()).replace(/&#x27;/g, "'");
+    expect(text).toContain("This tune was uploaded before Fretcall kept a score's rests, meters and key changes");
   });
 
   it("reads a compressed .mxl through META-INF/container.xml", async () => {
@@ -79,8 +111,12 @@ describe("tune uploads", () => {
     ["notes.txt", "G4 A4 B4", "is not a MusicXML file"],
     ["broken.musicxml", "<score-partwise><part", "Nothing was saved."],
     ["letter.xml", `<?xml version="1.0"?><letter>hello</letter>`, "is not a MusicXML score"],
-    ["silent.musicxml", SCORE.replace(/<note><pitch>.*?<\/note>/gs, ""), "no notes"],
+    ["silent.musicxml", SCORE.replace(/<note><pitch>.*?<\/note>/gs, ""), "No part of this score has notes to read"],
     ["fake.mxl", zipSync({ "score.musicxml": strToU8(SCORE) }), "container.xml"],
+    ["pictures.mxl", zipSync({ "META-INF/container.xml": strToU8(`<container><rootfiles><rootfile full-path="score.pdf"/></rootfiles></container>`), "score.pdf": new Uint8Array(8) }), "but does not contain it"],
+    ["line.musicxml", SCORE.replace("<duration>2</duration></note>", "<duration>2</note>"), "not well-formed XML (line 10)"],
+    ["entities.musicxml", SCORE.replace("<score-partwise", `<!DOCTYPE score-partwise [<!ENTITY x "&#60;note/&#62;">]><score-partwise`), "declares its own XML entities"],
+    ["deep.musicxml", SCORE.replace("<work>", `${"<direction>".repeat(40)}${"</direction>".repeat(40)}<work>`), "more than 32 levels deep"],
   ])("refuses %s with a clear message and stores nothing", async (name, bytes, message) => {
     const before = (await stored()).length;
     const res = await upload(teacher, name, bytes);
@@ -92,7 +128,15 @@ describe("tune uploads", () => {
   it("refuses an archive that expands too far", async () => {
     const bomb = zipSync({ "META-INF/container.xml": strToU8("x"), "big.xml": new Uint8Array(21 * 1024 * 1024) }, { level: 9 });
     const res = await upload(teacher, "bomb.mxl", bomb);
-    expect(await res.text()).toMatch(/unpacks to more than/);
+    expect(await res.text()).toMatch(/unpacks to more than 3 MB/);
+  });
+
+  it("answers a 20 MB upload with the limit on the page, not a broken connection", async () => {
+    const before = (await stored()).length;
+    const res = await upload(teacher, "huge.musicxml", new Uint8Array(20 * 1024 * 1024).fill(0x20));
+    expect(res.status).toBe(200);
+    expect(await res.text()).toContain("A score file may be at most 3 MB. Nothing was saved.");
+    expect((await stored()).length).toBe(before);
   });
 
   it("is for teachers: students get 403, strangers are sent to sign in", async () => {

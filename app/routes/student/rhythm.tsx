@@ -11,6 +11,13 @@ import { RhythmPass } from "~/practice/RhythmPass";
 import { rhythmPasses, rhythmState } from "~/practice/rhythmPass.server";
 import { rememberTimeZone } from "~/practice/tz";
 import type { Route } from "./+types/rhythm";
+import type { Tune } from "~/tunes/builtin";
+
+/** The first full bar's time signature when the score gave one; the tempo counts its beat. */
+function meterWords(tune: Tune) {
+  const first = tune.score?.measures.find((m) => !m.pickup);
+  return first ? `${first.beats}/${first.beatType} time` : `${tune.beatsPerBar} beats in a bar`;
+}
 
 export const meta: Route.MetaFunction = ({ data: d }) => [{ title: `${d && "state" in d ? `Rhythm pass: ${d.state.tune.title}` : "Rhythm pass"} · Fretcall` }];
 
@@ -31,7 +38,7 @@ export default function Rhythm({ loaderData }: Route.ComponentProps) {
   const { tune } = state;
   return (
     <div className="space-y-4">
-      <PageTitle lead={`${tune.composer} · ${tune.beatsPerBar} beats in a bar · position ${state.position}`}>Rhythm pass: {tune.title}</PageTitle>
+      <PageTitle lead={`${tune.composer} · ${meterWords(tune)} · position ${state.position}`}>Rhythm pass: {tune.title}</PageTitle>
       {state.unlocked ? (
         <>
           <NeedsJavaScript what="A rhythm pass" />

@@ -7,7 +7,9 @@ import { services } from "~/context";
 import { defaultSpotMap, homeSpotFor } from "~/music/positions";
 import { displayPitch, parsePitch, pitchMidi } from "~/music/pitch";
 import { resolveTuning } from "~/music/tuning";
-import { barRange, deleteTune, findTune } from "~/tunes/tunes.server";
+import { drawnBar } from "~/tunes/bars";
+import type { StoredScore } from "~/tunes/builtin";
+import { barRange, choosePart, deleteTune, findTune } from "~/tunes/tunes.server";
 import type { Route } from "./+types/tune";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.tune.title ?? "Tune"} · Fretcall` }];
@@ -28,16 +30,44 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const notes = barRange(tune, from, to);
   // A Tune walk in this position can only ask for notes the position reaches.
   const outside = notes.filter((n) => !homeSpotFor(map, pitchMidi(parsePitch(n.pitch)))).map((n) => `${displayPitch(parsePitch(n.pitch))} (bar ${n.bar})`);
-  const bars = Array.from({ length: to - from + 1 }, (_, i) => from + i).map((bar) => ({ bar, notes: notes.filter((n) => n.bar === bar).map((n) => n.pitch) }));
+  const bars = Array.from({ length: to - from + 1 }, (_, i) => drawnBar(tune, from + i));
   const canDelete = (await tuneAccess(db, user, tune.id, "edit")) === "ok";
-  return { tune: { id: tune.id, title: tune.title, builtin: tune.builtin, keyFifths: tune.keyFifths, lastBar }, canDelete, position, from, to, bars, outside };
+  return {
+    tune: { id: tune.id, title: tune.title, builtin: tune.builtin, keyFifths: tune.keyFifths, lastBar },
+    canDelete,
+    score: tune.score ? { part: tune.score.part, partId: tune.score.partId, parts: tune.score.parts, leftOut: leftOutWords(tune.score) } : null,
+    position,
+    from,
+    to,
+    bars,
+    outside,
+  };
+}
+
+const counted = (n: number, one: string, many: string) => (n === 0 ? [] : [`${n} ${n === 1 ? one : many}`]);
+
+/** What the melody line leaves out of the score, in plain words (empty when nothing). */
+function leftOutWords({ leftOut: l }: StoredScore): string[] {
+  return [
+    ...counted(l.graceNotes, "grace note", "grace notes"),
+    ...counted(l.cueNotes, "cue note (its time is kept as a rest)", "cue notes (their time is kept as rests)"),
+    ...counted(l.chordNotes, "lower note of a chord (the top note is kept)", "lower notes of chords (the top notes are kept)"),
+    ...counted(l.lowerVoiceNotes, "note of a lower voice", "notes of lower voices"),
+    ...(l.otherParts.length ? [`the other ${l.otherParts.length === 1 ? "part" : "parts"}: ${l.otherParts.join(", ")}`] : []),
+  ];
 }
 
 export async function action({ request, params, context }: Route.ActionArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
-  const { db } = services(context);
+  const form = await request.formData();
+  const { db, readScore } = services(context);
   await requireTune(db, user, params.tuneId, "edit");
-  if ((await request.formData()).get("intent") !== "delete") throw data({ error: "Unknown action." }, { status: 400 });
+  if (form.get("intent") === "part") {
+    const chosen = await choosePart(db, readScore, user.orgId, params.tuneId, String(form.get("partId") ?? ""));
+    if (!chosen.ok) return { error: `${chosen.error} The tune was left as it was.` };
+    return redirect(`/teach/tunes/${params.tuneId}`);
+  }
+  if (form.get("intent") !== "delete") throw data({ error: "Unknown action." }, { status: 400 });
   if (!(await deleteTune(db, user.orgId, params.tuneId))) return { error: "This tune was already deleted." };
   return redirect("/teach/tunes");
 }
@@ -48,6 +78,34 @@ export default function TunePage({ loaderData: d, actionData }: Route.ComponentP
     <div className="space-y-6">
       <PageTitle lead={d.tune.builtin ? "A built-in Fretcall melody." : "Uploaded by your school."}>{d.tune.title}</PageTitle>
       {actionData?.error ? <Notice tone="error">{actionData.error}</Notice> : null}
+      {!d.tune.builtin && !d.score ? (
+        <Notice tone="error">
+          This tune was uploaded before Fretcall kept a score's rests, meters and key changes, and its file was not kept: its rhythm pass counts every bar as four beats. Upload the file
+          again to read it fully.
+        </Notice>
+      ) : null}
+      {d.score ? (
+        <Card className="space-y-3">
+          <p>
+            Read from the part <strong>{d.score.part}</strong>.{" "}
+            {d.score.leftOut.length > 0 ? `Left out of the melody line: ${d.score.leftOut.join("; ")}.` : "Nothing was left out."}
+          </p>
+          {d.score.parts.length > 1 ? (
+            <Form method="post" className="flex flex-wrap items-end gap-3">
+              <input type="hidden" name="intent" value="part" />
+              <SelectField
+                label="Part to read"
+                name="partId"
+                defaultValue={d.score.partId}
+                options={d.score.parts.map((p) => ({ value: p.id, label: `${p.name} (${p.notes} ${p.notes === 1 ? "note" : "notes"})` }))}
+              />
+              <Button type="submit" tone="ghost">
+                Read this part
+              </Button>
+            </Form>
+          ) : null}
+        </Card>
+      ) : null}
       <Card>
         <Form method="get" className="grid items-end gap-4 sm:grid-cols-4">
           <SelectField label="Position" name="position" defaultValue={String(d.position)} options={Array.from({ length: 12 }, (_, i) => ({ value: String(i + 1), label: `Position ${i + 1}` }))} />
@@ -69,7 +127,7 @@ export default function TunePage({ loaderData: d, actionData }: Route.ComponentP
         {d.bars.map((b) => (
           <Card key={b.bar} className="p-2">
             <p className="px-2 text-sm text-ink-soft">Bar {b.bar}</p>
-            {b.notes.length > 0 ? <Staff notes={b.notes.map((written) => ({ written }))} keyFifths={d.tune.keyFifths} size="card" /> : <p className="p-4 text-ink-soft">rests only</p>}
+            {b.notes.length > 0 ? <Staff notes={b.notes} keyFifths={b.keyFifths} size="card" /> : <p className="p-4 text-ink-soft">rests only</p>}
           </Card>
         ))}
       </div>

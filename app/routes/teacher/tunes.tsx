@@ -2,8 +2,7 @@ import { Form, Link, redirect, useNavigation } from "react-router";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { Button, Card, Field, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
-import { MAX_FILE_BYTES } from "~/music/musicxml";
-import { MusicError } from "~/music/pitch";
+import { FILE_TOO_BIG, MAX_FILE_BYTES } from "~/music/musicxml";
 import { saveUploadedTune, tunesFor } from "~/tunes/tunes.server";
 import type { Route } from "./+types/tunes";
 
@@ -19,27 +18,25 @@ export async function loader({ request, context }: Route.LoaderArgs) {
 
 export async function action({ request, context }: Route.ActionArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
-  // Refuse an oversized upload before reading it into memory.
+  // Refuse an oversized upload before reading it into memory (Node drains the rest, so the browser gets this page).
   const declared = Number(request.headers.get("Content-Length") ?? 0);
-  if (declared > MAX_FILE_BYTES + 64 * 1024) return { error: `A score file may be at most ${MAX_FILE_BYTES / 1024 / 1024} MB.` };
+  if (declared > MAX_FILE_BYTES + 64 * 1024) return { error: `${FILE_TOO_BIG} Nothing was saved.` };
   const form = await request.formData();
   const file = form.get("score");
   if (!(file instanceof File) || file.size === 0) return { error: "Choose a MusicXML file (.musicxml, .xml or .mxl)." };
   if (!/\.(musicxml|xml|mxl)$/i.test(file.name)) return { error: `“${file.name}” is not a MusicXML file: use .musicxml, .xml or .mxl.` };
-  try {
-    const saved = await saveUploadedTune(services(context).db, user, new Uint8Array(await file.arrayBuffer()), String(form.get("title") ?? ""));
-    return redirect(`/teach/tunes/${saved.id}`);
-  } catch (error) {
-    if (error instanceof MusicError) return { error: `${file.name}: ${error.message} Nothing was saved.` };
-    throw error;
-  }
+  if (file.size > MAX_FILE_BYTES) return { error: `${file.name}: ${FILE_TOO_BIG} Nothing was saved.` };
+  const { db, readScore } = services(context);
+  const saved = await saveUploadedTune(db, readScore, user, new Uint8Array(await file.arrayBuffer()), String(form.get("title") ?? ""));
+  if (!saved.ok) return { error: `${file.name}: ${saved.error} Nothing was saved.` };
+  return redirect(`/teach/tunes/${saved.id}`);
 }
 
 export default function Tunes({ loaderData, actionData }: Route.ComponentProps) {
   const busy = useNavigation().state !== "idle";
   return (
     <div className="mx-auto max-w-3xl space-y-6">
-      <PageTitle lead="Melodies for Tune walks and rhythm passes. Upload a score as MusicXML — Fretcall reads the top line of its first part.">Tunes</PageTitle>
+      <PageTitle lead="Melodies for Tune walks and rhythm passes. Upload a score as MusicXML — Fretcall reads the top line of the first part with notes, and says what it left out; another part can be chosen on the tune's page.">Tunes</PageTitle>
       <Card>
         <Form method="post" encType="multipart/form-data" className="space-y-4" noValidate>
           {actionData?.error ? <Notice tone="error">{actionData.error}</Notice> : null}

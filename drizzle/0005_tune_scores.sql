@@ -1,0 +1,2 @@
+ALTER TABLE `tunes` ADD `score` text;--> statement-breakpoint
+ALTER TABLE `tunes` ADD `source` blob;
