@@ -39,7 +39,7 @@ function refuse(req: Request, res: Response, message: string) {
   res.type("html").send(
     `<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">` +
       `<title>Too large · Fretcall</title></head><body style="font-family: sans-serif; max-width: 36rem; margin: 4rem auto; padding: 0 1rem">` +
-      `<h1>That was too large</h1><p>${escapeHtml(message)}</p><p><a href="javascript:history.back()">Go back</a> and try again with less, or <a href="/">start again</a>.</p></body></html>`,
+      `<h1>That was too large</h1><p>${escapeHtml(message)}</p><p><a href="${escapeHtml(req.originalUrl)}">Go back to the page</a> and try again with less, or <a href="/">start again</a>.</p></body></html>`,
   );
 }
 

@@ -56,7 +56,7 @@ describe("migrating rounds stored before verdicts and the setup column", () => {
 
     const old = await openDb(freshUrl("old.db"));
     // SQL only: the start-up data steps are written for today's tables.
-    await migrate(old, { migrationsFolder: migrationsBefore("0003_stored_verdicts_and_setup") });
+    await migrate(old, { migrationsFolder: migrationsBefore("0004_stored_verdicts_and_setup") });
     const setup = { ...QUICK_DEFAULTS, classId: undefined };
     const before = await copyOldRound(demo, old, round!.id, { setup, sourceName: "Week 2" });
     await migrateDb(old);

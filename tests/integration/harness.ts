@@ -86,3 +86,24 @@ export async function signedIn(base: string, email: string, password = DEMO_PASS
   if (res.status !== 302) throw new Error(`signing in as ${email} answered ${res.status}`);
   return client;
 }
+
+/**
+ * A new studio through the pages, as a person does it: sign up, open the e-mailed link, confirm.
+ * Returns the new admin's client, signed in; `headers` go with every request (e.g. a User-Agent).
+ */
+export async function startStudio(
+  server: TestServer,
+  fields: { studioName: string; displayName: string; email: string; password: string },
+  headers: Record<string, string> = {},
+) {
+  const client = new Client(server.url);
+  const post = (body: Record<string, string>) => client.request("/signup", { method: "POST", headers, body: new URLSearchParams(body) });
+  const asked = await post({ ...fields, confirm: fields.password });
+  if (asked.status !== 200) throw new Error(`sign-up answered ${asked.status}`);
+  const mail = (await server.mail()).findLast((m) => m.to.includes(fields.email) && /studio=/.test(m.text));
+  const token = mail && new URL(mail.text.match(/https?:\/\/\S+\/signup\?studio=\S+/)![0]).searchParams.get("studio");
+  if (!token) throw new Error(`no sign-up link reached ${fields.email}`);
+  const done = await post({ intent: "confirm", token });
+  if (done.status !== 302) throw new Error(`confirming the studio answered ${done.status}`);
+  return client;
+}

@@ -8,7 +8,7 @@ import routes from "~/routes";
 import * as schema from "~/db/schema";
 import { PROTOCOL_VERSION } from "~/game/protocol";
 import type { RoomConfig } from "~/game/roomConfig";
-import { Client, startTestServer, type TestServer } from "./harness";
+import { Client, startStudio, startTestServer, type TestServer } from "./harness";
 import { openStage, ScriptedSocket, spotOf, untilShown } from "../../server/scripted-rooms";
 
 const PASSWORD = "quarry-lantern-42";
@@ -105,10 +105,7 @@ async function accept(to: string) {
 }
 
 async function signUp(studio: string, person: { name: string; email: string }) {
-  const client = new Client(server.url);
-  const res = await client.post("/signup", { studioName: studio, displayName: person.name, email: person.email, password: PASSWORD, confirm: PASSWORD });
-  expect(res.status).toBe(302);
-  return client;
+  return startStudio(server, { studioName: studio, displayName: person.name, email: person.email, password: PASSWORD });
 }
 
 async function classId(orgId: string, name: string) {
