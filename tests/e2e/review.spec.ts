@@ -1,6 +1,6 @@
 import { expect, shot, signIn, test } from "./fixtures";
 
-test("a teacher reads the class review, picks one session and opens a student's progress", async ({ page }) => {
+test("a teacher reads the class review, picks one round and opens a student's progress", async ({ page }) => {
   await signIn(page, "rafe@larkspur.example");
   await expect(page).toHaveURL(/\/teach$/);
   await page.goto("/teach/classes/demo-class-thu/review");
@@ -15,9 +15,9 @@ test("a teacher reads the class review, picks one session and opens a student's 
   await expect(page.getByRole("table", { name: /Every student/ })).toBeVisible();
   await shot(page, "class-review");
 
-  await page.getByLabel("Session").selectOption({ index: 1 });
-  await expect(page).toHaveURL(/session=demo-round-thu-5/);
-  await expect(page.getByRole("link", { name: /Export CSV \(this session\)/ })).toBeVisible();
+  await page.getByLabel("Round").selectOption({ index: 1 });
+  await expect(page).toHaveURL(/round=demo-round-thu-5/);
+  await expect(page.getByRole("link", { name: /Export CSV \(this round\)/ })).toBeVisible();
 
   const download = page.waitForEvent("download");
   await page.getByRole("link", { name: /Export CSV/ }).click();
@@ -25,7 +25,7 @@ test("a teacher reads the class review, picks one session and opens a student's 
 
   await page.getByRole("table", { name: /Every student/ }).getByRole("link").first().click();
   await expect(page.getByRole("heading", { name: "Personal bests" })).toBeVisible();
-  await expect(page.getByText("Accuracy per session")).toBeVisible();
+  await expect(page.getByText("Accuracy per round")).toBeVisible();
   await expect(page.locator(".recharts-line").first()).toBeVisible();
   await shot(page, "student-progress");
 });

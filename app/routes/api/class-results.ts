@@ -1,7 +1,7 @@
 // GET /api/v1/classes/:classId/results — every round of the class with each player's summary.
 import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
-import { apiSessions } from "~/review/api";
+import { apiRounds } from "~/review/api";
 import { requireReviewClass, reviewInput } from "~/review/review.server";
 import type { Route } from "./+types/class-results";
 
@@ -10,5 +10,5 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const { db } = services(context);
   const cls = await requireReviewClass(db, user, params.classId);
   const input = await reviewInput(db, { classId: cls.id });
-  return Response.json({ class: { id: cls.id, name: cls.name }, sessions: apiSessions(input) }, { headers: { "Cache-Control": "private, no-store" } });
+  return Response.json({ class: { id: cls.id, name: cls.name }, rounds: apiRounds(input) }, { headers: { "Cache-Control": "private, no-store" } });
 }

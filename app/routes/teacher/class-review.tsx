@@ -1,4 +1,4 @@
-// The class review: across every session of a class, or one session picked from the list.
+// The class review: across every round of a class, or one round picked from the list.
 import { useEffect } from "react";
 import { data, Form, Link, useRevalidator, useSubmit } from "react-router";
 import { useEventSource } from "remix-utils/sse/react";
@@ -20,20 +20,20 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const { db } = services(context);
   const cls = await requireReviewClass(db, user, params.classId);
   const input = await reviewInput(db, { classId: cls.id });
-  const sessionId = new URL(request.url).searchParams.get("session") || null;
-  const chosen = sessionId === null ? undefined : input.sessions.find((s) => s.id === sessionId);
-  if (sessionId !== null && !chosen) throw data({ error: "That session is not one of this class's rounds." }, { status: 404 });
-  const latest = [...input.sessions].sort((a, b) => b.startedAt - a.startedAt)[0];
+  const roundId = new URL(request.url).searchParams.get("round") || null;
+  const chosen = roundId === null ? undefined : input.rounds.find((s) => s.id === roundId);
+  if (roundId !== null && !chosen) throw data({ error: "That round is not one of this class's." }, { status: 404 });
+  const latest = [...input.rounds].sort((a, b) => b.startedAt - a.startedAt)[0];
   const neck = chosen ?? latest;
-  const live = (chosen ? [chosen] : input.sessions).find((s) => s.live)?.id ?? null;
-  return { cls, review: classReview(input, sessionId), neck: neck && { tuning: neck.tuning, frets: neck.frets, position: neck.position }, live };
+  const live = (chosen ? [chosen] : input.rounds).find((s) => s.live)?.id ?? null;
+  return { cls, review: classReview(input, roundId), neck: neck && { tuning: neck.tuning, frets: neck.frets, position: neck.position }, live };
 }
 
 type Row = PlayerFigures;
 
 export default function ClassReview({ loaderData: { cls, review, neck, live } }: Route.ComponentProps) {
   const submit = useSubmit();
-  const one = review.sessionId ? review.sessions.find((s) => s.id === review.sessionId) : undefined;
+  const one = review.roundId ? review.rounds.find((s) => s.id === review.roundId) : undefined;
   const columns: Column<Row>[] = [
     {
       key: "nickname",
@@ -45,11 +45,11 @@ export default function ClassReview({ loaderData: { cls, review, neck, live } }:
     { key: "accuracy", header: "Accuracy", align: "right", cell: (p) => `${pct(p.accuracy)} (${p.correct}/${p.answered})` },
     { key: "medianMs", header: "Median time", align: "right", cell: (p) => secs(p.medianMs) },
   ];
-  const exportHref = `/teach/classes/${cls.id}/export.csv${one ? `?session=${one.id}` : ""}`;
+  const exportHref = `/teach/classes/${cls.id}/export.csv${one ? `?round=${one.id}` : ""}`;
 
   return (
     <div className="space-y-6">
-      <PageTitle lead={one ? `${one.title} · ${day(one.startedAt)}` : `Across all ${review.sessions.length} sessions. Students who played signed in are followed from session to session.`}>
+      <PageTitle lead={one ? `${one.title} · ${day(one.startedAt)}` : `Across all ${review.rounds.length} rounds. Students who played signed in are followed from round to round.`}>
         Class review · {cls.name}
       </PageTitle>
       {live ? <LiveUpdates classId={cls.id} roomId={live} /> : null}
@@ -57,10 +57,10 @@ export default function ClassReview({ loaderData: { cls, review, neck, live } }:
       <div className="flex flex-wrap items-end gap-3">
         <Form method="get" className="flex flex-wrap items-end gap-2" onChange={(e) => submit(e.currentTarget, { preventScrollReset: true })}>
           <label className="font-medium">
-            Session
-            <select name="session" defaultValue={review.sessionId ?? ""} className="mt-1 block min-h-11 rounded-xl border-2 border-ink/20 bg-white px-3 py-2 text-lg">
-              <option value="">All sessions</option>
-              {review.sessions.map((s) => (
+            Round
+            <select name="round" defaultValue={review.roundId ?? ""} className="mt-1 block min-h-11 rounded-xl border-2 border-ink/20 bg-white px-3 py-2 text-lg">
+              <option value="">All rounds</option>
+              {review.rounds.map((s) => (
                 <option key={s.id} value={s.id}>
                   {day(s.startedAt)} · {s.title}
                   {s.live ? " · live" : ""}
@@ -73,7 +73,7 @@ export default function ClassReview({ loaderData: { cls, review, neck, live } }:
           </noscript>
         </Form>
         <a href={exportHref} className={buttonClass("ghost")} download>
-          <span aria-hidden="true">⬇</span> Export CSV{one ? " (this session)" : " (all sessions)"}
+          <span aria-hidden="true">⬇</span> Export CSV{one ? " (this round)" : " (all rounds)"}
         </a>
         {one ? (
           <Link to={`/results/${one.id}`} className="underline">
@@ -82,7 +82,7 @@ export default function ClassReview({ loaderData: { cls, review, neck, live } }:
         ) : null}
       </div>
 
-      {review.sessions.length === 0 ? (
+      {review.rounds.length === 0 ? (
         <Notice tone="info">No rounds yet for this class. Host a round for it and its results will be reviewed here.</Notice>
       ) : (
         <>
@@ -95,9 +95,9 @@ export default function ClassReview({ loaderData: { cls, review, neck, live } }:
               <Board title="Fastest median time" rows={review.leaderboards.speed} value={(p) => secs(p.medianMs)} note={`Right-pitch answers; at least ${MIN_RANKED}.`} />
             </div>
             <Card>
-              <h3 className="mb-2 font-display text-xl font-semibold">Most improved since the previous session</h3>
+              <h3 className="mb-2 font-display text-xl font-semibold">Most improved since the previous round</h3>
               {review.mostImproved.length === 0 ? (
-                <p className="text-ink-soft">Nobody to compare yet: a student needs {MIN_RANKED} answers in this session and in an earlier one.</p>
+                <p className="text-ink-soft">Nobody to compare yet: a student needs {MIN_RANKED} answers in this round and in an earlier one.</p>
               ) : (
                 <ol className="space-y-1">
                   {review.mostImproved.slice(0, 5).map((m) => (
@@ -197,7 +197,7 @@ function Board({ title, rows, value, note }: { title: string; rows: PlayerFigure
 /** A running round: reload the figures whenever the server says answers were added. */
 function LiveUpdates({ classId, roomId }: { classId: string; roomId: string }) {
   const revalidator = useRevalidator();
-  const url = `/teach/classes/${classId}/review/live?session=${roomId}`;
+  const url = `/teach/classes/${classId}/review/live?round=${roomId}`;
   const count = useEventSource(url, { event: "answers" });
   const ended = useEventSource(url, { event: "ended" });
   useEffect(() => {
