@@ -36,7 +36,8 @@ export interface SortState {
   direction: SortDirection;
 }
 
-export const PAGE_SIZES = [10, 25, 50, 100] as const;
+// 5 is a phone's screenful.
+export const PAGE_SIZES = [5, 10, 25, 50, 100] as const;
 
 export function valueOf<T>(row: T, column: Pick<Column<T>, "key" | "sortValue">): SortValue {
   if (column.sortValue) return column.sortValue(row);
@@ -161,7 +162,7 @@ export interface TableQuery {
  * Reads a table's place from the URL. Anything unknown or malformed falls back to the default rather
  * than failing: these are links people bookmark and share, and an old one should still open the table.
  */
-export function readTableQuery(params: URLSearchParams, sortKeys: readonly string[], defaultSort: SortState, defaultSize: number = PAGE_SIZES[0]): TableQuery {
+export function readTableQuery(params: URLSearchParams, sortKeys: readonly string[], defaultSort: SortState, defaultSize = 10): TableQuery {
   const key = params.get("sort");
   const dir = params.get("dir");
   const page = z.coerce.number().int().min(1).max(100_000).safeParse(params.get("page"));

@@ -2,7 +2,7 @@ import Papa from "papaparse";
 import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createApiToken } from "~/auth/tokens.server";
-import { answers, roomPlayers, rooms } from "~/db/schema";
+import { answers, classes, memberships, roomPlayers, rooms } from "~/db/schema";
 import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
 import { seedDemo } from "../../server/seed";
 import { Client, startTestServer, type TestServer } from "./harness";
@@ -78,6 +78,48 @@ describe("class review pages", () => {
     const html = await (await clients.rafe!.get("/teach/classes/demo-class-tue/students/demo-student-2")).text();
     expect(html).toContain("Personal bests");
     expect(html).toContain("Accuracy per round");
+  });
+});
+
+describe("the rounds table, paged on the server", () => {
+  const classId = "paging-class";
+  beforeAll(async () => {
+    const { db } = server.services;
+    await db.insert(classes).values({ id: classId, orgId: DEMO_SCHOOL.id, name: "Many Rounds", joinCode: "PAGE-3479" });
+    await db.insert(memberships).values({ classId, userId: DEMO_SCHOOL.teachers[0].id, role: "teacher" });
+    for (let i = 1; i <= 12; i++) {
+      const room = await openTestRoom(db, { prompts: 1 });
+      const title = `Drill ${String(i).padStart(2, "0")}`;
+      await db.update(rooms).set({ classId, title, endedAt: new Date(), createdAt: new Date(Date.UTC(2026, 0, i)) }).where(eq(rooms.id, room.id));
+    }
+  });
+
+  /** The titles in the rounds table (the round picker above it lists every round). */
+  const titles = async (query: string) => {
+    const html = await (await clients.rafe!.get(`/teach/classes/${classId}/review${query}`)).text();
+    const table = html.split("<table").find((t) => t.includes("Rounds of this class"))!.split("</table>")[0]!;
+    return { titles: [...table.matchAll(/review\?round=[^"]*"[^>]*>(Drill \d\d)</g)].map((m) => m[1]), html };
+  };
+
+  it("shows the newest page first and moves by plain links", async () => {
+    const first = await titles("");
+    expect(first.titles).toEqual(["Drill 12", "Drill 11", "Drill 10", "Drill 09", "Drill 08", "Drill 07", "Drill 06", "Drill 05", "Drill 04", "Drill 03"]);
+    expect(first.html).toContain("Rows 1–10 of 12");
+    expect(first.html).toContain(`href="/teach/classes/${classId}/review?page=2"`);
+    expect(first.html).toContain(`href="/teach/classes/${classId}/review?sort=title&amp;dir=asc"`);
+    const second = await titles("?page=2");
+    expect(second.titles).toEqual(["Drill 02", "Drill 01"]);
+    expect(second.html).toContain("Rows 11–12 of 12");
+  });
+
+  it("sorts, sizes and filters in SQL", async () => {
+    expect((await titles("?sort=title&dir=asc&size=5")).titles).toEqual(["Drill 01", "Drill 02", "Drill 03", "Drill 04", "Drill 05"]);
+    const filtered = await titles("?q=drill%201&sort=title&dir=desc");
+    expect(filtered.titles).toEqual(["Drill 12", "Drill 11", "Drill 10"]);
+    expect((await titles("?q=50%25")).titles).toEqual([]);
+    // A page past the end shows the last page; a bad parameter falls back to the default.
+    expect((await titles("?page=9&size=10")).titles).toEqual(["Drill 02", "Drill 01"]);
+    expect((await titles("?sort=secret&size=7")).titles).toHaveLength(10);
   });
 });
 

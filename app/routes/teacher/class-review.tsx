@@ -4,12 +4,14 @@ import { data, Form, Link, useRevalidator, useSubmit } from "react-router";
 import { useEventSource } from "remix-utils/sse/react";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { DataTable, type Column } from "~/components/DataTable";
+import { readTableQuery } from "~/components/dataTable";
 import { Badge, buttonClass, Card, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
 import { MISTAKE_LABELS } from "~/music/mistakes";
 import { change, day, noteName, pct, secs } from "~/review/format";
 import { HeatmapFretboard, HeatmapStaves, MistakeChart } from "~/review/ReviewParts";
 import { requireReviewClass, reviewInput } from "~/review/review.server";
+import { ROUND_SORT_KEYS, roundsPage, type RoundRow } from "~/review/rounds.server";
 import { classReview, MIN_RANKED, RETEACH_ACCURACY_BAR, RETEACH_MIN_SAMPLE, type PlayerFigures } from "~/review/stats";
 import type { Route } from "./+types/class-review";
 
@@ -20,18 +22,43 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const { db } = services(context);
   const cls = await requireReviewClass(db, user, params.classId);
   const input = await reviewInput(db, { classId: cls.id });
-  const roundId = new URL(request.url).searchParams.get("round") || null;
+  const search = new URL(request.url).searchParams;
+  const roundId = search.get("round") || null;
   const chosen = roundId === null ? undefined : input.rounds.find((s) => s.id === roundId);
   if (roundId !== null && !chosen) throw data({ error: "That round is not one of this class's." }, { status: 404 });
   const latest = [...input.rounds].sort((a, b) => b.startedAt - a.startedAt)[0];
   const neck = chosen ?? latest;
   const live = (chosen ? [chosen] : input.rounds).find((s) => s.live)?.id ?? null;
-  return { cls, review: classReview(input, roundId), neck: neck && { tuning: neck.tuning, frets: neck.frets, position: neck.position }, live };
+  const review = classReview(input, roundId);
+  const roundsQuery = readTableQuery(search, ROUND_SORT_KEYS, { key: "startedAt", direction: "desc" });
+  const page = await roundsPage(db, cls.id, roundsQuery);
+  const accuracy = new Map(review.rounds.map((r) => [r.id, r.accuracy]));
+  const roundRows = page.rows.map((r) => ({ ...r, accuracy: r.answers > 0 ? (accuracy.get(r.id) ?? null) : null }));
+  return { cls, review, neck: neck && { tuning: neck.tuning, frets: neck.frets, position: neck.position }, live, roundRows, roundsPaging: { query: roundsQuery, total: page.total } };
 }
 
 type Row = PlayerFigures;
+type RoundLine = RoundRow & { accuracy: number | null };
 
-export default function ClassReview({ loaderData: { cls, review, neck, live } }: Route.ComponentProps) {
+const roundColumns: Column<RoundLine>[] = [
+  {
+    key: "title",
+    header: "Round",
+    cell: (r) => (
+      <span className="inline-flex flex-wrap items-center gap-2">
+        <Link className="underline" to={`?round=${r.id}`}>{r.title}</Link>
+        {r.live ? <Badge tone="info">live</Badge> : null}
+      </span>
+    ),
+  },
+  { key: "startedAt", header: "Date", cell: (r) => day(r.startedAt) },
+  { key: "players", header: "Players", align: "right" },
+  { key: "answers", header: "Answers", align: "right" },
+  { key: "accuracy", header: "Accuracy", align: "right", sortable: false, cell: (r) => (r.accuracy === null ? "—" : pct(r.accuracy)) },
+  { key: "results", header: "Results", sortable: false, cell: (r) => <Link className="underline" to={`/results/${r.id}`}>Results<span className="sr-only"> of {r.title}</span></Link> },
+];
+
+export default function ClassReview({ loaderData: { cls, review, neck, live, roundRows, roundsPaging } }: Route.ComponentProps) {
   const submit = useSubmit();
   const one = review.roundId ? review.rounds.find((s) => s.id === review.roundId) : undefined;
   const columns: Column<Row>[] = [
@@ -120,6 +147,11 @@ export default function ClassReview({ loaderData: { cls, review, neck, live } }:
               initialSort={{ key: "points", direction: "desc" }}
               empty="No students have answered yet."
             />
+          </section>
+
+          <section aria-labelledby="rounds" className="space-y-3">
+            <h2 id="rounds" className="font-display text-2xl font-semibold">Rounds</h2>
+            <DataTable rows={roundRows} columns={roundColumns} rowKey={(r) => r.id} caption="Rounds of this class" filterPlaceholder="Filter rounds by title" server={roundsPaging} />
           </section>
 
           <section aria-labelledby="reteach">
