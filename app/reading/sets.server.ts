@@ -7,7 +7,7 @@ import type { Db } from "~/db/client.server";
 import { classes, readingSets } from "~/db/schema";
 import { classesFor } from "~/school/classes.server";
 import { readingPreset } from "./presets";
-import { readingSetSpecSchema, summarise, type ReadingSetSpec } from "./spec";
+import { readingSetSpecSchema, describeReadingSet, type ReadingSetSpec } from "./spec";
 
 export interface SavedSet {
   id: string;
@@ -35,7 +35,7 @@ function toSaved(row: { id: string; name: string; classId: string | null; classN
     classId: row.classId,
     className: row.className,
     spec: parsed.success ? parsed.data : null,
-    summary: parsed.success ? summarise(parsed.data) : `Needs an edit: ${parsed.error.issues[0]?.message ?? "it no longer checks out"}`,
+    summary: parsed.success ? describeReadingSet(parsed.data) : `Needs an edit: ${parsed.error.issues[0]?.message ?? "it no longer checks out"}`,
     updatedAt: (row.updatedAt ?? row.createdAt).toISOString(),
   };
 }

@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { parseForm } from "~/lib/forms";
 import { buildPool } from "~/music/pools";
-import { collectStrings, readingSetFormSchema, readingSetSpecSchema, readingSpecOf, summarise, type ReadingSetSpec } from "./spec";
+import { collectStrings, readingSetFormSchema, readingSetSpecSchema, readingSpecOf, describeReadingSet, type ReadingSetSpec } from "./spec";
 
 const SET: ReadingSetSpec = {
   mode: "sprint",
@@ -87,6 +87,6 @@ describe("reading set spec ↔ the engine's ReadingSpec", () => {
   });
 
   it("sums a set up in one line", () => {
-    expect(summarise(SET)).toBe("Position 5 · Standard · G major, notes of the key · no ledger lines · strings 1, 2, 3 · E4 to G5 · 12 notes, 10 s each · Sprint · home spot only");
+    expect(describeReadingSet(SET)).toBe("Position 5 · Standard · G major, notes of the key · no ledger lines · strings 1, 2, 3 · E4 to G5 · 12 notes, 10 s each · Sprint · home spot only");
   });
 });

@@ -22,7 +22,7 @@
 import type { Spot } from "~/music/fretboard";
 import { MISTAKE_LABELS, type MistakeKind } from "~/music/mistakes";
 import type { RoomConfig } from "~/game/roomConfig";
-import { median } from "~/game/standings";
+import { median } from "~/lib/median";
 
 export const MIN_RANKED = 3;
 /** Reteach: a note needs this many answers to be judged at all… */

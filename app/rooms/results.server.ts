@@ -1,5 +1,5 @@
 import { MISTAKE_LABELS, type MistakeKind } from "~/music/mistakes";
-import { summarise } from "~/game/standings";
+import { playerSummaries } from "~/game/standings";
 import type { Db } from "~/db/client.server";
 import { loadRoomState } from "./log.server";
 
@@ -16,7 +16,7 @@ export async function roundResults(db: Db, roomId: string) {
   const loaded = await loadRoomState(db, roomId);
   if (!loaded) return undefined;
   const { state } = loaded;
-  const summaries = summarise(state);
+  const summaries = playerSummaries(state);
   const byPoints = [...summaries].sort((a, b) => b.points - a.points || b.longestStreak - a.longestStreak);
   const byStreak = [...summaries].sort((a, b) => b.longestStreak - a.longestStreak || b.points - a.points);
   const shown = state.run ? state.run.index + 1 : 0;

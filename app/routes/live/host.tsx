@@ -12,7 +12,7 @@ import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
 import { READING_PRESETS } from "~/reading/presets";
 import { hostableSet, mayUseClass, setsFor } from "~/reading/sets.server";
-import { summarise } from "~/reading/spec";
+import { describeReadingSet } from "~/reading/spec";
 import { requireRoomAccess } from "~/rooms/access.server";
 import { createRoom, roomSetup, type RoomSource } from "~/rooms/rooms.server";
 import { QUICK_DEFAULTS, quickSetupSchema, setupFromSet, type QuickSetup } from "~/rooms/setup";
@@ -28,7 +28,7 @@ export async function loader({ request, context }: Route.LoaderArgs) {
   const [classList, saved, tuneList] = await Promise.all([classesFor(db, user), setsFor(db, user), tunesFor(db, user.orgId)]);
   const params = new URL(request.url).searchParams;
   const classId = params.get("class");
-  const presets = READING_PRESETS.map((p) => ({ id: p.id, name: p.name, note: `Ready-made · step ${p.step}`, summary: summarise(p.spec), classId: null }));
+  const presets = READING_PRESETS.map((p) => ({ id: p.id, name: p.name, note: `Ready-made · step ${p.step}`, summary: describeReadingSet(p.spec), classId: null }));
   const own = saved.filter((s) => s.spec).map((s) => ({ id: s.id, name: s.name, note: s.className ?? "Whole school", summary: s.summary, classId: s.classId }));
   return {
     classes: classList.map((c) => ({ id: c.id, name: c.name })),

@@ -6,7 +6,7 @@ import { Badge, Button, buttonClass, Card, Notice, PageTitle } from "~/component
 import { services } from "~/context";
 import { READING_PRESETS } from "~/reading/presets";
 import { createSet, deleteSet, hostableSet, mayUseClass, setFor, setsFor, type SavedSet } from "~/reading/sets.server";
-import { summarise } from "~/reading/spec";
+import { describeReadingSet } from "~/reading/spec";
 import { classesFor } from "~/school/classes.server";
 import type { Route } from "./+types/reading-sets";
 
@@ -19,7 +19,7 @@ export async function loader({ request, context }: Route.LoaderArgs) {
   return {
     sets,
     classes: classList.map((c) => ({ id: c.id, name: c.name })),
-    presets: READING_PRESETS.map((p) => ({ ...p, summary: summarise(p.spec) })),
+    presets: READING_PRESETS.map((p) => ({ ...p, summary: describeReadingSet(p.spec) })),
     done: new URL(request.url).searchParams.get("done"),
   };
 }
