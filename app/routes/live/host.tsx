@@ -3,10 +3,9 @@ import { Form, Link, redirect, useNavigation } from "react-router";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { Button, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
-import { RoomConfigError } from "~/game/roomConfig";
 import { parseForm } from "~/lib/forms";
+import { formErrors } from "~/lib/userError";
 import { KEYS } from "~/music/keys";
-import { MusicError } from "~/music/pitch";
 import { TUNINGS } from "~/music/tuning";
 import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
@@ -50,10 +49,7 @@ async function open(db: Db, user: SessionUser, setup: QuickSetup, source?: RoomS
     const room = await createRoom(db, user, setup, source);
     return redirect(`/stage/${room.id}`);
   } catch (error) {
-    if (error instanceof RoomConfigError || error instanceof MusicError || error instanceof RangeError) {
-      return { errors: { form: error.message } as Errors };
-    }
-    throw error;
+    return { errors: formErrors(error) as Errors };
   }
 }
 
