@@ -56,16 +56,16 @@ describe("checkRosterRows", () => {
       ],
       ctx,
     );
-    expect(checked.map((r) => r.errors)).toEqual([
-      ["Missing name."],
-      ["That doesn't look like an e-mail address."],
-      ["Name is too long (at most 60 characters)."],
+    expect(checked.map((r) => r.errors.map((e) => `${e.field}: ${e.message}`))).toEqual([
+      ["name: Missing name."],
+      ["email: That doesn't look like an e-mail address."],
+      ["name: Name is too long (at most 60 characters)."],
       [],
-      ["Same name as line 5."],
-      ["Same e-mail as line 5."],
-      ["A student with this name is already in the class."],
-      ["A student with this e-mail is already in the class."],
-      ["Used by another account."],
+      ["name: Same name as line 5."],
+      ["email: Same e-mail as line 5."],
+      ["name: A student with this name is already in the class."],
+      ["email: A student with this e-mail is already in the class."],
+      ["email: Used by another account."],
     ]);
   });
 });

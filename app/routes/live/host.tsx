@@ -1,5 +1,6 @@
 import { useState } from "react";
 import { Form, Link, redirect, useNavigation } from "react-router";
+import { z } from "zod";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { Button, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
@@ -53,19 +54,30 @@ async function open(db: Db, user: SessionUser, setup: QuickSetup, source?: RoomS
   }
 }
 
+const actionSchema = z.discriminatedUnion("intent", [
+  z.object({ intent: z.literal("set"), set: z.string().max(200).default("") }),
+  z.object({ intent: z.literal("again"), roomId: z.string().max(64).default("") }),
+  // The quick set-up's own fields are checked by quickSetupSchema below.
+  z.object({ intent: z.literal("quick") }),
+]);
+
 export async function action({ request, context }: Route.ActionArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
   const form = await request.formData();
-  const intent = form.get("intent");
+  // The quick set-up is the page's main form: a post without an intent is that one.
+  if (!form.has("intent")) form.set("intent", "quick");
+  const intent = parseForm(actionSchema, form);
+  if (!intent.ok) return { errors: { form: "Unknown action." } as Errors };
+  const input = intent.data;
   const classId = String(form.get("classId") ?? "") || undefined;
-  if (intent === "set") {
-    const chosen = await hostableSet(db, user, String(form.get("set") ?? ""));
+  if (input.intent === "set") {
+    const chosen = await hostableSet(db, user, input.set);
     if (!chosen) return { errors: { set: "That reading set doesn't exist or needs an edit first." } as Errors };
     return open(db, user, setupFromSet(chosen.spec, classId), chosen.source);
   }
-  if (intent === "again") {
-    const room = await requireRoomAccess(db, user, String(form.get("roomId") ?? ""));
+  if (input.intent === "again") {
+    const room = await requireRoomAccess(db, user, input.roomId);
     const again = roomSetup(room);
     if (!again) return { errors: { form: "This round was hosted before its settings were kept; set it up again below." } as Errors };
     return open(db, user, again.setup, again.source);
@@ -134,6 +146,7 @@ export default function Host({ loaderData, actionData }: Route.ComponentProps) {
       </section>
       <h2 className="font-display text-2xl font-semibold">Or a quick setup for a one-off</h2>
       <Form method="post" className="space-y-6" noValidate>
+        <input type="hidden" name="intent" value="quick" />
         <input type="hidden" name="classId" value={classId} />
         {errors.pool ? <Notice tone="error">{errors.pool}</Notice> : null}
         <fieldset>
