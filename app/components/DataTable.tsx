@@ -4,7 +4,7 @@
 // (`server`) gets one page from its loader and moves by plain links and a GET form, so it works
 // without JavaScript too.
 import { useReactTable, type PaginationState, type SortingState } from "@tanstack/react-table";
-import { useId, useMemo, useState, type ReactNode } from "react";
+import { useId, useMemo, useState, type ReactNode, type SelectHTMLAttributes } from "react";
 import { Form, Link, useLocation } from "react-router";
 import {
   clientTableOptions,
@@ -107,16 +107,7 @@ export function DataTable<T>({
               className={inputClass}
             />
           </div>
-          <label className="flex items-center gap-2 text-sm">
-            Rows per page
-            <select value={paging.pageSize} onChange={(e) => setPaging({ pageIndex: 0, pageSize: Number(e.target.value) })} className="min-h-11 rounded-xl border-2 border-ink/20 bg-white px-2">
-              {sizes.map((s) => (
-                <option key={s} value={s}>
-                  {s}
-                </option>
-              ))}
-            </select>
-          </label>
+          <RowsPerPage sizes={sizes} value={paging.pageSize} onChange={(e) => setPaging({ pageIndex: 0, pageSize: Number(e.target.value) })} />
         </div>
       )}
 
@@ -248,18 +239,24 @@ function ServerFilter({ id, search, query, placeholder, sizes }: { id: string; s
         </label>
         <input id={`${id}-filter`} type="search" name="q" defaultValue={query.q} placeholder={placeholder} className={inputClass} />
       </div>
-      <label className="flex items-center gap-2 text-sm">
-        Rows per page
-        <select name="size" defaultValue={query.size} className="min-h-11 rounded-xl border-2 border-ink/20 bg-white px-2">
-          {sizes.map((s) => (
-            <option key={s} value={s}>
-              {s}
-            </option>
-          ))}
-        </select>
-      </label>
+      <RowsPerPage sizes={sizes} name="size" defaultValue={query.size} />
       <button className={pagerClass}>Show</button>
     </Form>
+  );
+}
+
+function RowsPerPage({ sizes, ...select }: { sizes: number[] } & SelectHTMLAttributes<HTMLSelectElement>) {
+  return (
+    <label className="flex items-center gap-2 text-sm">
+      Rows per page
+      <select {...select} className="min-h-11 rounded-xl border-2 border-ink/20 bg-white px-2">
+        {sizes.map((s) => (
+          <option key={s} value={s}>
+            {s}
+          </option>
+        ))}
+      </select>
+    </label>
   );
 }
 
