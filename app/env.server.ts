@@ -20,6 +20,20 @@ const schema = z
     MAIL_DIR: z.string().default("data/mail"),
     // Public address used in e-mailed links; defaults to http://localhost:PORT.
     PUBLIC_URL: z.url().optional(),
+    // Session lifetimes in days (fractions allowed): from sign-in, and since the last request.
+    SESSION_MAX_DAYS: z.coerce.number().positive().max(366).default(30),
+    SESSION_IDLE_DAYS: z.coerce.number().positive().max(366).default(7),
+    // Which proxies in front may name the client (X-Forwarded-For, -Proto): unset or 0 = none, a hop
+    // count, or a comma-separated list of proxy addresses/subnets (or loopback, linklocal, uniquelocal).
+    TRUST_PROXY: z
+      .string()
+      .trim()
+      .regex(
+        /^(\d+|((loopback|linklocal|uniquelocal|[0-9a-fA-F:.]+(\/\d{1,3})?)\s*(,\s*|$))+)$/,
+        "must be 0, a hop count, or a comma-separated list of proxy addresses or subnets",
+      )
+      .optional(),
+    LOG_LEVEL: z.enum(["fatal", "error", "warn", "info", "debug", "trace", "silent"]).default("info"),
   })
   .superRefine((env, ctx) => {
     if (env.NODE_ENV === "production" && !env.SESSION_SECRET) {
@@ -30,7 +44,9 @@ const schema = z
     }
   });
 
-export type Env = Omit<z.infer<typeof schema>, "MAIL_CAPTURE"> & {
+export type Env = Omit<z.infer<typeof schema>, "MAIL_CAPTURE" | "TRUST_PROXY"> & {
+  /** Express's `trust proxy`: false, a hop count, or a list of proxy addresses. */
+  trustProxy: false | number | string;
   SESSION_SECRET: string;
   PUBLIC_URL: string;
   /** Mail goes to the local catcher instead of SMTP_URL. */
@@ -44,9 +60,10 @@ export function loadEnv(source: Record<string, string | undefined> = process.env
     const lines = result.error.issues.map((i) => `  ${i.path.join(".") || "(env)"}: ${i.message}`);
     throw new Error(`Invalid environment:\n${lines.join("\n")}`);
   }
-  const { MAIL_CAPTURE, ...env } = result.data;
+  const { MAIL_CAPTURE, TRUST_PROXY, ...env } = result.data;
   return {
     ...env,
+    trustProxy: !TRUST_PROXY || TRUST_PROXY === "0" ? false : /^\d+$/.test(TRUST_PROXY) ? Number(TRUST_PROXY) : TRUST_PROXY,
     mailCapture: MAIL_CAPTURE ? MAIL_CAPTURE === "1" : !env.SMTP_URL && env.NODE_ENV !== "production",
     // Development and tests get a fixed secret so sessions survive restarts; production must set one.
     SESSION_SECRET: env.SESSION_SECRET ?? "development-only-secret-not-for-production-use",

@@ -18,7 +18,29 @@ describe("loadEnv", () => {
   it("requires a session secret in production", () => {
     expect(() => loadEnv({ NODE_ENV: "production" })).toThrow(/SESSION_SECRET: is required in production/);
   });
+  it("keeps sessions 30 days, 7 idle, unless told otherwise; refuses a lifetime that isn't a positive number", () => {
+    expect(loadEnv({})).toMatchObject({ SESSION_MAX_DAYS: 30, SESSION_IDLE_DAYS: 7 });
+    expect(loadEnv({ SESSION_MAX_DAYS: "0.5", SESSION_IDLE_DAYS: "2" })).toMatchObject({ SESSION_MAX_DAYS: 0.5, SESSION_IDLE_DAYS: 2 });
+    expect(() => loadEnv({ SESSION_MAX_DAYS: "0", SESSION_IDLE_DAYS: "a week" })).toThrow(/SESSION_MAX_DAYS: .*\n {2}SESSION_IDLE_DAYS: /);
+  });
   it("refuses a short session secret", () => {
     expect(() => loadEnv({ SESSION_SECRET: "short" })).toThrow(/SESSION_SECRET: must be at least 32 characters/);
+  });
+  it.each([
+    [undefined, false],
+    ["0", false],
+    ["1", 1],
+    ["2", 2],
+    ["loopback", "loopback"],
+    ["10.0.0.1, 10.0.0.0/8", "10.0.0.1, 10.0.0.0/8"],
+  ])("TRUST_PROXY=%s → trust proxy %s", (value, trust) => {
+    expect(loadEnv({ TRUST_PROXY: value }).trustProxy).toBe(trust);
+  });
+  it("refuses a TRUST_PROXY that would trust any client", () => {
+    expect(() => loadEnv({ TRUST_PROXY: "true" })).toThrow(/TRUST_PROXY: must be 0, a hop count/);
+  });
+  it("takes a log level", () => {
+    expect(loadEnv({}).LOG_LEVEL).toBe("info");
+    expect(() => loadEnv({ LOG_LEVEL: "loud" })).toThrow(/LOG_LEVEL/);
   });
 });

@@ -4,6 +4,7 @@ import "./app.css";
 import { getOptionalUser } from "./auth/guards.server";
 import { AppShell } from "./components/AppShell";
 import { nonceContext, services } from "./context";
+import { retryAfterHeaders } from "./auth/rate-limit.server";
 
 export const meta: Route.MetaFunction = () => [
   { title: "Fretcall — read the note, find the fret" },
@@ -48,12 +49,25 @@ export default function App({ loaderData }: Route.ComponentProps) {
   );
 }
 
+// A loader's thrown 429 (the pad's room-code look-up) reaches this boundary with its Retry-After.
+export const headers: Route.HeadersFunction = retryAfterHeaders;
+
+/** The `error` of a route's JSON answer; a refusal made before the app (413) arrives as its text. */
+function errorSentence(data: unknown): string | undefined {
+  if (typeof data !== "string") return (data as { error?: string } | undefined)?.error;
+  try {
+    return (JSON.parse(data) as { error?: string }).error;
+  } catch {
+    return undefined;
+  }
+}
+
 export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
   let title = "Something went wrong";
   let detail = "Please try again. If it keeps happening, tell your teacher or the school's admin.";
   if (isRouteErrorResponse(error)) {
     title = error.status === 404 ? "Page not found" : `${error.status} ${error.statusText || "Error"}`;
-    const message = (error.data as { error?: string } | undefined)?.error;
+    const message = errorSentence(error.data);
     if (error.status === 404) detail = "That page doesn't exist. Check the address, or go back to the start.";
     else if (message) detail = message;
   } else if (import.meta.env.DEV && error instanceof Error) {

@@ -26,6 +26,8 @@ export default [
   route("invite/:token", "routes/auth/invite.tsx"),
   route("people/:userId/export.json", "routes/people-export.ts"),
   route("settings/tokens", "routes/settings.tsx"),
+  route("settings/devices", "routes/settings/devices.tsx"),
+  route("settings/password", "routes/settings/password.tsx"),
   route("teach/tunes", "routes/teacher/tunes.tsx"),
   route("teach/tunes/:tuneId", "routes/teacher/tune.tsx"),
   route("host", "routes/live/host.tsx"),

@@ -21,7 +21,7 @@ import { WebSocket, WebSocketServer } from "ws";
 import { closeDb, migrateDb, openDb } from "~/db/client.server";
 import { answers } from "~/db/schema";
 import { seedDemo } from "../server/seed";
-import { joinPlayer, openStage, openTestRoom, spotOf, untilShown } from "../tests/integration/rooms";
+import { joinPlayer, openStage, openTestRoom, spotOf, untilShown } from "../server/scripted-rooms";
 
 const SECRET = "bench-secret-0123456789abcdef0123456789";
 const LOOPBACK = "127.0.0.1";

@@ -2,7 +2,7 @@ import compression from "compression";
 import express from "express";
 import helmet from "helmet";
 import { randomBytes } from "node:crypto";
-import { createServer, type Server } from "node:http";
+import { createServer, type IncomingHttpHeaders, type IncomingMessage, type Server } from "node:http";
 import type { AddressInfo } from "node:net";
 import { resolve } from "node:path";
 import { pathToFileURL } from "node:url";
@@ -12,6 +12,9 @@ import { createMailer } from "~/mail/mailer.server";
 import { startMailSchedule } from "~/practice/mail.server";
 import { createServices, type Services } from "~/services.server";
 import type { createAppHandler } from "./app";
+import { limitBodies } from "./body-limit";
+import { requestLog } from "./request-log";
+import { admitSocket, rememberSocket } from "./seat-limits";
 import { startMailCatcher } from "./mail-catcher";
 import { Hub } from "./hub";
 import { attachSockets } from "./sockets";
@@ -25,14 +28,39 @@ export interface RunningServer {
   close(): Promise<void>;
 }
 
-/** Same-origin check for state-changing requests and WebSocket upgrades (CSRF and cross-site sockets). */
-export function sameOrigin(origin: string | undefined, host: string | undefined) {
-  if (!origin) return true; // non-browser clients send no Origin; cookies alone never authorise them cross-site
+/**
+ * Same-origin check for state-changing requests and WebSocket upgrades (CSRF and cross-site
+ * sockets). Browsers say where a request comes from in Sec-Fetch-Site; older ones only in Origin,
+ * which some send as "null" on same-origin posts (e.g. under a no-referrer policy), so Origin is
+ * the fallback and "null" is refused only when Sec-Fetch-Site can't vouch for the request.
+ */
+export function sameOrigin(headers: IncomingHttpHeaders) {
+  const site = headers["sec-fetch-site"];
+  if (site) return site === "same-origin" || site === "none"; // "none": typed or bookmarked by the user
+  const origin = headers.origin;
+  if (!origin) return true; // non-browser clients send neither; cookies alone never authorise them cross-site
   try {
-    return new URL(origin).host === host;
+    return new URL(origin).host === headers.host;
   } catch {
     return false;
   }
+}
+
+/**
+ * The client's address: the socket's peer, or, when that is a trusted proxy, the address it
+ * names in X-Forwarded-For, walking back through trusted hops (the rule Express applies for
+ * `trust proxy`, so HTTP requests and WebSocket upgrades key their limits alike).
+ */
+export function clientAddressOf(req: IncomingMessage, trust: (address: string, hop: number) => boolean) {
+  const forwarded = String(req.headers["x-forwarded-for"] ?? "")
+    .split(",")
+    .map((a) => a.trim())
+    .filter(Boolean)
+    .reverse();
+  const chain = [req.socket.remoteAddress ?? "unknown", ...forwarded];
+  let hop = 0;
+  while (hop < chain.length - 1 && trust(chain[hop]!, hop)) hop += 1;
+  return chain[hop]!;
 }
 
 export async function startServer(overrides: Record<string, string | undefined> = {}): Promise<RunningServer> {
@@ -51,11 +79,16 @@ export async function startServer(overrides: Record<string, string | undefined> 
 
   const app = express();
   app.disable("x-powered-by");
-  app.set("trust proxy", false);
+  app.set("trust proxy", env.trustProxy);
+  const trust = app.get("trust proxy fn") as (address: string, hop: number) => boolean;
+  const overHttps = new URL(env.PUBLIC_URL).protocol === "https:";
+  app.use(requestLog(services.log));
   app.use((req, res, next) => {
     res.locals.cspNonce = randomBytes(16).toString("base64");
     // Rate limits key on this; a client-sent copy of the header is overwritten.
-    req.headers["x-fretcall-client-address"] = req.socket.remoteAddress ?? "unknown";
+    req.headers["x-fretcall-client-address"] = clientAddressOf(req, trust);
+    // Plain http on a school network must keep working, so HSTS only when served over https.
+    if (overHttps || req.secure) res.setHeader("Strict-Transport-Security", "max-age=31536000; includeSubDomains");
     next();
   });
   app.use(
@@ -75,14 +108,23 @@ export async function startServer(overrides: Record<string, string | undefined> 
             },
           }
         : false,
-      // Plain http on a school network must keep working; HSTS belongs to the TLS proxy in front.
       strictTransportSecurity: false,
+      // Same-origin requests carry the full referrer and a real Origin; other sites get nothing.
+      referrerPolicy: { policy: "same-origin" },
     }),
   );
   app.use(compression());
   app.use((req, res, next) => {
-    if (["GET", "HEAD", "OPTIONS"].includes(req.method) || sameOrigin(req.headers.origin, req.headers.host)) return next();
-    res.status(403).json({ error: "Cross-site request refused." });
+    if (["GET", "HEAD", "OPTIONS"].includes(req.method)) return next();
+    if (sameOrigin(req.headers)) {
+      // An opaque "null" Origin vouched for by Sec-Fetch-Site says nothing more; React Router's own
+      // check would read it as another site.
+      if (req.headers.origin === "null") delete req.headers.origin;
+      return next();
+    }
+    const message = "This form was sent from another website, so it was refused. Open Fretcall itself and try again.";
+    if (req.accepts(["json", "html"]) === "html" && !req.path.startsWith("/api/")) res.status(403).type("html").send(`<!doctype html><title>Refused · Fretcall</title><p>${message}</p>`);
+    else res.status(403).json({ error: message });
   });
   app.get("/healthz", async (_req, res) => {
     try {
@@ -100,7 +142,7 @@ export async function startServer(overrides: Record<string, string | undefined> 
     const build = (await import(pathToFileURL(resolve("build/server/index.js")).href)) as {
       createAppHandler: typeof createAppHandler;
     };
-    app.use(build.createAppHandler(services));
+    app.use(limitBodies(build.createAppHandler(services)));
   } else {
     const vite = await import("vite").then((v) => v.createServer({ server: { middlewareMode: true } }));
     closeVite = () => vite.close();
@@ -108,7 +150,7 @@ export async function startServer(overrides: Record<string, string | undefined> 
     app.use(async (req, res, next) => {
       try {
         const mod = (await vite.ssrLoadModule("./server/app.ts")) as { createAppHandler: typeof createAppHandler };
-        await mod.createAppHandler(services)(req, res, next);
+        await limitBodies(mod.createAppHandler(services))(req, res, next);
       } catch (error) {
         if (error instanceof Error) vite.ssrFixStacktrace(error);
         next(error);
@@ -119,8 +161,13 @@ export async function startServer(overrides: Record<string, string | undefined> 
   const server = createServer(app);
   // Frames up to 64 KiB reach the protocol parser, which refuses anything over MAX_MESSAGE_BYTES
   // with its own documented close code; larger frames are cut off by ws itself (1009).
-  const sockets = attachSockets(server, { allowOrigin: sameOrigin, maxPayload: 64 * 1024 });
+  const sockets = attachSockets(server, {
+    allowOrigin: (req) => sameOrigin(req.headers),
+    admit: (req) => admitSocket(services.limits, clientAddressOf(req, trust)),
+    maxPayload: 64 * 1024,
+  });
   hub.attach(sockets.wss);
+  sockets.wss.on("connection", (ws, req) => rememberSocket(ws, services.limits, clientAddressOf(req, trust)));
   await new Promise<void>((done) => server.listen(env.PORT, env.HOST, done));
   const port = (server.address() as AddressInfo).port;
 
@@ -146,10 +193,10 @@ export async function startServer(overrides: Record<string, string | undefined> 
 if (process.argv[1] && resolve(process.argv[1]) === resolve("server/index.ts")) {
   startServer()
     .then((running) => {
-      console.log(`Fretcall is listening on ${running.url}`);
+      running.services.log.info(`Fretcall is listening on ${running.url}`);
       for (const signal of ["SIGTERM", "SIGINT"] as const) {
         process.once(signal, () => {
-          console.log(`${signal}: closing connections and flushing the database…`);
+          running.services.log.info(`${signal}: closing connections and flushing the database…`);
           running.close().then(() => process.exit(0));
         });
       }

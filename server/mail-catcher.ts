@@ -2,6 +2,7 @@ import { simpleParser } from "mailparser";
 import { mkdirSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { SMTPServer } from "smtp-server";
+import { SCHOOL_HEADER } from "~/mail/mailer.server";
 import type { CapturedMail } from "~/mail/outbox.server";
 
 /**
@@ -26,6 +27,7 @@ export async function startMailCatcher(dir: string): Promise<{ url: string; clos
         const mail: CapturedMail = {
           id,
           receivedAt,
+          school: parsed.headers.get(SCHOOL_HEADER.toLowerCase())?.toString() ?? null,
           from: session.envelope.mailFrom ? session.envelope.mailFrom.address : "",
           to: session.envelope.rcptTo.map((r) => r.address),
           subject: parsed.subject ?? "",

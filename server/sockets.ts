@@ -22,7 +22,13 @@ export interface SocketHost {
  */
 export function attachSockets(
   server: Server,
-  opts: { allowOrigin: (origin: string | undefined, host: string | undefined) => boolean; maxPayload: number; heartbeatMs?: number },
+  opts: {
+    allowOrigin: (req: IncomingMessage) => boolean;
+    /** Counts the connection against its address's limit; a refusal is answered 429. */
+    admit?: (req: IncomingMessage) => Promise<{ retryAfter: number; message: string } | undefined>;
+    maxPayload: number;
+    heartbeatMs?: number;
+  },
 ): SocketHost {
   const wss = new WebSocketServer({ noServer: true, maxPayload: opts.maxPayload });
   const alive = new WeakMap<WebSocket, boolean>();
@@ -33,11 +39,23 @@ export function attachSockets(
   server.on("upgrade", (req: IncomingMessage, socket: Duplex, head: Buffer) => {
     const path = (req.url ?? "").split("?")[0];
     if (path !== "/ws") return; // other upgrades (Vite's HMR in development) belong to their owners
-    if (!opts.allowOrigin(req.headers.origin, req.headers.host)) {
+    if (!opts.allowOrigin(req)) {
       socket.end("HTTP/1.1 403 Forbidden\r\nConnection: close\r\n\r\n");
       return;
     }
-    wss.handleUpgrade(req, socket, head, (ws) => wss.emit("connection", ws, req));
+    void (async () => {
+      const refused = await opts.admit?.(req);
+      if (refused) {
+        const body = Buffer.from(refused.message);
+        socket.end(
+          `HTTP/1.1 429 Too Many Requests\r\nRetry-After: ${refused.retryAfter}\r\nContent-Type: text/plain; charset=utf-8\r\n` +
+            `Content-Length: ${body.length}\r\nConnection: close\r\n\r\n${body}`,
+        );
+        return;
+      }
+      if (socket.destroyed) return;
+      wss.handleUpgrade(req, socket, head, (ws) => wss.emit("connection", ws, req));
+    })();
   });
 
   wss.on("connection", (ws) => {

@@ -1,22 +1,33 @@
 import { describe, expect, it } from "vitest";
-import { RateLimiter } from "./rate-limit.server";
+import { createLimits, firstRefusal, peek, take, waitWords } from "./rate-limit.server";
 
-describe("RateLimiter", () => {
-  it("allows `limit` attempts per window, then says how long to wait, then forgives", () => {
-    let now = 0;
-    const limiter = new RateLimiter(3, 60_000, () => now);
-    expect([1, 2, 3].map(() => limiter.hit("k"))).toEqual([0, 0, 0]);
-    now = 15_000;
-    expect(limiter.hit("k")).toBe(45); // 60 s window opened at 0, so 45 s remain
-    expect(limiter.hit("other")).toBe(0);
-    now = 60_000;
-    expect(limiter.hit("k")).toBe(0);
+describe("limits", () => {
+  it("allows the limit, then refuses with the wait in seconds and a sentence", async () => {
+    const { reset } = createLimits();
+    for (let i = 0; i < 3; i++) expect(await take(reset.account, "kit@example.org")).toBeUndefined();
+    const refused = await take(reset.account, "kit@example.org");
+    expect(refused?.retryAfter).toBeGreaterThan(3500);
+    expect(refused?.message).toMatch(/^Too many reset requests for this address\. Try again in 60 minutes\.$/);
+    expect(await take(reset.account, "other@example.org")).toBeUndefined();
   });
-  it("reset forgives at once", () => {
-    const limiter = new RateLimiter(1, 60_000, () => 0);
-    limiter.hit("k");
-    expect(limiter.hit("k")).toBeGreaterThan(0);
-    limiter.reset("k");
-    expect(limiter.hit("k")).toBe(0);
+  it("peek counts nothing", async () => {
+    const { signIn } = createLimits();
+    for (let i = 0; i < 10; i++) expect(await peek(signIn.pair, "k")).toBeUndefined();
+    for (let i = 0; i < 5; i++) await take(signIn.pair, "k");
+    expect(await peek(signIn.pair, "k")).toMatchObject({ retryAfter: expect.any(Number) });
   });
+  it("firstRefusal counts every check and gives the first refusal", async () => {
+    const { seats } = createLimits();
+    for (let i = 0; i < 5; i++) await take(seats.socket, "s");
+    const refused = await firstRefusal([take(seats.socket, "s"), take(seats.address, "a")]);
+    expect(refused?.message).toMatch(/^This phone joined too often/);
+    expect((await seats.address.limiter.get("a"))?.consumedPoints).toBe(1);
+  });
+  it.each([
+    [1, "1 second"],
+    [45, "45 seconds"],
+    [60, "1 minute"],
+    [61, "2 minutes"],
+    [900, "15 minutes"],
+  ])("%i s → %s", (seconds, words) => expect(waitWords(seconds)).toBe(words));
 });

@@ -1,10 +1,10 @@
 import { z } from "zod";
+import { nameField } from "~/lib/names";
 
 export const NAME_MAX = 60;
 export const PASSWORD_MIN = 10;
 
-const name = (what: string) =>
-  z.string().trim().min(1, `Enter ${what}.`).max(NAME_MAX, `Keep ${what} under ${NAME_MAX} characters.`);
+const name = (what: string) => nameField(what, NAME_MAX);
 
 export const email = z
   .string()

@@ -1,6 +1,6 @@
 import { and, eq, isNull } from "drizzle-orm";
 import { nanoid } from "nanoid";
-import type { Db } from "~/db/client.server";
+import type { Db, Writer } from "~/db/client.server";
 import { apiTokens } from "~/db/schema";
 import { hashToken as hash, newToken } from "./secret-token.server";
 
@@ -30,6 +30,11 @@ export async function revokeApiToken(db: Db, userId: string, id: string) {
     .where(and(eq(apiTokens.id, id), eq(apiTokens.userId, userId), isNull(apiTokens.revokedAt)))
     .returning({ id: apiTokens.id });
   return done.length > 0;
+}
+
+/** Revokes every live token of the user (after a password reset). */
+export async function revokeApiTokensOf(db: Writer, userId: string) {
+  await db.update(apiTokens).set({ revokedAt: new Date() }).where(and(eq(apiTokens.userId, userId), isNull(apiTokens.revokedAt)));
 }
 
 /** The user id a live bearer token belongs to, or undefined. */

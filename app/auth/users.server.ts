@@ -4,6 +4,8 @@ import type { Db } from "~/db/client.server";
 import { organisations, passwordResets, users, type Role } from "~/db/schema";
 import { hashPassword, verifyPassword } from "./password.server";
 import { hashToken, newToken } from "./secret-token.server";
+import { endSessionsOf } from "./session.server";
+import { revokeApiTokensOf } from "./tokens.server";
 
 export interface SessionUser {
   id: string;
@@ -36,7 +38,7 @@ export async function emailTaken(db: Db, email: string) {
 /** Sign-up: a teacher creates their studio and becomes its admin. */
 export async function createStudio(
   db: Db,
-  input: { studioName: string; displayName: string; email: string; password: string },
+  input: { studioName: string; displayName: string; email: string; passwordHash: string },
 ): Promise<SessionUser> {
   const orgId = nanoid();
   const user: SessionUser = {
@@ -46,13 +48,16 @@ export async function createStudio(
     displayName: input.displayName,
     email: normaliseEmail(input.email),
   };
-  const passwordHash = await hashPassword(input.password);
   await db.batch([
     db.insert(organisations).values({ id: orgId, name: input.studioName }),
-    db.insert(users).values({ ...user, passwordHash }),
+    db.insert(users).values({ ...user, passwordHash: input.passwordHash }),
   ]);
   return user;
 }
+
+let dummy: Promise<string> | undefined;
+/** A hash of nothing anyone can type, made once, at the same cost as real ones. */
+const dummyHash = () => (dummy ??= hashPassword(newToken()));
 
 /** Returns the user when the password matches; the same `undefined` for unknown e-mail and wrong password. */
 export async function checkCredentials(db: Db, email: string, password: string) {
@@ -60,8 +65,10 @@ export async function checkCredentials(db: Db, email: string, password: string) 
     .select({ ...publicColumns, passwordHash: users.passwordHash })
     .from(users)
     .where(eq(users.email, normaliseEmail(email)));
-  if (!row?.passwordHash) return undefined;
-  if (!(await verifyPassword(password, row.passwordHash))) return undefined;
+  // An unknown address (or one without a password yet) costs the same bcrypt comparison, so the
+  // answer's timing doesn't tell whether the account exists.
+  const matches = await verifyPassword(password, row?.passwordHash ?? (await dummyHash()));
+  if (!row?.passwordHash || !matches) return undefined;
   const { passwordHash: _omit, ...user } = row;
   return user satisfies SessionUser;
 }
@@ -102,7 +109,11 @@ export async function resetIsLive(db: Db, token: string, now = Date.now()) {
   return Boolean(await findLiveReset(db, token, now));
 }
 
-/** Sets the new password and spends the token in one transaction; false when expired or used. */
+/**
+ * Sets the new password and spends the token in one transaction; false when expired or used. Whoever
+ * held the old password may still be signed in or hold a token, so every session ends, every API
+ * token is revoked, and every other reset link of the user is voided with it.
+ */
 export async function consumePasswordReset(db: Db, token: string, password: string, now = Date.now()) {
   const reset = await findLiveReset(db, token, now);
   if (!reset) return false;
@@ -116,6 +127,20 @@ export async function consumePasswordReset(db: Db, token: string, password: stri
     // A concurrent request spent it first.
     if (spent.length === 0) return false;
     await tx.update(users).set({ passwordHash }).where(eq(users.id, reset.userId));
+    await tx.update(passwordResets).set({ usedAt: new Date(now) }).where(and(eq(passwordResets.userId, reset.userId), isNull(passwordResets.usedAt)));
+    await endSessionsOf(tx, reset.userId);
+    await revokeApiTokensOf(tx, reset.userId);
     return true;
   });
+}
+
+/**
+ * Changes the password of a signed-in user who proves the current one. The caller ends the user's
+ * other sessions.
+ */
+export async function changePassword(db: Db, userId: string, current: string, password: string) {
+  const [row] = await db.select({ passwordHash: users.passwordHash }).from(users).where(eq(users.id, userId));
+  if (!row?.passwordHash || !(await verifyPassword(current, row.passwordHash))) return false;
+  await db.update(users).set({ passwordHash: await hashPassword(password) }).where(eq(users.id, userId));
+  return true;
 }

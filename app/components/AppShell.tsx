@@ -97,6 +97,9 @@ export function AppShell({
                 <span className="hidden sm:inline" title={`Signed in as a ${user.role}`}>
                   {user.displayName}
                 </span>
+                <NavLink to="/settings/devices" className="rounded-full px-3 py-1 hover:bg-white/10">
+                  Settings
+                </NavLink>
                 <Form method="post" action="/signout">
                   <button className="rounded-full border border-paper/40 px-3 py-1 hover:bg-white/10">Sign out</button>
                 </Form>

@@ -4,7 +4,7 @@
 // (`server`) gets one page from its loader and moves by plain links and a GET form, so it works
 // without JavaScript too.
 import { useReactTable, type PaginationState, type SortingState } from "@tanstack/react-table";
-import { useId, useMemo, useState, type ReactNode, type SelectHTMLAttributes } from "react";
+import { useEffect, useId, useMemo, useState, type ReactNode, type SelectHTMLAttributes } from "react";
 import { Form, Link, useLocation } from "react-router";
 import {
   clientTableOptions,
@@ -62,6 +62,10 @@ export function DataTable<T>({
   const [query, setQuery] = useState("");
   const [sorting, setSorting] = useState<SortingState>(() => toSorting(initialSort));
   const [paging, setPaging] = useState<PaginationState>({ pageIndex: 0, pageSize: initialPageSize });
+  // Paging in the browser needs scripts: until they run (or with JavaScript off) every row is
+  // shown, so the forms in rows past the first page can still be reached.
+  const [scripted, setScripted] = useState(false);
+  useEffect(() => setScripted(true), []);
 
   const defs = useMemo(() => columnDefs(columns), [columns]);
   const total = server ? server.total : undefined;
@@ -71,7 +75,7 @@ export function DataTable<T>({
     ...(server ? { manualSorting: true, manualFiltering: true, manualPagination: true, rowCount: total } : {}),
     state: server
       ? { sorting: toSorting(server.query.sort), pagination: { pageIndex: server.query.page - 1, pageSize: server.query.size }, globalFilter: server.query.q }
-      : { sorting, pagination: paging, globalFilter: query },
+      : { sorting, pagination: scripted ? paging : { pageIndex: 0, pageSize: Math.max(rows.length, 1) }, globalFilter: query },
     onSortingChange: setSorting,
     onPaginationChange: setPaging,
   });
@@ -80,7 +84,7 @@ export function DataTable<T>({
   const filtered = server ? server.total : table.getPrePaginationRowModel().rows.length;
   const view = pageWindow(filtered, table.getState().pagination.pageIndex + 1, table.getState().pagination.pageSize);
   // Rows removed by an action can leave the page past the end: show the last page that exists instead.
-  if (!server && view.page !== paging.pageIndex + 1) table.setPageIndex(view.page - 1);
+  if (!server && scripted && view.page !== paging.pageIndex + 1) table.setPageIndex(view.page - 1);
   const shown = table.getRowModel().rows;
   const shownQuery = server ? server.query.q : query;
   const sizes = (PAGE_SIZES as readonly number[]).includes(initialPageSize) ? [...PAGE_SIZES] : [initialPageSize, ...PAGE_SIZES].sort((a, b) => a - b);

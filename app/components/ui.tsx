@@ -1,5 +1,6 @@
 // Shared building blocks. Every state carries a word or an icon as well as a colour.
 import type { ButtonHTMLAttributes, InputHTMLAttributes, ReactNode, SelectHTMLAttributes } from "react";
+import { Form } from "react-router";
 
 type Tone = "ink" | "brass" | "teal" | "brick" | "ghost";
 
@@ -17,6 +18,20 @@ export function buttonClass(tone: Tone = "ink", extra = "") {
 
 export function Button({ tone = "ink", className = "", ...props }: ButtonHTMLAttributes<HTMLButtonElement> & { tone?: Tone }) {
   return <button className={buttonClass(tone, className)} {...props} />;
+}
+
+/** A form that is one button: its hidden fields say what to do to which row. A plain post, so it works without JavaScript. */
+export function PostButton({ fields, tone = "ghost", disabled, children }: { fields: Record<string, string>; tone?: Tone; disabled?: boolean; children: ReactNode }) {
+  return (
+    <Form method="post">
+      {Object.entries(fields).map(([name, value]) => (
+        <input key={name} type="hidden" name={name} value={value} />
+      ))}
+      <Button type="submit" tone={tone} disabled={disabled}>
+        {children}
+      </Button>
+    </Form>
+  );
 }
 
 export function Card({ children, className = "" }: { children: ReactNode; className?: string }) {
@@ -124,6 +139,18 @@ export function Notice({ tone, children }: { tone: keyof typeof noticeTones; chi
         {children}
       </span>
     </div>
+  );
+}
+
+/**
+ * Shown only with JavaScript off, where a part of a page can't work without it (live play on
+ * WebSockets, timed practice, the map editor): says so plainly instead of a button that does nothing.
+ */
+export function NeedsJavaScript({ what }: { what: string }) {
+  return (
+    <noscript>
+      <Notice tone="info">{what} needs JavaScript. Turn it on in your browser's settings, then reload this page.</Notice>
+    </noscript>
   );
 }
 

@@ -32,4 +32,27 @@ describe("database", () => {
     ).rejects.toMatchObject({ cause: { message: expect.stringMatching(/FOREIGN KEY/) } });
     await closeDb(db);
   });
+
+  it("makes every connection wait for locks: parallel writers from several clients never see SQLITE_BUSY", async () => {
+    const url = freshUrl();
+    const first = await openDb(url);
+    await migrateDb(first);
+    const clients = [first, await openDb(url), await openDb(url)];
+    // Transactions take their own pooled connections (not the first one), so each must wait too.
+    const work = clients.flatMap((db, c) =>
+      Array.from({ length: 12 }, (_, i) =>
+        i % 2
+          ? db.transaction(async (tx) => {
+              await tx.insert(organisations).values({ id: `t${c}-${i}`, name: "Studio" });
+              await new Promise((done) => setTimeout(done, 5)); // hold the write lock across a turn of the loop
+              await tx.insert(users).values({ id: `u${c}-${i}`, orgId: `t${c}-${i}`, role: "student", displayName: "Kit" });
+            })
+          : db.insert(organisations).values({ id: `p${c}-${i}`, name: "Studio" }),
+      ),
+    );
+    const results = await Promise.allSettled(work);
+    expect(results.filter((r) => r.status === "rejected")).toEqual([]);
+    expect((await first.select().from(organisations)).length).toBe(36);
+    for (const db of clients) await closeDb(db);
+  });
 });

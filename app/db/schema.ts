@@ -1,6 +1,14 @@
 // The one place the database is described; drizzle-kit generates migrations from it.
 import { sql } from "drizzle-orm";
 import { index, integer, primaryKey, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
+// Types only: drizzle-kit reads this file without the app's path aliases.
+import type { RoomRecord } from "~/game/room";
+import type { RoomConfig } from "~/game/roomConfig";
+import type { SpotMap } from "~/music/positions";
+import type { RhythmScore } from "~/practice/rhythm";
+import type { ReadingSetSpec } from "~/reading/spec";
+import type { QuickSetup } from "~/rooms/setup";
+import type { TuneNote } from "~/tunes/builtin";
 
 const createdAt = () =>
   integer("created_at", { mode: "timestamp_ms" })
@@ -76,9 +84,36 @@ export const passwordResets = sqliteTable("password_resets", {
   createdAt: createdAt(),
 });
 
+/**
+ * Signed-in sessions. The cookie carries a random id; only its SHA-256 is kept, so a copy of the
+ * database opens no session. `device` is a coarse browser-and-system label, never an address.
+ */
+export const userSessions = sqliteTable(
+  "sessions",
+  {
+    // A handle for the devices page; the secret id never leaves the cookie.
+    id: text("id").primaryKey(),
+    tokenHash: text("token_hash").notNull(),
+    userId: text("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    device: text("device").notNull(),
+    // React Router's flash values, kept until the next read.
+    flash: text("flash", { mode: "json" }).$type<Record<string, unknown>>(),
+    createdAt: createdAt(),
+    lastSeenAt: integer("last_seen_at", { mode: "timestamp_ms" }).notNull(),
+    expiresAt: integer("expires_at", { mode: "timestamp_ms" }).notNull(),
+    idleExpiresAt: integer("idle_expires_at", { mode: "timestamp_ms" }).notNull(),
+  },
+  (t) => [uniqueIndex("sessions_token_hash_unique").on(t.tokenHash), index("sessions_user_idx").on(t.userId)],
+);
+
 // ---- live rounds ------------------------------------------------------------------------------
 
-/** A live round. `config` is the game's RoomConfig (prompt order included), fixed at creation. */
+/**
+ * A live round. `config` is the game's RoomConfig (prompt order included), fixed at creation; `setup` is
+ * what the teacher chose, kept so "Host this again" can draw afresh (null for rounds from before it was kept).
+ */
 export const rooms = sqliteTable(
   "rooms",
   {
@@ -93,12 +128,14 @@ export const rooms = sqliteTable(
     classId: text("class_id").references(() => classes.id, { onDelete: "set null" }),
     // What the round was hosted from, for the class review (the config itself is self-contained).
     readingSetId: text("reading_set_id").references(() => readingSets.id, { onDelete: "set null" }),
-    tuneId: text("tune_id").references(() => tunes.id, { onDelete: "set null" }),
     title: text("title").notNull(),
     mode: text("mode").notNull(),
     // The position the round reads in: pads zoom their fretboard to it.
     position: integer("position").notNull(),
-    config: text("config", { mode: "json" }).notNull(),
+    config: text("config", { mode: "json" }).$type<RoomConfig>().notNull(),
+    setup: text("setup", { mode: "json" }).$type<QuickSetup>(),
+    // The ready-made or saved set's name at the time, for the title of a round hosted again.
+    sourceName: text("source_name"),
     endedAt: integer("ended_at", { mode: "timestamp_ms" }),
     createdAt: createdAt(),
   },
@@ -119,7 +156,7 @@ export const roomEvents = sqliteTable(
       .references(() => rooms.id, { onDelete: "cascade" }),
     seq: integer("seq").notNull(),
     at: integer("at").notNull(),
-    event: text("event", { mode: "json" }).notNull(),
+    event: text("event", { mode: "json" }).$type<RoomRecord>().notNull(),
   },
   (t) => [primaryKey({ columns: [t.roomId, t.seq] })],
 );
@@ -156,6 +193,9 @@ export const answers = sqliteTable(
     fret: integer("fret").notNull(),
     kind: text("kind").notNull(),
     pitchRight: integer("pitch_right", { mode: "boolean" }).notNull(),
+    // What the round gave (full credit or not depends on its home-spot-only setting). Null only until
+    // the start-up data step has replayed the room's log (app/rooms/verdicts.server.ts).
+    verdict: text("verdict", { enum: ["right", "partial", "wrong"] }),
     points: integer("points").notNull(),
     reactionMs: integer("reaction_ms").notNull(),
     streak: integer("streak").notNull(),
@@ -201,7 +241,8 @@ export const readingSets = sqliteTable(
       .references(() => organisations.id, { onDelete: "cascade" }),
     classId: text("class_id").references(() => classes.id, { onDelete: "cascade" }),
     name: text("name").notNull(),
-    spec: text("spec", { mode: "json" }).notNull(),
+    // Parsed again on every read (app/reading/readingSet.ts): a set stored under older rules may need an edit.
+    spec: text("spec", { mode: "json" }).$type<ReadingSetSpec>().notNull(),
     createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: createdAt(),
     updatedAt: integer("updated_at", { mode: "timestamp_ms" }),
@@ -218,7 +259,7 @@ export const spotMaps = sqliteTable(
       .references(() => classes.id, { onDelete: "cascade" }),
     position: integer("position").notNull(),
     tuning: text("tuning").notNull(),
-    map: text("map", { mode: "json" }).notNull(),
+    map: text("map", { mode: "json" }).$type<SpotMap>().notNull(),
     updatedBy: text("updated_by").references(() => users.id, { onDelete: "set null" }),
     updatedAt: integer("updated_at", { mode: "timestamp_ms" }).notNull(),
   },
@@ -238,7 +279,7 @@ export const tunes = sqliteTable(
     keyFifths: integer("key_fifths").notNull(),
     beatsPerBar: integer("beats_per_bar").notNull(),
     // [{ pitch, beats, bar }]: the shape app/tunes/builtin.ts uses.
-    notes: text("notes", { mode: "json" }).notNull(),
+    notes: text("notes", { mode: "json" }).$type<TuneNote[]>().notNull(),
     createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: createdAt(),
   },
@@ -340,7 +381,7 @@ export const rhythmAttempts = sqliteTable(
     tuneId: text("tune_id").notNull(),
     tempo: integer("tempo").notNull(),
     score: integer("score_pct").notNull(),
-    results: text("results", { mode: "json" }).notNull(),
+    results: text("results", { mode: "json" }).$type<RhythmScore & { position: number }>().notNull(),
     at: integer("at", { mode: "timestamp_ms" }).notNull(),
   },
   (t) => [index("rhythm_user_idx").on(t.userId)],

@@ -6,8 +6,8 @@
  * seed gives the same answers; only the dates follow today's date.
  */
 import type { Db } from "~/db/client.server";
-import { answers, roomEvents, roomPlayers, rooms } from "~/db/schema";
-import { reduce, initialState, type RoomEvent, type RoomRecord, type RoomState } from "~/game/room";
+import { rooms } from "~/db/schema";
+import { reduce, initialState, type RoomEvent, type RoomState } from "~/game/room";
 import { ROOM_CODE_ALPHABET, ROOM_CODE_LENGTH } from "~/game/roomCode";
 import type { PromptNote } from "~/game/roomConfig";
 import { spotsFor, spotsForSounding, soundingMidi, type Spot } from "~/music/fretboard";
@@ -16,8 +16,8 @@ import { parsePitch } from "~/music/pitch";
 import { seededRandom } from "~/music/pools";
 import { resolveTuning } from "~/music/tuning";
 import { configFromSetup } from "~/rooms/rooms.server";
-import { QUICK_DEFAULTS, type QuickSetup } from "~/rooms/setup";
-import { stepRows, type StepRows } from "~/rooms/stepRows";
+import { parsedSetup, QUICK_DEFAULTS, type QuickSetup } from "~/rooms/setup";
+import { RoomLog, writeStatements, type StepWrites } from "~/rooms/store.server";
 import { DEMO_SCHOOL as S } from "./school";
 
 const WEEK = 7 * 24 * 60 * 60 * 1000;
@@ -92,21 +92,18 @@ function isTrouble(note: PromptNote, trouble: string) {
 function playRound(config: ReturnType<typeof configFromSetup>, roomId: string, start: number, week: number, present: Student[], trouble: string, random: Rng) {
   let state: RoomState = initialState(config);
   let now = start;
-  const records: { seq: number; at: number; event: RoomRecord }[] = [];
-  const rows: StepRows = { players: [], answers: [], ended: false };
+  const log = new RoomLog(roomId);
+  const writes: StepWrites[] = [];
   const apply = (event: RoomEvent, userId: string | null = null) => {
     const step = reduce(state, event, { now, leadMs: 0 });
-    for (const e of step.effects) if (e.kind === "persist") records.push({ seq: records.length + 1, at: now, event: e.record });
-    const added = stepRows(roomId, state, step.state, userId);
-    rows.players.push(...added.players);
-    rows.answers.push(...added.answers);
-    rows.ended ||= added.ended;
+    const rows = log.rows(step.effects, userId);
+    if (rows) writes.push(rows);
     state = step.state;
   };
 
   present.forEach((s, i) => {
     now += 1_500;
-    apply({ type: "join", playerId: `${roomId}-p${i + 1}`, seat: `${roomId}-seat${i + 1}`, nickname: s.name }, s.id);
+    apply({ type: "join", playerId: `${roomId}-p${i + 1}`, seatToken: `${roomId}-seat${i + 1}`, nickname: s.name }, s.id);
   });
   // `apply` replaces the state, which the compiler cannot see inside the loop.
   const phase = () => state.phase;
@@ -142,7 +139,7 @@ function playRound(config: ReturnType<typeof configFromSetup>, roomId: string, s
       apply({ type: "host", action: "next" });
     }
   }
-  return { records, rows, endedAt: now };
+  return writes;
 }
 
 export async function seedHistory(db: Db) {
@@ -168,10 +165,11 @@ export async function seedHistory(db: Db) {
       const start = today.getTime() - (SESSIONS - week) * WEEK + c * 60 * 60 * 1000;
       const setup: QuickSetup = { ...QUICK_DEFAULTS, classId: cls.id, ...plan.weeks[week] };
       const roomCode = code(random);
-      const config = configFromSetup(setup, roomCode, 1_000 + c * 10 + week);
+      const config = configFromSetup(parsedSetup(setup), roomCode, 1_000 + c * 10 + week);
       // Now and then somebody is away.
       const present = roster.filter(() => random() > 0.12);
-      const played = playRound(config, roomId, start, week, present, plan.trouble, random);
+      const writes = playRound(config, roomId, start, week, present, plan.trouble, random);
+      // The round's writes end it (rooms.ended_at), as the hub's do.
       await db.insert(rooms).values({
         id: roomId,
         code: roomCode,
@@ -183,17 +181,8 @@ export async function seedHistory(db: Db) {
         position: setup.position,
         config,
         createdAt: new Date(start),
-        endedAt: new Date(played.endedAt),
       });
-      await db.batch([
-        db.insert(roomEvents).values(played.records.map((r) => ({ roomId, ...r }))),
-        db.insert(roomPlayers).values(played.rows.players),
-        ...chunks(played.rows.answers, 400).map((part) => db.insert(answers).values(part)),
-      ]);
+      await db.$client.batch(writeStatements(db, writes), "write");
     }
   }
-}
-
-function chunks<T>(list: T[], size: number): T[][] {
-  return Array.from({ length: Math.ceil(list.length / size) }, (_, i) => list.slice(i * size, (i + 1) * size));
 }

@@ -11,16 +11,16 @@
 import type { Db } from "~/db/client.server";
 import { practiceAnswers, rhythmAttempts } from "~/db/schema";
 import { parsePitch } from "~/music/pitch";
-import { buildPool, seededRandom, type PoolNote } from "~/music/pools";
+import { seededRandom, type PoolNote } from "~/music/pools";
 import type { SpotMap } from "~/music/positions";
 import { diagnose } from "~/music/mistakes";
 import { resolveTuning } from "~/music/tuning";
 import { allSteady, chooseNext, noteStates, type PracticeAnswer } from "~/practice/adaptive";
-import { onClassMap, setOrder, tunePool } from "~/practice/pool";
+import { setOrder, tunePool } from "~/practice/pool";
 import { spotMapFor } from "~/practice/practice.server";
 import { scoreTaps, timeline } from "~/practice/rhythm";
 import { readingPreset } from "~/reading/presets";
-import { readingSpecOf } from "~/reading/spec";
+import { applySpotMap, parseReadingSet, readingSetSpecSchema } from "~/reading/spec";
 import { builtinTune } from "~/tunes/builtin";
 import { DEMO_SCHOOL as S } from "./school";
 
@@ -40,8 +40,10 @@ interface Material {
 
 /** `map` is the class's home-spot map for fifth position (its own, or the default one). */
 function presetMaterial(id: string, map: SpotMap): Material {
-  const spec = readingSpecOf(readingPreset(id)!.spec);
-  return { source: `preset:${id}`, keyFifths: spec.keyFifths, position: spec.position, notes: setOrder(onClassMap(buildPool(spec), map)) };
+  const reading = parseReadingSet(readingSetSpecSchema, readingPreset(id)!.spec);
+  if (!reading.ok) throw new Error(`Ready-made set ${id} does not parse.`);
+  const { spec, pool } = reading;
+  return { source: `preset:${id}`, keyFifths: spec.keyFifths, position: spec.position, notes: setOrder(applySpotMap(pool, map, spec.frets)) };
 }
 
 function tuneMaterial(id: string, map: SpotMap): Material {

@@ -25,7 +25,10 @@ describe("cleanNickname", () => {
     ["x".repeat(NICKNAME_MAX + 1), /at most 20 characters; this one has 21/],
     ["Sam 🎸", /letters, numbers, spaces/],
     ["<b>Sam</b>", /letters, numbers, spaces/],
-    ["Sam\u0000", /letters, numbers, spaces/],
+    ["Sam\u0000", /control characters/],
+    ["Sam\u200B", /invisible characters/],
+    ["\u202EmaS", /text-direction control/],
+    ["Sa\u0301\u0302\u0303\u0304\u0305m", /accent marks/],
     ["idiot", /friendlier/],
     ["Big IDIOT", /friendlier/],
     ["1d10t", /friendlier/],
@@ -49,6 +52,9 @@ describe("uniqueNickname", () => {
     ["Sam 2", ["Sam 2"], "Sam 2 2"],
     ["x".repeat(20), ["x".repeat(20)], `${"x".repeat(18)} 2`],
     ["abcdefghijklmnopq rs", ["abcdefghijklmnopq rs"], "abcdefghijklmnopq 2"],
+    ["\u0410na", ["Ana"], "\u0410na 2"], // Cyrillic А looks like Latin A: the same name on the stage
+    ["Ana", ["\u0410n\u0430"], "Ana 2"],
+    ["Ana", ["Anna"], "Ana"],
   ])("%j among %j → %j", (nickname, taken, expected) => {
     const result = uniqueNickname(nickname, taken);
     expect(result).toBe(expected);

@@ -1,10 +1,13 @@
 /**
  * Nicknames: students are often minors and may play under a nickname only, so this is the one
- * piece of identity a room holds. Rules: trimmed, inner spaces collapsed, 2–20 characters
- * (counted as code points after NFC), letters/digits/spaces and - _ . ' only, no word from a
- * short list of insults, and unique within the room ("Sam", "Sam 2", "Sam 3").
+ * piece of identity a room holds. Rules: a clean name (~/lib/names: NFC, no invisible or
+ * direction characters, no stacked marks), 2–20 characters (code points), letters/digits/spaces
+ * and - _ . ' only, no word from a short list of insults, and unique within the room ("Sam",
+ * "Sam 2", "Sam 3"), where names that look alike ("Ana" and Cyrillic "Аna") count as the same.
  * The word list is deliberately small and mild; the teacher can still remove a player.
  */
+
+import { cleanName, skeleton } from "~/lib/names";
 
 export const NICKNAME_MIN = 2;
 export const NICKNAME_MAX = 20;
@@ -19,9 +22,10 @@ const ALLOWED = /^[\p{L}\p{M}\p{N} \-_.']+$/u;
 export type NicknameResult = { ok: true; nickname: string } | { ok: false; message: string };
 
 export function cleanNickname(raw: string): NicknameResult {
-  const nickname = raw.normalize("NFC").trim().replace(/\s+/gu, " ");
+  const clean = cleanName(raw, { what: "a nickname", min: NICKNAME_MIN, max: Infinity });
+  if (!clean.ok) return clean;
+  const nickname = clean.name;
   const length = [...nickname].length;
-  if (length < NICKNAME_MIN) return { ok: false, message: `A nickname needs at least ${NICKNAME_MIN} characters.` };
   if (length > NICKNAME_MAX) return { ok: false, message: `A nickname can have at most ${NICKNAME_MAX} characters; this one has ${length}.` };
   if (!ALLOWED.test(nickname)) return { ok: false, message: "Use letters, numbers, spaces and - _ . ' only." };
   if (containsBlockedWord(nickname)) return { ok: false, message: "Please choose a friendlier nickname." };
@@ -34,17 +38,17 @@ function containsBlockedWord(nickname: string): boolean {
 }
 
 /**
- * Makes a clean nickname unique among `taken` (compared case-insensitively, since "sam" and
- * "Sam" look the same on the stage) by adding the lowest free number, shortening the base
- * so the result still fits NICKNAME_MAX.
+ * Makes a clean nickname unique among `taken` (compared by skeleton, since "sam", "Sam" and a
+ * Cyrillic "Ѕam" look the same on the stage) by adding the lowest free number, shortening the
+ * base so the result still fits NICKNAME_MAX.
  */
 export function uniqueNickname(nickname: string, taken: readonly string[]): string {
-  const used = new Set(taken.map((t) => t.toLocaleLowerCase()));
-  if (!used.has(nickname.toLocaleLowerCase())) return nickname;
+  const used = new Set(taken.map(skeleton));
+  if (!used.has(skeleton(nickname))) return nickname;
   for (let n = 2; ; n++) {
     const suffix = ` ${n}`;
     const base = [...nickname].slice(0, NICKNAME_MAX - suffix.length).join("").trimEnd();
     const candidate = base + suffix;
-    if (!used.has(candidate.toLocaleLowerCase())) return candidate;
+    if (!used.has(skeleton(candidate))) return candidate;
   }
 }

@@ -33,8 +33,8 @@ describe("parseClientMessage: good messages", () => {
     ],
     [
       "player hello with a seat token",
-      { type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: "KMNPRT", seat: SEAT },
-      { type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: "KMNPRT", seat: SEAT },
+      { type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: "KMNPRT", seatToken: SEAT },
+      { type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: "KMNPRT", seatToken: SEAT },
     ],
     ["join", { type: "join", room: "KMN PRT", nickname: " Sam " }, { type: "join", room: "KMNPRT", nickname: " Sam " }],
     ["ping", { type: "ping", t0: 1234.5 }, { type: "ping", t0: 1234.5 }],
@@ -145,7 +145,8 @@ describe("parseServerMessage", () => {
   it.each<[string, unknown]>([
     ["pong", { type: "pong", t0: 1, t1: 2, t2: 3 }],
     ["refused answer", { type: "answer-ack", promptId: "p1", accepted: false, code: "too-late", message: "Time was up." }],
-    ["paused", { type: "paused" }],
+    ["paused", { type: "paused", phase: "paused", pausedFrom: "reveal", at: 5 }],
+    ["resumed", { type: "resumed", phase: "reveal" }],
   ])("accepts %s", (_, message) => {
     expect(parseServerMessage(JSON.stringify(message))).toEqual({ ok: true, message });
   });
@@ -154,6 +155,8 @@ describe("parseServerMessage", () => {
     ["nonsense", "%%"],
     ["unknown type", '{"type":"hello"}'],
     ["accepted answer without points", '{"type":"answer-ack","promptId":"p1","accepted":true}'],
+    ["paused without the phase it paused in", '{"type":"paused","phase":"paused","at":5}'],
+    ["a phase that is not one", '{"type":"resumed","phase":"lunch"}'],
   ])("refuses %s", (_, raw) => {
     expect(parseServerMessage(raw).ok).toBe(false);
   });

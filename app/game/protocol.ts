@@ -8,7 +8,7 @@ import { MISTAKE_LABELS, type MistakeKind } from "~/music/mistakes";
 import { MAX_FRETS } from "~/music/tuning";
 import { isRoomCode, normaliseRoomCode } from "./roomCode";
 
-export const PROTOCOL_VERSION = 1;
+export const PROTOCOL_VERSION = 2;
 /** Largest client→server message, in UTF-8 bytes. A real pad message is under 300 bytes. */
 export const MAX_MESSAGE_BYTES = 4096;
 /** Per socket token bucket: bursts of 20, refilled at 8 messages a second. */
@@ -27,6 +27,9 @@ export type Mode = (typeof MODES)[number];
 
 export const PHASES = ["lobby", "prompt", "reveal", "standings", "paused", "ended"] as const;
 export type Phase = (typeof PHASES)[number];
+/** The phases a round can be paused in. */
+export const PAUSABLE = ["prompt", "reveal", "standings"] as const;
+export type Pausable = (typeof PAUSABLE)[number];
 
 export const HOST_ACTIONS = ["start", "pause", "resume", "skip", "next", "end", "lock", "unlock"] as const;
 export type HostAction = (typeof HOST_ACTIONS)[number];
@@ -92,7 +95,7 @@ const msg = <T extends string, S extends z.ZodRawShape>(type: T, shape: S) => z.
 export const clientMessageSchema = z.discriminatedUnion("type", [
   z.discriminatedUnion("role", [
     msg("hello", { protocol: z.int(), role: z.literal("host"), room: roomCode, hostKey: z.string().min(16).max(128) }),
-    msg("hello", { protocol: z.int(), role: z.literal("player"), room: roomCode, seat: z.string().min(16).max(64).optional() }),
+    msg("hello", { protocol: z.int(), role: z.literal("player"), room: roomCode, seatToken: z.string().min(16).max(64).optional() }),
   ]),
   msg("join", { room: roomCode, nickname: z.string().max(100) }),
   msg("ping", { t0: time, last: z.strictObject({ t0: time, t3: time }).optional() }),
@@ -104,7 +107,10 @@ export type ClientMessage = z.output<typeof clientMessageSchema>;
 
 // ---- server → client -----------------------------------------------------------------------
 
-const you = z.strictObject({ playerId: id, nickname: z.string(), seat: z.string(), team: z.int().nullable() });
+const you = z.strictObject({ playerId: id, nickname: z.string(), seatToken: z.string(), team: z.int().nullable() });
+/** The room's phase once the message is applied: every message that can change it carries it. */
+const phase = z.enum(PHASES);
+const pausedFrom = z.enum(PAUSABLE).nullable();
 const diagnosis = z.strictObject({ kind: z.enum(MISTAKE_KINDS), pitchRight: z.boolean(), semitones: z.int(), message: z.string() });
 const standingRow = z.strictObject({ playerId: id, nickname: z.string(), points: count, rank: z.int().positive(), team: z.int().nullable() });
 const streakRow = z.strictObject({ playerId: id, nickname: z.string(), longestStreak: count });
@@ -121,7 +127,7 @@ export const summarySchema = z.strictObject({
 });
 
 export const serverMessageSchema = z.discriminatedUnion("type", [
-  msg("welcome", { role: z.enum(["host", "player"]), room: z.string(), phase: z.enum(PHASES), serverTime: time, you: you.nullable() }),
+  msg("welcome", { role: z.enum(["host", "player"]), room: z.string(), phase, pausedFrom, serverTime: time, you: you.nullable() }),
   msg("error", { code: z.enum(Object.values(ERROR_CODES) as [ErrorCode, ...ErrorCode[]]), message: z.string() }),
   msg("pong", { t0: time, t1: time, t2: time }),
   msg("roster", {
@@ -130,6 +136,7 @@ export const serverMessageSchema = z.discriminatedUnion("type", [
     players: z.array(z.strictObject({ playerId: id, nickname: z.string(), online: z.boolean(), team: z.int().nullable() })),
   }),
   msg("prompt", {
+    phase,
     promptId: id,
     index: count,
     total: count,
@@ -159,6 +166,7 @@ export const serverMessageSchema = z.discriminatedUnion("type", [
   ]),
   msg("progress", { promptId: id, found: z.array(spotSchema), total: count }),
   msg("reveal", {
+    phase,
     promptId: id,
     written: z.string(),
     home: spotSchema,
@@ -168,10 +176,10 @@ export const serverMessageSchema = z.discriminatedUnion("type", [
     answered: count,
     of: count,
   }),
-  msg("standings", { final: z.boolean(), points: z.array(standingRow), streaks: z.array(streakRow), teams: z.array(teamRow) }),
-  msg("paused", {}),
-  msg("resumed", {}),
-  msg("ended", { reason: z.enum(["finished", "host"]), tuneName: z.string().nullable(), summaries: z.array(summarySchema) }),
+  msg("standings", { phase, final: z.boolean(), points: z.array(standingRow), streaks: z.array(streakRow), teams: z.array(teamRow) }),
+  msg("paused", { phase: z.literal("paused"), pausedFrom: z.enum(PAUSABLE), at: time }),
+  msg("resumed", { phase: z.enum(PAUSABLE) }),
+  msg("ended", { phase: z.literal("ended"), reason: z.enum(["finished", "host"]), tuneName: z.string().nullable(), summaries: z.array(summarySchema) }),
 ]);
 export type ServerMessage = z.output<typeof serverMessageSchema>;
 export type ServerMessageOf<T extends ServerMessage["type"]> = Extract<ServerMessage, { type: T }>;

@@ -3,7 +3,7 @@ import { spotsFor, type Spot } from "~/music/fretboard";
 import { seededRandom, type ReadingSpec } from "~/music/pools";
 import { resolveTuning } from "~/music/tuning";
 import { CLOSE_CODES, ERROR_CODES, HOST_ACTIONS, serverMessageSchema, type HostAction, type Phase, type ServerMessage } from "./protocol";
-import { initialState, LATE_GRACE_MS, playerBySeat, reduce, replay, snapshot, type Effect, type RoomEvent, type RoomRecord, type RoomState } from "./room";
+import { initialState, isStoreEffect, LATE_GRACE_MS, playerBySeatToken, reduce, replay, snapshot, type Answer, type Effect, type RoomEvent, type RoomRecord, type RoomState } from "./room";
 import { drawnPrompts, roomConfig, tunePrompts, type PromptNote, type RoomConfig } from "./roomConfig";
 import { playerSummaries } from "./standings";
 
@@ -35,6 +35,8 @@ function deepFreeze(value: unknown): void {
 class Room {
   state: RoomState;
   records: RoomRecord[] = [];
+  /** Answers the steps asked to store, in order. */
+  stored: Answer[] = [];
   effects: Effect[] = [];
   now = T0;
 
@@ -48,18 +50,22 @@ class Room {
     deepFreeze(this.state);
     const step = reduce(this.state, event, leadMs === undefined ? { now: at } : { now: at, leadMs });
     for (const e of step.effects) {
-      if (e.kind === "persist") this.records.push(e.record);
+      if (e.kind === "store-event") this.records.push(e.record);
+      if (e.kind === "store-answer") this.stored.push(e.answer);
       if (e.kind === "send") serverMessageSchema.parse(e.message);
     }
-    expect(step.effects.filter((e) => e.kind === "persist").length).toBeLessThanOrEqual(1);
-    if (step.effects.some((e) => e.kind === "persist")) expect(step.effects[0]!.kind).toBe("persist");
+    expect(step.effects.filter((e) => e.kind === "store-event").length).toBeLessThanOrEqual(1);
+    // Writes come first, led by the record; none without one.
+    const writes = step.effects.filter(isStoreEffect);
+    if (writes.length > 0) expect(writes.map((e) => e.kind === "store-event")).toEqual([true, ...writes.slice(1).map(() => false)]);
+    expect(step.effects.slice(0, writes.length)).toEqual(writes);
     this.state = step.state;
     this.effects = step.effects;
     return step.effects;
   }
 
   join(id: string, nickname = id, at = this.now) {
-    return this.do({ type: "join", playerId: id, seat: `seat-${id}-0123456789abcdef`, nickname }, at);
+    return this.do({ type: "join", playerId: id, seatToken: `seat-${id}-0123456789abcdef`, nickname }, at);
   }
   host(action: HostAction, at = this.now, priorPoints?: Record<string, number>) {
     return this.do(priorPoints ? { type: "host", action, priorPoints } : { type: "host", action }, at);
@@ -102,12 +108,12 @@ describe("lobby", () => {
   it("welcomes a player with a seat and tells everyone the roster", () => {
     const room = new Room(config());
     const effects = room.join("p1", "  Sam  ");
-    expect(effects[0]).toMatchObject({ kind: "persist" });
+    expect(effects[0]).toMatchObject({ kind: "store-event" });
     const welcome = room.sent("welcome")[0]!;
     expect(welcome.to).toEqual({ to: "player", playerId: "p1" });
-    expect(welcome.message).toMatchObject({ role: "player", phase: "lobby", you: { playerId: "p1", nickname: "Sam", seat: "seat-p1-0123456789abcdef", team: null } });
+    expect(welcome.message).toMatchObject({ role: "player", phase: "lobby", you: { playerId: "p1", nickname: "Sam", seatToken: "seat-p1-0123456789abcdef", team: null } });
     expect(room.sent("roster").map((e) => e.to)).toEqual([{ to: "everyone" }]);
-    expect(playerBySeat(room.state, "seat-p1-0123456789abcdef")?.id).toBe("p1");
+    expect(playerBySeatToken(room.state, "seat-p1-0123456789abcdef")?.id).toBe("p1");
   });
 
   it("de-duplicates nicknames and refuses bad ones without changing state", () => {
@@ -118,7 +124,7 @@ describe("lobby", () => {
     const before = room.state;
     const effects = room.join("p3", "x");
     expect(errorOf(effects)).toBe(ERROR_CODES.badNickname);
-    expect(effects.some((e) => e.kind === "persist")).toBe(false);
+    expect(effects.some(isStoreEffect)).toBe(false);
     expect(room.state).toBe(before);
   });
 
@@ -277,7 +283,7 @@ describe("phase transitions", () => {
     const effects = room.host(action);
     if (ok) {
       expect(errorOf(effects)).toBeUndefined();
-      expect(effects[0]).toMatchObject({ kind: "persist" });
+      expect(effects[0]).toMatchObject({ kind: "store-event" });
     } else {
       expect(errorOf(effects)).toBe(phase === "ended" ? ERROR_CODES.roomEnded : ERROR_CODES.wrongPhase);
       expect(room.state).toBe(before);
@@ -340,9 +346,55 @@ describe("phase transitions", () => {
     const effects = room.do({ type: "remove", playerId: "ben" });
     expect(effects).toContainEqual({ kind: "close", to: { to: "player", playerId: "ben" }, code: CLOSE_CODES.removed });
     expect(room.state.phase).toBe("reveal");
-    expect(playerBySeat(room.state, "seat-ben-0123456789abcdef")).toBeUndefined();
+    expect(playerBySeatToken(room.state, "seat-ben-0123456789abcdef")).toBeUndefined();
     expect(errorOf(room.do({ type: "online", playerId: "ben" }))).toBe(ERROR_CODES.unknownPlayer);
     expect(playerSummaries(room.state).map((s) => s.playerId)).toEqual(["ana"]);
+  });
+
+  it("every message that changes the phase carries it, and the stage's snapshot shows the same screen", () => {
+    const room = new Room(config({ standingsEvery: 2 }));
+    room.join("ana");
+    room.join("ben");
+    /** What a stage that folds the messages of a step (or of a snapshot) believes. */
+    const screen = (messages: ServerMessage[], from: { phase: Phase | null; pausedFrom: string | null; last: string | null }) =>
+      messages.reduce(
+        (view, m) => ({
+          phase: "phase" in m ? m.phase : view.phase,
+          pausedFrom: m.type === "paused" || m.type === "welcome" ? m.pausedFrom : m.type === "resumed" ? null : view.pausedFrom,
+          last: ["prompt", "reveal", "standings", "ended"].includes(m.type) ? m.type : view.last,
+        }),
+        from,
+      );
+    let live = screen(snapshot(room.state, { role: "host" }, room.now), { phase: null, pausedFrom: null, last: null });
+    const steps: (() => unknown)[] = [
+      () => room.host("start"),
+      () => room.host("pause"),
+      () => room.host("resume"),
+      () => room.tap("ana", home(room.note()), room.shown(100)),
+      () => room.tap("ben", home(room.note()), room.shown(200)),
+      () => room.host("pause"),
+      () => room.host("resume"),
+      () => room.host("next"),
+      () => room.host("skip"),
+      () => room.host("next"),
+      () => room.host("pause"),
+      () => room.host("resume"),
+      () => room.host("end"),
+    ];
+    const seen = new Set<string>();
+    for (const step of steps) {
+      step();
+      const toStage = room.sent().filter((e) => e.to.to !== "player").map((e) => e.message);
+      for (const m of toStage) if ("phase" in m) expect(m.phase).toBe(room.state.phase);
+      live = screen(toStage, live);
+      expect(live.phase).toBe(room.state.phase);
+      expect(live.pausedFrom).toBe(room.state.paused?.from ?? null);
+      // A reloaded stage: the snapshot alone gives the same phase and the same screen.
+      const reloaded = screen(snapshot(room.state, { role: "host" }, room.now), { phase: null, pausedFrom: null, last: null });
+      expect(reloaded).toEqual(live);
+      seen.add(room.state.phase === "paused" ? `paused in ${room.state.paused!.from}` : room.state.phase);
+    }
+    expect([...seen].sort()).toEqual(["ended", "paused in prompt", "paused in reveal", "paused in standings", "prompt", "reveal", "standings"]);
   });
 
   it("a reconnecting pad gets the prompt and its own answer back", () => {
@@ -351,7 +403,7 @@ describe("phase transitions", () => {
     room.do({ type: "offline", playerId: "ana" });
     room.do({ type: "online", playerId: "ana" });
     expect(room.sent().filter((e) => e.to.to === "player").map((e) => e.message.type)).toEqual(["welcome", "prompt", "answer-ack"]);
-    expect(snapshot(room.state, { role: "host" }, room.now).map((m) => m.type)).toEqual(["welcome", "roster", "prompt"]);
+    expect(snapshot(room.state, { role: "host" }, room.now).map((m) => m.type)).toEqual(["welcome", "roster", "prompt", "answered"]);
     expect(snapshot(room.state, { role: "player", playerId: null }, room.now)[0]).toMatchObject({ type: "welcome", you: null });
   });
 
@@ -528,6 +580,19 @@ describe("replay", () => {
     const cut = Math.floor(live.records.length / 2);
     const resumed = live.records.slice(cut).reduce((s, r) => reduce(s, r.event, r.env).state, replay(live.config, live.records.slice(0, cut)));
     expect(resumed).toEqual(live.state);
+  });
+
+  it("a step asks to store exactly the seats, answers and end it brought", () => {
+    const live = playMessyRoom(31, { mode: "teams", teams: { count: 2, balance: "points" } });
+    expect(live.stored).toEqual(live.state.answers);
+    const room = new Room(config());
+    expect(room.join("ana", "  Ana ").filter(isStoreEffect).slice(1)).toEqual([{ kind: "store-seat", playerId: "ana", nickname: "Ana" }]);
+    expect(room.join("ana2", "Ana").filter(isStoreEffect).slice(1)).toEqual([{ kind: "store-seat", playerId: "ana2", nickname: "Ana 2" }]);
+    room.host("start");
+    const tapped = room.tap("ana", home(room.note()), room.shown(500)).filter(isStoreEffect);
+    expect(tapped.map((e) => e.kind)).toEqual(["store-event", "store-answer"]);
+    expect(tapped[1]).toEqual({ kind: "store-answer", answer: room.state.answers[0], note: room.config.prompts[0] });
+    expect(room.host("end", room.now + 10).filter(isStoreEffect).slice(1)).toEqual([{ kind: "store-end", at: room.now }]);
   });
 
   it("refused events and idle ticks are not persisted", () => {

@@ -12,10 +12,11 @@
  * showAt, when answers are refused, and the open window from showAt to the deadline.
  *
  * Driving it: the hub turns every socket message, connect and disconnect into a RoomEvent, calls
- * reduce with the current server time, then carries out the effects in order — "persist" first
- * (append the record to the room's log in SQLite), then "send" and "close". It keeps one timer at
- * `wakeAt` and sends a "tick" when it fires. Everything the reducer decides depends only on
- * (state, event, env), so replaying the persisted records (replay()) rebuilds the same state —
+ * reduce with the current server time, then carries out the effects in order — the "store-…" ones
+ * first (what to write to SQLite: the record for the room's log, and the seat, answer or end it
+ * brought; app/rooms/store.server.ts turns them into rows), then "send" and "close". It keeps one
+ * timer at `wakeAt` and sends a "tick" when it fires. Everything the reducer decides depends only
+ * on (state, event, env), so replaying the stored records (replay()) rebuilds the same state —
  * same scores, same streaks — after a crash.
  */
 import { spotsFor, type Spot } from "~/music/fretboard";
@@ -29,6 +30,7 @@ import {
   type CloseCode,
   type ErrorCode,
   type HostAction,
+  type Pausable,
   type Phase,
   type ServerMessage,
   type ServerMessageOf,
@@ -46,7 +48,7 @@ export interface Player {
   id: string;
   nickname: string;
   /** Bearer secret that lets this phone take its seat back after a reconnect. */
-  seat: string;
+  seatToken: string;
   online: boolean;
   removed: boolean;
   team: number | null;
@@ -94,7 +96,7 @@ export interface RoomState {
   answers: Answer[];
   run: PromptRun | null;
   phaseSince: number;
-  paused: { from: "prompt" | "reveal" | "standings"; at: number } | null;
+  paused: { from: Pausable; at: number } | null;
   ended: "finished" | "host" | null;
 }
 
@@ -105,7 +107,7 @@ export function initialState(config: RoomConfig): RoomState {
 // ---- inputs and outputs --------------------------------------------------------------------
 
 export type RoomEvent =
-  | { type: "join"; playerId: string; seat: string; nickname: string }
+  | { type: "join"; playerId: string; seatToken: string; nickname: string }
   | { type: "online"; playerId: string }
   | { type: "offline"; playerId: string }
   | { type: "answer"; playerId: string; promptId: string; spot: Spot; tapAt: number }
@@ -130,10 +132,19 @@ export interface RoomRecord {
 /** "everyone" = the stage and every connected pad of the room. */
 export type Audience = { to: "stage" } | { to: "player"; playerId: string } | { to: "everyone" };
 
-export type Effect =
-  | { kind: "persist"; record: RoomRecord }
-  | { kind: "send"; to: Audience; message: ServerMessage }
-  | { kind: "close"; to: Audience; code: CloseCode };
+/** What a step writes: its record for the room's log, then the rows beside the log that it brought. */
+export type StoreEffect =
+  | { kind: "store-event"; record: RoomRecord }
+  | { kind: "store-seat"; playerId: string; nickname: string }
+  | { kind: "store-answer"; answer: Answer; note: PromptNote }
+  | { kind: "store-end"; at: number };
+
+export type Effect = StoreEffect | { kind: "send"; to: Audience; message: ServerMessage } | { kind: "close"; to: Audience; code: CloseCode };
+
+/** The effects the hub carries out itself: messages and closes. */
+export type Delivery = Exclude<Effect, StoreEffect>;
+
+export const isStoreEffect = (e: Effect): e is StoreEffect => e.kind.startsWith("store-");
 
 export interface Step {
   state: RoomState;
@@ -154,6 +165,8 @@ interface Ctx {
   env: RoomEnv;
   out: Effect[];
   send: (to: Audience, message: ServerMessage) => void;
+  /** Rows this step writes beside its record; only accepted events add any. */
+  writes: StoreEffect[];
   /** Players already copied in this step (see own()). */
   owned: Set<Player>;
 }
@@ -161,14 +174,14 @@ interface Ctx {
 export function reduce(state: RoomState, event: RoomEvent, env: RoomEnv): Step {
   const s: RoomState = { ...state, players: [...state.players], run: state.run && { ...state.run } };
   const out: Effect[] = [];
-  const ctx: Ctx = { s, env, out, send: (to, message) => out.push({ kind: "send", to, message }), owned: new Set() };
+  const ctx: Ctx = { s, env, out, send: (to, message) => out.push({ kind: "send", to, message }), writes: [], owned: new Set() };
   const timed = applyDue(ctx);
   const accepted = handle(ctx, event);
   if (!timed && (!accepted || event.type === "tick")) return { state, effects: out, wakeAt: wakeAt(state) };
-  return { state: s, effects: [{ kind: "persist", record: { env, event } }, ...out], wakeAt: wakeAt(s) };
+  return { state: s, effects: [{ kind: "store-event", record: { env, event } }, ...ctx.writes, ...out], wakeAt: wakeAt(s) };
 }
 
-/** Rebuilds a room from its config and persisted records (then send { type: "restart" }). */
+/** Rebuilds a room from its config and stored records (then send { type: "restart" }). */
 export function replay(config: RoomConfig, records: readonly RoomRecord[]): RoomState {
   return records.reduce((state, r) => reduce(state, r.event, r.env).state, initialState(config));
 }
@@ -240,7 +253,8 @@ function join(ctx: Ctx, e: Extract<RoomEvent, { type: "join" }>): boolean {
   if (!clean.ok) return refuse(ctx, to, ERROR_CODES.badNickname, clean.message);
   const nickname = uniqueNickname(clean.nickname, active(s).map((p) => p.nickname));
   const team = s.config.teams !== null && s.phase !== "lobby" ? smallestTeam(s, s.config.teams.count) : null;
-  s.players.push({ id: e.playerId, nickname, seat: e.seat, online: true, removed: false, team, points: 0, streak: 0, longestStreak: 0 });
+  s.players.push({ id: e.playerId, nickname, seatToken: e.seatToken, online: true, removed: false, team, points: 0, streak: 0, longestStreak: 0 });
+  ctx.writes.push({ kind: "store-seat", playerId: e.playerId, nickname });
   catchUp(ctx, e.playerId);
   return true;
 }
@@ -277,9 +291,9 @@ function remove(ctx: Ctx, playerId: string): boolean {
   return true;
 }
 
-/** The seat a reconnecting phone presents; removed players have none. */
-export function playerBySeat(s: RoomState, seat: string): Player | undefined {
-  return s.players.find((p) => p.seat === seat && !p.removed);
+/** The player whose seat token a reconnecting phone presents; removed players have none. */
+export function playerBySeatToken(s: RoomState, seatToken: string): Player | undefined {
+  return s.players.find((p) => p.seatToken === seatToken && !p.removed);
 }
 
 // ---- host ----------------------------------------------------------------------------------
@@ -298,7 +312,7 @@ function host(ctx: Ctx, action: HostAction, priorPoints: Record<string, number>)
     case "pause":
       if (s.phase !== "prompt" && s.phase !== "reveal" && s.phase !== "standings") return wrong("pause");
       pause(ctx);
-      ctx.send(EVERYONE, { type: "paused" });
+      ctx.send(EVERYONE, pausedMessage(s));
       return true;
     case "resume":
       if (s.phase !== "paused") return wrong("resume");
@@ -325,7 +339,7 @@ function host(ctx: Ctx, action: HostAction, priorPoints: Record<string, number>)
 
 function pause(ctx: Ctx): void {
   const { s } = ctx;
-  s.paused = { from: s.phase as "prompt" | "reveal" | "standings", at: ctx.env.now };
+  s.paused = { from: s.phase as Pausable, at: ctx.env.now };
   s.phase = "paused";
 }
 
@@ -336,7 +350,7 @@ function resume(ctx: Ctx): void {
   s.phase = paused.from;
   s.paused = null;
   s.phaseSince = env.now;
-  ctx.send(EVERYONE, { type: "resumed" });
+  ctx.send(EVERYONE, { type: "resumed", phase: paused.from });
   if (paused.from === "prompt") {
     const run = s.run!;
     run.creditedMs += Math.max(0, Math.min(paused.at, run.deadline) - run.showAt);
@@ -364,6 +378,7 @@ function end(ctx: Ctx, reason: "finished" | "host"): void {
   s.ended = reason;
   s.paused = null;
   s.phaseSince = ctx.env.now;
+  ctx.writes.push({ kind: "store-end", at: ctx.env.now });
   for (const message of endMessages(s, STAGE)) ctx.send(STAGE, message);
   for (const p of active(s)) for (const message of endMessages(s, player(p.id))) ctx.send(player(p.id), message);
   ctx.out.push({ kind: "close", to: EVERYONE, code: CLOSE_CODES.roomGone });
@@ -465,9 +480,10 @@ function answer(ctx: Ctx, e: Extract<RoomEvent, { type: "answer" }>): boolean {
   me.longestStreak = Math.max(me.longestStreak, me.streak);
   const record: Answer = { playerId: p.id, promptId: run.promptId, index: run.index, spot: e.spot, tapAt: e.tapAt, at: env.now, reactionMs, diagnosis, ...scored };
   s.answers = [...s.answers, record];
+  ctx.writes.push({ kind: "store-answer", answer: record, note: n });
 
   ctx.send(player(p.id), ackMessage(record, me));
-  ctx.send(STAGE, { type: "answered", promptId: run.promptId, count: answeredIds(s).size, of: active(s).length });
+  ctx.send(STAGE, answeredMessage(s));
   if (scored.found === "new") ctx.send(EVERYONE, progressMessage(s));
   closeIfDone(ctx);
   return true;
@@ -517,6 +533,7 @@ function promptMessage(s: RoomState): ServerMessageOf<"prompt"> {
   const n = note(s);
   return {
     type: "prompt",
+    phase: s.phase,
     promptId: run.promptId,
     index: run.index,
     total: s.config.prompts.length,
@@ -546,6 +563,10 @@ function ackMessage(a: Answer, p: Player): ServerMessageOf<"answer-ack"> {
   };
 }
 
+const answeredMessage = (s: RoomState): ServerMessageOf<"answered"> => ({ type: "answered", promptId: s.run!.promptId, count: answeredIds(s).size, of: active(s).length });
+
+const pausedMessage = (s: RoomState): ServerMessageOf<"paused"> => ({ type: "paused", phase: "paused", pausedFrom: s.paused!.from, at: s.paused!.at });
+
 function progressMessage(s: RoomState): ServerMessageOf<"progress"> {
   return { type: "progress", promptId: s.run!.promptId, found: s.run!.found, total: allSpots(s, note(s)).length };
 }
@@ -564,6 +585,7 @@ function revealMessage(s: RoomState): ServerMessageOf<"reveal"> {
   }
   return {
     type: "reveal",
+    phase: s.phase,
     promptId: run.promptId,
     written: n.written,
     home: { string: n.home.string, fret: n.home.fret },
@@ -578,12 +600,13 @@ function revealMessage(s: RoomState): ServerMessageOf<"reveal"> {
 /** Final standings, then the summaries: all of them for the stage, only their own for a player. */
 function endMessages(s: RoomState, to: Audience): ServerMessage[] {
   const summaries = playerSummaries(s).filter((x) => to.to !== "player" || x.playerId === to.playerId);
-  return [standings(s, true), { type: "ended", reason: s.ended!, tuneName: s.config.tuneName, summaries }];
+  return [standings(s, true), { type: "ended", phase: "ended", reason: s.ended!, tuneName: s.config.tuneName, summaries }];
 }
 
 /**
  * Everything a stage or pad needs on (re)connecting, starting with welcome: the roster, then what
- * is on screen now (the prompt and the player's own acks, the reveal, standings, pause, or the end).
+ * is on screen now — the prompt (with the stage's answered count and the player's own acks), the
+ * reveal beside its prompt, standings, pause, or the end — so a reloaded screen is the one it had.
  * A pad that has not joined yet passes playerId null.
  */
 export function snapshot(s: RoomState, who: { role: "host" } | { role: "player"; playerId: string | null }, now: number): ServerMessage[] {
@@ -593,18 +616,20 @@ export function snapshot(s: RoomState, who: { role: "host" } | { role: "player";
     role: who.role,
     room: s.config.code,
     phase: s.phase,
+    pausedFrom: s.paused?.from ?? null,
     serverTime: now,
-    you: p ? { playerId: p.id, nickname: p.nickname, seat: p.seat, team: p.team } : null,
+    you: p ? { playerId: p.id, nickname: p.nickname, seatToken: p.seatToken, team: p.team } : null,
   };
   const messages: ServerMessage[] = [welcome, roster(s)];
   const shown = s.phase === "paused" ? s.paused!.from : s.phase;
-  if (shown === "prompt") {
+  if (shown === "prompt" || shown === "reveal") {
     messages.push(promptMessage(s));
+    if (who.role === "host") messages.push(answeredMessage(s));
     if (fullNeck(s)) messages.push(progressMessage(s));
     if (p) for (const a of promptAnswers(s).filter((x) => x.playerId === p.id)) messages.push(ackMessage(a, p));
-  } else if (shown === "reveal") messages.push(revealMessage(s));
-  else if (shown === "standings") messages.push(standings(s, false));
+    if (shown === "reveal") messages.push(revealMessage(s));
+  } else if (shown === "standings") messages.push(standings(s, false));
   else if (shown === "ended") messages.push(...endMessages(s, who.role === "host" ? STAGE : player(p?.id ?? "")));
-  if (s.phase === "paused") messages.push({ type: "paused" });
+  if (s.phase === "paused") messages.push(pausedMessage(s));
   return messages;
 }

@@ -85,9 +85,14 @@ export function roomConfig(spec: ReadingSpec, settings: Settings, prompts: Promp
   return config;
 }
 
-/** Sprint, Full neck and Teams: a seeded draw from the reading set's pool. */
+/** Sprint, Full neck and Teams: a seeded draw from a reading set's pool, already built. */
+export function promptsFromPool(pool: PoolNote[], keyFifths: number, count: number, seed: number, weights?: Record<number, number>): PromptNote[] {
+  return drawPrompts(pool, count, seed, weights).map((note) => ({ ...note, keyFifths }));
+}
+
+/** As promptsFromPool, building the pool from the spec. */
 export function drawnPrompts(spec: ReadingSpec, count: number, seed: number, weights?: Record<number, number>): PromptNote[] {
-  return drawPrompts(buildPool(spec), count, seed, weights).map((note) => ({ ...note, keyFifths: spec.keyFifths }));
+  return promptsFromPool(buildPool(spec), spec.keyFifths, count, seed, weights);
 }
 
 /**

@@ -35,7 +35,8 @@ export const PARTIAL_SHARE = 0.5;
 /** right = full credit; partial = right pitch at another spot while "home spot only" is on. */
 export type Verdict = "right" | "partial" | "wrong";
 
-export function verdictOf(diagnosis: Pick<Diagnosis, "kind" | "pitchRight">, homeOnly: boolean): Verdict {
+/** Also solo practice's rule, over stored rows whose kind is plain text. */
+export function verdictOf(diagnosis: { kind: Diagnosis["kind"] | (string & {}); pitchRight: boolean }, homeOnly: boolean): Verdict {
   if (!diagnosis.pitchRight) return "wrong";
   return diagnosis.kind === "home-spot" || !homeOnly ? "right" : "partial";
 }

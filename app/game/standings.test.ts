@@ -3,7 +3,7 @@ import type { Answer, Player, RoomState } from "./room";
 import { playerSummaries, standings } from "./standings";
 
 const player = (id: string, points: number, longestStreak: number, team: number | null = null, removed = false): Player => ({
-  id, nickname: `Kid ${id}`, seat: `seat-${id}`, online: true, removed, team, points, streak: 0, longestStreak,
+  id, nickname: `Kid ${id}`, seatToken: `seat-${id}`, online: true, removed, team, points, streak: 0, longestStreak,
 });
 
 const answer = (playerId: string, reactionMs: number, verdict: Answer["verdict"]): Answer => ({

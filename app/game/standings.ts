@@ -42,6 +42,7 @@ export function standings(state: RoomState, final: boolean): ServerMessageOf<"st
     .sort((a, b) => b.points - a.points);
   return {
     type: "standings",
+    phase: state.phase,
     final,
     points: byPoints.map((p) => ({
       playerId: p.id,

@@ -28,5 +28,27 @@ describe("safeRedirect", () => {
     ["/\\evil.example", "/"],
     ["https://evil.example", "/"],
     [null, "/"],
-  ])("%s → %s", (to, expected) => expect(safeRedirect(to, "/")).toBe(expected));
+    [undefined, "/"],
+    ["", "/"],
+    ["/teach/classes/abc/review#notes", "/teach/classes/abc/review#notes"],
+    ["/%2F%2Fevil.example", "/"], // encoded slashes
+    ["/%2fevil.example", "/"],
+    ["/%5Cevil.example", "/"], // encoded backslash
+    ["/\t/evil.example", "/"], // a tab browsers drop, leaving //evil.example
+    ["/\n/evil.example", "/"],
+    ["/\u0000teach", "/"],
+    ["/%09/evil.example", "/"], // encoded control character
+    ["/ /evil.example", "/"],
+    ["\\\\evil.example", "/"],
+    ["/\\/evil.example", "/"],
+    ["javascript:alert(1)", "/"],
+    ["data:text/html,hi", "/"],
+    ["mailto:someone@example.org", "/"],
+    ["teach", "/"], // relative, not a path
+    ["/%", "/%"], // odd but harmless: stays on the site
+    ["/" + "a".repeat(3000), "/"],
+  ])("%j → %s", (to, expected) => expect(safeRedirect(to, "/")).toBe(expected));
+  it("refuses a file in place of a path", () => {
+    expect(safeRedirect(new File(["/teach"], "x.txt"), "/me")).toBe("/me");
+  });
 });

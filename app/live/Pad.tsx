@@ -16,7 +16,7 @@ import type { Spot } from "~/music/fretboard";
 import { MISTAKE_LABELS } from "~/music/mistakes";
 import { resolveTuning } from "~/music/tuning";
 import { Icon, MISTAKE_ICONS, StandingsBoard, useMedia, useNow } from "./parts";
-import { useRoomSocket } from "./useRoomSocket";
+import { screenOf, useRoomSocket, type LiveView } from "./useRoomSocket";
 
 export interface PadProps {
   code: string;
@@ -34,13 +34,14 @@ export function Pad(props: PadProps) {
   const short = useMedia("(max-height: 500px)");
   const [tapped, setTapped] = useState<{ promptId: string; spot: Spot } | null>(null);
   const me = state.welcome?.you ?? null;
+  const screen = screenOf(state);
   const prompt = state.prompt;
-  const now = useNow(prompt && !state.reveal ? 100 : 0);
+  const now = useNow(state.phase === "prompt" ? 100 : 0);
 
   if (state.closedReason) return <Notice tone="error">{state.closedReason}</Notice>;
   if (!me) return <JoinForm code={props.code} accountName={props.accountName} error={state.error} onJoin={join} connected={state.connection === "open"} />;
 
-  const open = prompt && !state.reveal && !state.paused && now >= toLocal(prompt.showAt) && now <= toLocal(prompt.deadline);
+  const open = state.phase === "prompt" && prompt && now >= toLocal(prompt.showAt) && now <= toLocal(prompt.deadline);
   const mine = tapped?.promptId === prompt?.promptId ? tapped : null;
   // Full neck allows a player to keep finding spots until a miss ends their turn.
   const fullNeck = prompt?.mode === "full-neck";
@@ -56,11 +57,11 @@ export function Pad(props: PadProps) {
   };
 
   const highlights = [
-    ...(state.reveal ? [{ ...state.reveal.home, kind: "home" as const }] : []),
+    ...(screen === "reveal" && state.reveal ? [{ ...state.reveal.home, kind: "home" as const }] : []),
     ...(mine ? [{ ...mine.spot, kind: state.ack ? (state.ack.diagnosis.pitchRight ? ("tapped-right" as const) : ("tapped-wrong" as const)) : ("tapped" as const) }] : []),
     ...(state.progress?.found.map((s) => ({ ...s, kind: "other" as const })) ?? []),
   ];
-  const ended = state.ended;
+  const ended = screen === "ended";
   const status = ended ? null : <Status state={state} open={Boolean(open)} waiting={Boolean(prompt && now < toLocal(prompt.showAt))} />;
 
   return (
@@ -77,7 +78,7 @@ export function Pad(props: PadProps) {
         <span className="ml-auto shrink-0 text-ink-soft">room {formatRoomCode(props.code)}</span>
       </div>
       {ended ? (
-        <Ended summary={ended.summaries.find((s) => s.playerId === me.playerId)} tuneName={ended.tuneName} />
+        state.ended && <Ended summary={state.ended.summaries.find((s) => s.playerId === me.playerId)} tuneName={state.ended.tuneName} />
       ) : (
         <>
           {short ? null : status}
@@ -92,7 +93,7 @@ export function Pad(props: PadProps) {
             size={short ? "page" : "pad"}
             label={`Your neck${leftHanded ? ", left-handed" : ""}, position ${props.position}; tap the home spot`}
           />
-          {state.standings && !state.reveal ? <StandingsBoard standings={state.standings} highlight={me.playerId} /> : null}
+          {screen === "standings" && state.standings ? <StandingsBoard standings={state.standings} highlight={me.playerId} /> : null}
         </>
       )}
       <div className="mt-auto flex flex-wrap items-center gap-3 border-t border-ink/10 pt-3">
@@ -111,16 +112,18 @@ export function Pad(props: PadProps) {
   );
 }
 
-function Status({ state, open, waiting }: { state: ReturnType<typeof useRoomSocket>["state"]; open: boolean; waiting: boolean }) {
+function Status({ state, open, waiting }: { state: LiveView; open: boolean; waiting: boolean }) {
   const reduce = useReducedMotion();
+  const screen = screenOf(state);
   const ack = state.ack;
-  if (state.paused)
+  if (state.phase === "paused")
     return (
       <Banner tone="info">
         <Icon name="pause" /> Paused: wait for the teacher to go on
       </Banner>
     );
-  if (ack && state.prompt && ack.promptId === state.prompt.promptId) {
+  // The verdict on this prompt's answer stays up through its reveal.
+  if ((screen === "prompt" || screen === "reveal") && ack && state.prompt && ack.promptId === state.prompt.promptId) {
     const right = ack.diagnosis.kind === "home-spot";
     return (
       <motion.div
@@ -157,10 +160,10 @@ function Status({ state, open, waiting }: { state: ReturnType<typeof useRoomSock
     );
   }
   if (state.error) return <Banner tone="error">✗ {state.error}</Banner>;
-  if (state.reveal) return <Banner tone="info">Time! The home spot is marked ✓ on your neck.</Banner>;
-  if (state.standings) return <Banner tone="info">Standings are on the class screen.</Banner>;
-  if (waiting) return <Banner tone="info">Get ready… look up at the class screen</Banner>;
-  if (open) return <Banner tone="go">Find the note on the class screen and tap its home spot</Banner>;
+  if (screen === "reveal") return <Banner tone="info">Time! The home spot is marked ✓ on your neck.</Banner>;
+  if (screen === "standings") return <Banner tone="info">Standings are on the class screen.</Banner>;
+  if (screen === "prompt" && waiting) return <Banner tone="info">Get ready… look up at the class screen</Banner>;
+  if (screen === "prompt" && open) return <Banner tone="go">Find the note on the class screen and tap its home spot</Banner>;
   return <Banner tone="info">You're in. Watch the class screen.</Banner>;
 }
 

@@ -10,13 +10,14 @@ import { playSounding, soundUnlocked, unlockSound } from "~/components/sound";
 import { SoundControl } from "~/components/SoundControl";
 import { Staff } from "~/components/Staff";
 import { buttonClass } from "~/components/ui";
+import type { Phase, ServerMessage } from "~/game/protocol";
 import { formatRoomCode } from "~/game/roomCode";
 import { soundingMidi } from "~/music/fretboard";
 import { MISTAKE_LABELS } from "~/music/mistakes";
 import { displayPitch, parsePitch, pitchMidi } from "~/music/pitch";
 import { resolveTuning } from "~/music/tuning";
 import { Countdown, Icon, MISTAKE_ICONS, Offline, SecondsLeft, StandingsBoard, usePreviousOrder } from "./parts";
-import { useRoomSocket } from "./useRoomSocket";
+import { screenOf, useRoomSocket } from "./useRoomSocket";
 export interface StageProps {
   roomId: string;
   code: string;
@@ -27,15 +28,19 @@ export interface StageProps {
   tuning: string;
   frets: number;
   position: number;
+  /** An ended room's last screen, from its log (there is no live room left to connect to). */
+  finalScreen: ServerMessage[] | null;
 }
 
 export function Stage(props: StageProps) {
-  const { state, host, remove, toLocal } = useRoomSocket(props.code, { role: "host", hostKey: props.hostKey });
+  const { state, host, remove, toLocal } = useRoomSocket(props.code, { role: "host", hostKey: props.hostKey }, props.finalScreen);
   const tuning = useMemo(() => resolveTuning(props.tuning), [props.tuning]);
   const root = useRef<HTMLDivElement>(null);
-  const phase = state.welcome?.phase ?? "lobby";
   const players = state.roster?.players ?? [];
-  const shown = state.ended ? "ended" : state.reveal ? "reveal" : state.standings && !state.standings.final ? "standings" : state.prompt ? "prompt" : "lobby";
+  const screen = screenOf(state);
+  const paused = state.phase === "paused";
+  const frozenAt = state.pausedAt === null ? null : toLocal(state.pausedAt);
+  const reveal = screen === "reveal" ? state.reveal : null;
   const previousOrder = usePreviousOrder(state.standings);
 
   // The reveal sounds the note the class just read; the teacher's clicks on this page are the gesture that allows it.
@@ -54,12 +59,12 @@ export function Stage(props: StageProps) {
         <span className="text-xl text-ink-soft">
           {players.filter((p) => p.online).length} of {players.length} online
         </span>
-        {state.ended ? null : <ConnectionBadge connection={state.connection} />}
+        {screen === "ended" ? null : <ConnectionBadge connection={state.connection} />}
         <div className="ml-auto flex flex-wrap items-center gap-2">
           {/* The lobby has the full sound control; during the round the mute alone is enough. */}
-          {shown === "lobby" ? null : <SoundControl compact />}
+          {screen === "lobby" ? null : <SoundControl compact />}
           <FullScreenButton target={root} />
-          <HostControls shown={shown} paused={state.paused} locked={state.roster?.locked ?? false} onAction={host} phase={phase} />
+          {screen ? <HostControls screen={screen} paused={paused} locked={state.roster?.locked ?? false} onAction={host} /> : null}
         </div>
       </header>
       {[state.closedReason, state.error].filter(Boolean).map((problem) => (
@@ -68,13 +73,13 @@ export function Stage(props: StageProps) {
           {problem}
         </p>
       ))}
-      {state.paused ? (
+      {paused ? (
         <p className="flex items-center justify-center gap-3 rounded-2xl bg-sky/15 p-4 font-display text-5xl">
           <Icon name="pause" /> Paused
         </p>
       ) : null}
 
-      {shown === "lobby" ? (
+      {screen === "lobby" ? (
         <section className="grid gap-6 lg:grid-cols-[auto_1fr]">
           <div className="rounded-3xl bg-white p-6 text-center shadow">
             <p className="text-2xl">Join at</p>
@@ -119,16 +124,16 @@ export function Stage(props: StageProps) {
         </section>
       ) : null}
 
-      {(shown === "prompt" || shown === "reveal") && state.prompt ? (
+      {(screen === "prompt" || screen === "reveal") && state.prompt ? (
         <section className="space-y-4">
-          {shown === "prompt" ? <Countdown showAt={toLocal(state.prompt.showAt)} deadline={toLocal(state.prompt.deadline)} paused={state.paused} /> : null}
+          {screen === "prompt" ? <Countdown showAt={toLocal(state.prompt.showAt)} deadline={toLocal(state.prompt.deadline)} frozenAt={frozenAt} /> : null}
           {/* At the reveal the note shrinks and the class's answers join it in the top row, leaving room for the neck. */}
-          <div className={`grid gap-4 ${state.reveal ? "lg:grid-cols-[minmax(0,1fr)_17rem_22rem]" : "lg:grid-cols-[minmax(0,1fr)_22rem]"}`}>
+          <div className={`grid gap-4 ${reveal ? "lg:grid-cols-[minmax(0,1fr)_17rem_22rem]" : "lg:grid-cols-[minmax(0,1fr)_22rem]"}`}>
             <div data-written={state.prompt.written} className="flex items-center justify-center rounded-3xl bg-white px-4 shadow">
               <Staff
                 notes={[{ written: state.prompt.written, accidental: state.prompt.printedAccidental }]}
                 keyFifths={state.prompt.keyFifths}
-                size={shown === "reveal" ? "reveal" : "stage"}
+                size={reveal ? "reveal" : "stage"}
                 className="w-full"
               />
             </div>
@@ -140,14 +145,14 @@ export function Stage(props: StageProps) {
               </p>
               <p aria-live="polite" className="leading-none">
                 <span className="text-7xl font-semibold tabular-nums">
-                  {state.reveal ? `${state.reveal.answered}/${state.reveal.of}` : `${state.answered?.count ?? 0}/${state.answered?.of ?? players.length}`}
+                  {reveal ? `${reveal.answered}/${reveal.of}` : `${state.answered?.count ?? 0}/${state.answered?.of ?? players.length}`}
                 </span>{" "}
                 <span className="text-3xl">answered</span>
               </p>
-              {shown === "prompt" ? <SecondsLeft showAt={toLocal(state.prompt.showAt)} deadline={toLocal(state.prompt.deadline)} paused={state.paused} /> : null}
-              {state.reveal ? <HomeSpotWords reveal={state.reveal} /> : null}
+              {screen === "prompt" ? <SecondsLeft showAt={toLocal(state.prompt.showAt)} deadline={toLocal(state.prompt.deadline)} frozenAt={frozenAt} /> : null}
+              {reveal ? <HomeSpotWords reveal={reveal} /> : null}
             </aside>
-            {state.reveal ? <AnswerCounts counts={state.reveal.counts} /> : null}
+            {reveal ? <AnswerCounts counts={reveal.counts} /> : null}
           </div>
           {state.progress ? (
             <div>
@@ -166,13 +171,13 @@ export function Stage(props: StageProps) {
               </div>
             </div>
           ) : null}
-          {state.reveal ? <Reveal reveal={state.reveal} tuning={tuning} frets={props.frets} position={props.position} /> : null}
+          {reveal ? <Reveal reveal={reveal} tuning={tuning} frets={props.frets} position={props.position} /> : null}
         </section>
       ) : null}
 
-      {shown === "standings" && state.standings ? <StandingsBoard standings={state.standings} previousOrder={previousOrder} big /> : null}
+      {screen === "standings" && state.standings ? <StandingsBoard standings={state.standings} previousOrder={previousOrder} big /> : null}
 
-      {shown === "ended" && state.ended ? (
+      {screen === "ended" && state.ended ? (
         <section className="space-y-6">
           <h2 className="font-display text-5xl font-semibold">Round complete{state.ended.tuneName ? ` — the tune was “${state.ended.tuneName}”` : ""}</h2>
           {state.standings ? <StandingsBoard standings={state.standings} previousOrder={previousOrder} big /> : null}
@@ -273,24 +278,22 @@ function ConnectionBadge({ connection }: { connection: string }) {
 }
 
 function HostControls({
-  shown,
-  phase,
+  screen,
   paused,
   locked,
   onAction,
 }: {
-  shown: string;
-  phase: string;
+  screen: Exclude<Phase, "paused">;
   paused: boolean;
   locked: boolean;
   onAction: (a: "start" | "pause" | "resume" | "skip" | "next" | "end" | "lock" | "unlock") => void;
 }) {
   const [confirmEnd, setConfirmEnd] = useState(false);
-  useEffect(() => setConfirmEnd(false), [shown]);
-  if (shown === "ended") return null;
+  useEffect(() => setConfirmEnd(false), [screen]);
+  if (screen === "ended") return null;
   return (
     <div className="ml-auto flex flex-wrap gap-2">
-      {shown === "lobby" && phase === "lobby" ? (
+      {screen === "lobby" ? (
         <>
           <button className={buttonClass("ghost")} onClick={() => onAction(locked ? "unlock" : "lock")}>
             <Icon name={locked ? "lock" : "unlock"} /> {locked ? "Locked — unlock" : "Lock room"}
@@ -310,12 +313,12 @@ function HostControls({
               </>
             )}
           </button>
-          {shown === "prompt" ? (
+          {screen === "prompt" ? (
             <button className={buttonClass("ghost")} onClick={() => onAction("skip")}>
               <Icon name="skip" /> Skip
             </button>
           ) : null}
-          {shown === "reveal" || shown === "standings" ? (
+          {screen === "reveal" || screen === "standings" ? (
             <button className={buttonClass("teal", "text-xl")} onClick={() => onAction("next")}>
               Next ▶
             </button>

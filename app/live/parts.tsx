@@ -46,9 +46,15 @@ export function Offline() {
   );
 }
 
+/** The time on the local clock: ticking every `everyMs`, or held at `frozenAt` (a paused round). */
+function useClock(everyMs: number, frozenAt: number | null) {
+  const now = useNow(frozenAt === null ? everyMs : 0);
+  return frozenAt ?? now;
+}
+
 /** Whole seconds left to answer, counting from when the note shows (local clock). */
-export function SecondsLeft({ showAt, deadline, paused }: { showAt: number; deadline: number; paused: boolean }) {
-  const now = useNow(paused ? 0 : 200);
+export function SecondsLeft({ showAt, deadline, frozenAt }: { showAt: number; deadline: number; frozenAt: number | null }) {
+  const now = useClock(200, frozenAt);
   const left = Math.ceil(Math.max(0, deadline - Math.max(now, showAt)) / 1000);
   return (
     <p className="font-display leading-none">
@@ -58,8 +64,8 @@ export function SecondsLeft({ showAt, deadline, paused }: { showAt: number; dead
 }
 
 /** A bar that empties from the moment the note shows until the deadline (local clock). */
-export function Countdown({ showAt, deadline, paused }: { showAt: number; deadline: number; paused: boolean }) {
-  const now = useNow(paused ? 0 : 100);
+export function Countdown({ showAt, deadline, frozenAt }: { showAt: number; deadline: number; frozenAt: number | null }) {
+  const now = useClock(100, frozenAt);
   const total = deadline - showAt;
   const left = Math.max(0, Math.min(total, deadline - now));
   const waiting = now < showAt;

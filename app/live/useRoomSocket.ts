@@ -1,7 +1,8 @@
 /**
  * The browser side of the room protocol (docs/protocol.md): one WebSocket for a stage or a pad,
  * clock sync by ping bursts, reconnect with back-off, and the seat token kept so a phone that
- * slept or lost Wi-Fi takes its own seat back.
+ * slept or lost Wi-Fi takes its own seat back. The room's phase comes with the messages that change
+ * it, so the stage and the pad show the screen the server is on, reloaded or not.
  */
 import { useCallback, useEffect, useReducer, useRef } from "react";
 import { addSample, emptyClock, estimate, type ClockState } from "~/game/clock";
@@ -14,6 +15,8 @@ import {
   PROTOCOL_VERSION,
   reconnectDelayMs,
   type HostAction,
+  type Pausable,
+  type Phase,
   type ServerMessage,
   type ServerMessageOf,
 } from "~/game/protocol";
@@ -26,6 +29,11 @@ export interface LiveView {
   /** Why the server closed us for good, in words for the screen. */
   closedReason: string | null;
   welcome: ServerMessageOf<"welcome"> | null;
+  /** The room's phase as the server last said; null until the first welcome. */
+  phase: Phase | null;
+  /** While paused: the phase whose screen stays up, and when the round paused (server time). */
+  pausedFrom: Pausable | null;
+  pausedAt: number | null;
   roster: ServerMessageOf<"roster"> | null;
   prompt: ServerMessageOf<"prompt"> | null;
   answered: ServerMessageOf<"answered"> | null;
@@ -34,7 +42,6 @@ export interface LiveView {
   reveal: ServerMessageOf<"reveal"> | null;
   standings: ServerMessageOf<"standings"> | null;
   ended: ServerMessageOf<"ended"> | null;
-  paused: boolean;
   error: string | null;
   /** Server time − local time, once measured. */
   offsetMs: number;
@@ -44,6 +51,9 @@ const initial: LiveView = {
   connection: "connecting",
   closedReason: null,
   welcome: null,
+  phase: null,
+  pausedFrom: null,
+  pausedAt: null,
   roster: null,
   prompt: null,
   answered: null,
@@ -52,7 +62,6 @@ const initial: LiveView = {
   reveal: null,
   standings: null,
   ended: null,
-  paused: false,
   error: null,
   offsetMs: 0,
 };
@@ -70,9 +79,16 @@ function view(state: LiveView, action: Action): LiveView {
   }
   if (action.type === "offset") return { ...state, offsetMs: action.offsetMs };
   const m = action.message;
+  const next = content(state, m);
+  return "phase" in m ? { ...next, phase: m.phase } : next;
+}
+
+/** What a message brings besides the phase. */
+function content(state: LiveView, m: ServerMessage): LiveView {
   switch (m.type) {
     case "welcome":
-      return { ...state, welcome: m, error: null, paused: false, ended: null };
+      // The screen's messages follow: nothing from before the (re)connect is kept.
+      return { ...initial, connection: state.connection, closedReason: state.closedReason, offsetMs: state.offsetMs, roster: state.roster, welcome: m, pausedFrom: m.pausedFrom };
     case "roster":
       return { ...state, roster: m };
     case "prompt":
@@ -92,9 +108,9 @@ function view(state: LiveView, action: Action): LiveView {
       // Standings replace the reveal on screen.
       return { ...state, standings: m, reveal: null };
     case "paused":
-      return { ...state, paused: true };
+      return { ...state, pausedFrom: m.pausedFrom, pausedAt: m.at };
     case "resumed":
-      return { ...state, paused: false };
+      return { ...state, pausedFrom: null, pausedAt: null };
     case "ended":
       return { ...state, ended: m };
     case "error":
@@ -104,6 +120,9 @@ function view(state: LiveView, action: Action): LiveView {
   }
 }
 
+/** The screen to show: the phase's own, or while paused the one it paused on (under a pause notice). Null before the first welcome. */
+export const screenOf = (view: LiveView): Exclude<Phase, "paused"> | null => (view.phase === "paused" ? view.pausedFrom : view.phase);
+
 const FINAL_CLOSES: Record<number, string> = {
   [CLOSE_CODES.badVersion]: "This page is out of date. Reload it.",
   [CLOSE_CODES.unauthorised]: "This stage is not allowed to run the room.",
@@ -112,10 +131,14 @@ const FINAL_CLOSES: Record<number, string> = {
   [CLOSE_CODES.replaced]: "This seat is now open on another screen.",
 };
 
-export const seatKey = (code: string) => `fretcall-seat-${code}`;
+/** Where a pad keeps its seat token (the key predates the name; changing it would lose seats). */
+export const seatTokenKey = (code: string) => `fretcall-seat-${code}`;
 
-export function useRoomSocket(code: string, who: Who) {
-  const [state, dispatch] = useReducer(view, initial);
+/** `settled`: the messages of a room that has ended, shown as they are, with no socket. */
+export function useRoomSocket(code: string, who: Who, settled: ServerMessage[] | null = null) {
+  const [state, dispatch] = useReducer(view, settled, (messages) =>
+    (messages ?? []).reduce<LiveView>((s, message) => view(s, { type: "message", message }), messages ? { ...initial, connection: "closed" } : initial),
+  );
   const ws = useRef<WebSocket | null>(null);
   const clock = useRef<ClockState>(emptyClock());
   const offset = useRef(0);
@@ -123,6 +146,7 @@ export function useRoomSocket(code: string, who: Who) {
   whoRef.current = who;
 
   useEffect(() => {
+    if (settled) return;
     let stopped = false;
     let retry = 0;
     let timers: number[] = [];
@@ -141,12 +165,12 @@ export function useRoomSocket(code: string, who: Who) {
         retry = 0;
         dispatch({ type: "connection", connection: "open" });
         const w = whoRef.current;
-        const seat = w.role === "player" ? (localStorage.getItem(seatKey(code)) ?? undefined) : undefined;
+        const seatToken = w.role === "player" ? (localStorage.getItem(seatTokenKey(code)) ?? undefined) : undefined;
         socket.send(
           JSON.stringify(
             w.role === "host"
               ? { type: "hello", protocol: PROTOCOL_VERSION, role: "host", room: code, hostKey: w.hostKey }
-              : { type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: code, ...(seat ? { seat } : {}) },
+              : { type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: code, ...(seatToken ? { seatToken } : {}) },
           ),
         );
         for (let i = 0; i < PING_BURST; i++) timers.push(window.setTimeout(ping, i * PING_BURST_GAP_MS));
@@ -167,8 +191,8 @@ export function useRoomSocket(code: string, who: Who) {
           }
           return;
         }
-        if (m.type === "welcome" && m.you) localStorage.setItem(seatKey(code), m.you.seat);
-        if (m.type === "error" && m.code === "unknown-player") localStorage.removeItem(seatKey(code));
+        if (m.type === "welcome" && m.you) localStorage.setItem(seatTokenKey(code), m.you.seatToken);
+        if (m.type === "error" && m.code === "unknown-player") localStorage.removeItem(seatTokenKey(code));
         dispatch({ type: "message", message: m });
       };
       socket.onclose = (event) => {
@@ -177,7 +201,7 @@ export function useRoomSocket(code: string, who: Who) {
         if (stopped) return;
         const final = FINAL_CLOSES[event.code];
         if (final) {
-          if (event.code === CLOSE_CODES.removed) localStorage.removeItem(seatKey(code));
+          if (event.code === CLOSE_CODES.removed) localStorage.removeItem(seatTokenKey(code));
           dispatch({ type: "connection", connection: "closed", reason: final });
           return;
         }

@@ -5,6 +5,8 @@ import { join } from "node:path";
 export interface CapturedMail {
   id: string;
   receivedAt: string;
+  /** The school the message was sent for (its header), or null for system mail. */
+  school: string | null;
   from: string;
   to: string[];
   subject: string;
@@ -23,4 +25,9 @@ export async function readOutbox(dir: string): Promise<CapturedMail[]> {
     names.map(async (n) => JSON.parse(await readFile(join(dir, n), "utf8")) as CapturedMail),
   );
   return mails.sort((a, b) => b.receivedAt.localeCompare(a.receivedAt) || b.id.localeCompare(a.id));
+}
+
+/** What one school's admin may see: mail sent for their school, never system mail or another school's. */
+export async function schoolOutbox(dir: string, orgId: string): Promise<CapturedMail[]> {
+  return (await readOutbox(dir)).filter((m) => m.school === orgId);
 }

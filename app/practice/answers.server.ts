@@ -1,9 +1,9 @@
 // Storing and reading solo practice answers. The server decides: each answer is diagnosed again from the written
 // note and the tapped spot against the home-spot map the server chooses; a batch with any bad answer stores nothing.
-import { and, desc, eq, gte, inArray } from "drizzle-orm";
+import { and, desc, eq, gte } from "drizzle-orm";
 import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
-import { memberships, practiceAnswers, users } from "~/db/schema";
+import { memberships, practiceAnswers } from "~/db/schema";
 import { checkSpot } from "~/music/fretboard";
 import { diagnose } from "~/music/mistakes";
 import { displayPitch, MusicError, parsePitch } from "~/music/pitch";
@@ -126,25 +126,6 @@ export async function recordPracticeAnswers(db: Db, user: SessionUser, body: unk
       results: checkedRows.map(({ row, message }) => ({ clientId: row.clientId, kind: row.kind, pitchRight: row.pitchRight, message, duplicate: !fresh.has(row.clientId) })),
     },
   };
-}
-
-/**
- * Whether `viewer` may read `studentId`'s practice: the student themself, a teacher of one of their classes, or an
- * admin of their school. The same rule as the teacher's pages; anyone else is told nothing (404).
- */
-export async function mayReadPractice(db: Db, viewer: SessionUser, studentId: string): Promise<boolean> {
-  if (viewer.id === studentId) return true;
-  const [student] = await db.select({ orgId: users.orgId, role: users.role }).from(users).where(eq(users.id, studentId));
-  if (!student || student.role !== "student") return false;
-  if (viewer.role === "admin") return student.orgId === viewer.orgId;
-  if (viewer.role !== "teacher") return false;
-  const theirs = db.select({ classId: memberships.classId }).from(memberships).where(eq(memberships.userId, studentId));
-  const [shared] = await db
-    .select({ classId: memberships.classId })
-    .from(memberships)
-    .where(and(eq(memberships.userId, viewer.id), eq(memberships.role, "teacher"), inArray(memberships.classId, theirs)))
-    .limit(1);
-  return Boolean(shared);
 }
 
 export const MAX_READ = 2000;

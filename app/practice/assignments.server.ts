@@ -8,7 +8,7 @@ import type { Db } from "~/db/client.server";
 import { assignments, assignmentTargets, classes, memberships, practiceAnswers, readingSets, tunes, users } from "~/db/schema";
 import { READING_PRESETS, readingPreset } from "~/reading/presets";
 import { setsFor } from "~/reading/sets.server";
-import { readingSetSpecSchema, describeReadingSet, type ReadingSetSpec } from "~/reading/spec";
+import { parseReadingSet, readingSetSpecSchema, describeReadingSet, type ParsedReadingSet } from "~/reading/spec";
 import { BUILTIN_TUNES, type Tune } from "~/tunes/builtin";
 import { practicePath, type MaterialKind, type MaterialRef } from "./assignmentForm";
 import type { OpenAssignment } from "./AssignmentParts";
@@ -41,22 +41,23 @@ export async function materialOptions(db: Db, user: SessionUser, classId: string
 
 /** What a student practises for an assignment, resolved; null when the set or tune has since been deleted. */
 export type Material =
-  | { kind: "set" | "preset"; id: string; name: string; spec: ReadingSetSpec }
+  | { kind: "set" | "preset"; id: string; name: string; reading: ParsedReadingSet }
   | { kind: "tune"; id: string; name: string; tune: Tune };
 
 /** A tune wherever it lives: built in, or uploaded by the school. */
 export async function resolveMaterial(db: Db, orgId: string, ref: MaterialRef): Promise<Material | null> {
   if (ref.kind === "preset") {
     const p = readingPreset(ref.id);
-    return p ? { kind: "preset", id: p.id, name: p.name, spec: p.spec } : null;
+    const reading = p && parseReadingSet(readingSetSpecSchema, p.spec);
+    return p && reading?.ok ? { kind: "preset", id: p.id, name: p.name, reading } : null;
   }
   if (ref.kind === "tune") {
     const t = await findTune(db, orgId, ref.id);
     return t ? { kind: "tune", id: t.id, name: t.title, tune: t } : null;
   }
   const [row] = await db.select().from(readingSets).where(and(eq(readingSets.id, ref.id), eq(readingSets.orgId, orgId)));
-  const spec = row ? readingSetSpecSchema.safeParse(row.spec) : undefined;
-  return row && spec?.success ? { kind: "set", id: row.id, name: row.name, spec: spec.data } : null;
+  const parsed = row && parseReadingSet(readingSetSpecSchema, row.spec);
+  return row && parsed?.ok ? { kind: "set", id: row.id, name: row.name, reading: parsed } : null;
 }
 
 export function materialRefOf(a: Pick<Assignment, "readingSetId" | "presetId" | "tuneId">): MaterialRef | null {

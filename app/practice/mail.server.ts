@@ -68,10 +68,10 @@ async function contextOf(db: Db, list: readonly { classId: string; createdBy: st
   const classIds = [...new Set(list.map((a) => a.classId))];
   const setters = [...new Set(list.flatMap((a) => (a.createdBy ? [a.createdBy] : [])))];
   const [classRows, setterRows] = await Promise.all([
-    classIds.length ? db.select({ id: classes.id, name: classes.name }).from(classes).where(inArray(classes.id, classIds)) : [],
+    classIds.length ? db.select({ id: classes.id, name: classes.name, orgId: classes.orgId }).from(classes).where(inArray(classes.id, classIds)) : [],
     setters.length ? db.select({ id: users.id, name: users.displayName }).from(users).where(inArray(users.id, setters)) : [],
   ]);
-  return { className: new Map(classRows.map((c) => [c.id, c.name])), setter: new Map(setterRows.map((u) => [u.id, u.name])) };
+  return { className: new Map(classRows.map((c) => [c.id, c.name])), orgOf: new Map(classRows.map((c) => [c.id, c.orgId])), setter: new Map(setterRows.map((u) => [u.id, u.name])) };
 }
 
 const materialLine = (v: AssignmentView) =>
@@ -96,6 +96,7 @@ export async function sendAssignmentNotices(db: Db, mailer: Mailer, now: number,
         mailer,
         { kind: "assignment-notice", subjectId: v.id, userId: s.userId },
         {
+          orgId: ctx.orgOf.get(v.classId) ?? null,
           to: s.email,
           subject: `New assignment: ${v.title}`,
           text: [
@@ -148,6 +149,7 @@ export async function sendDueReminders(db: Db, mailer: Mailer, now: number, base
         mailer,
         { kind: "assignment-reminder", subjectId: v.id, userId: s.userId },
         {
+          orgId: ctx.orgOf.get(v.classId) ?? null,
           to: s.email,
           subject: `Reminder: ${v.title} is due ${mailTime(v.dueAt)}`,
           text: [
@@ -234,15 +236,15 @@ export async function sendWeeklyDigests(db: Db, mailer: Mailer, now: number, bas
   const run: MailRun = { sent: 0, failed: 0 };
   const week = digestWeek(now);
   const rows = await db
-    .select({ userId: users.id, displayName: users.displayName, email: users.email, classId: classes.id, className: classes.name })
+    .select({ userId: users.id, orgId: users.orgId, displayName: users.displayName, email: users.email, classId: classes.id, className: classes.name })
     .from(memberships)
     .innerJoin(users, eq(users.id, memberships.userId))
     .innerJoin(classes, eq(classes.id, memberships.classId))
     .leftJoin(mailLog, and(eq(mailLog.kind, "weekly-digest"), eq(mailLog.subjectId, week.id), eq(mailLog.userId, users.id)))
     .where(and(eq(memberships.role, "teacher"), isNotNull(users.email), isNull(mailLog.userId)));
-  const teachers = new Map<string, { displayName: string; email: string; classes: { id: string; name: string }[] }>();
+  const teachers = new Map<string, { orgId: string; displayName: string; email: string; classes: { id: string; name: string }[] }>();
   for (const r of rows) {
-    const t = teachers.get(r.userId) ?? { displayName: r.displayName, email: r.email!, classes: [] };
+    const t = teachers.get(r.userId) ?? { orgId: r.orgId, displayName: r.displayName, email: r.email!, classes: [] };
     t.classes.push({ id: r.classId, name: r.className });
     teachers.set(r.userId, t);
   }
@@ -259,6 +261,7 @@ export async function sendWeeklyDigests(db: Db, mailer: Mailer, now: number, bas
       mailer,
       { kind: "weekly-digest", subjectId: week.id, userId },
       {
+        orgId: t.orgId,
         to: t.email,
         subject: `Your classes this week: practice and assignments (${period})`,
         text: [`Hello ${t.displayName},`, "", `How your classes practised from ${period}.`, "", ...parts.flatMap((p) => [...p, ""])].join("\n"),

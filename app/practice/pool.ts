@@ -21,12 +21,6 @@ export function poolNoteOn(map: SpotMap, written: string, keyFifths: number): Po
   return { written: pitchToString(pitch), writtenMidi, home, ledger: ledgerLineCount(pitch) > 0, printedAccidental: printedAccidentalOf(pitch, keyFifths) };
 }
 
-/** A class's own map moves a note's home spot; notes the class map does not cover keep the default one. */
-export function onClassMap(pool: readonly PoolNote[], map: SpotMap | undefined): PoolNote[] {
-  if (!map) return [...pool];
-  return pool.map((n) => ({ ...n, home: homeSpotFor(map, n.writtenMidi) ?? n.home }));
-}
-
 const MIDDLE_LINE = staffPosition(parsePitch("B4"));
 
 /**

@@ -6,18 +6,17 @@ import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
 import { answers, assignments, practiceAnswers, roomPlayers, rooms, tunes } from "~/db/schema";
 import { MusicError } from "~/music/pitch";
-import { buildPool } from "~/music/pools";
 import { defaultSpotMap, positionWindow, type SpotMap } from "~/music/positions";
 import { MAX_FRETS, resolveTuning } from "~/music/tuning";
-import { READING_PRESETS, readingPreset } from "~/reading/presets";
-import { setFor, setsFor } from "~/reading/sets.server";
-import { readingSpecOf, type ReadingSetSpec } from "~/reading/spec";
+import { READING_PRESETS } from "~/reading/presets";
+import { readingSetFor, setsFor } from "~/reading/sets.server";
+import { applySpotMap, parseReadingSet, readingSetSpecSchema } from "~/reading/spec";
 import { classSpotMap } from "~/reading/spotMaps.server";
 import { classesFor } from "~/school/classes.server";
-import { BUILTIN_TUNES, type Tune } from "~/tunes/builtin";
+import { BUILTIN_TUNES } from "~/tunes/builtin";
 import type { PracticeAnswer } from "./adaptive";
-import { assignmentForStudent } from "./assignments.server";
-import { onClassMap, setOrder, tunePool, type PracticePlan } from "./pool";
+import { assignmentForStudent, resolveMaterial, type Material as AssignmentMaterial } from "./assignments.server";
+import { setOrder, tunePool, type PracticePlan } from "./pool";
 
 /** Built-in tunes are written for fifth position; a tune is practised there unless the student picks another. */
 export const TUNE_POSITION = 5;
@@ -43,10 +42,7 @@ export async function spotMapFor(db: Db, classId: string | null, position: numbe
   return own ? { map: own, fromClass: true } : { map: defaultSpotMap(position, resolveTuning(tuning), { frets: MAX_FRETS }), fromClass: false };
 }
 
-type Material =
-  | { kind: "set" | "preset"; id: string; name: string; spec: ReadingSetSpec }
-  | { kind: "tune"; id: string; name: string; tune: Tune }
-  | { kind: "position"; position: number };
+type Material = AssignmentMaterial | { kind: "position"; position: number };
 
 async function planOf(
   db: Db,
@@ -65,14 +61,15 @@ async function planOf(
       const plan = { source: `tune:${material.id}`, title: material.name, position, tuning: "standard", frets: 15, keyFifths: material.tune.keyFifths, homeOnly: true };
       return { ok: true, plan: { ...plan, ...common, classMap: fromClass, tuneId: material.id, notes: pool, outside } };
     }
-    const spec: ReadingSetSpec =
+    const reading =
       material.kind === "position"
-        ? { ...READING_PRESETS[0]!.spec, position: material.position, frets: Math.max(15, positionWindow(material.position).stretchHigh) }
-        : material.spec;
-    const engine = readingSpecOf(spec);
+        ? parseReadingSet(readingSetSpecSchema, { ...READING_PRESETS[0]!.spec, position: material.position, frets: Math.max(15, positionWindow(material.position).stretchHigh) })
+        : ({ ok: true, ...material.reading } as const);
+    if (!reading.ok) return { ok: false, status: 400, message: Object.values(reading.errors)[0] ?? "No notes to read in this position." };
+    const engine = reading.spec;
     const tuning = resolveTuning(engine.tuning).id;
     const { map, fromClass } = await spotMapFor(db, classId, engine.position, tuning);
-    const notes = setOrder(onClassMap(buildPool(engine), fromClass ? map : undefined));
+    const notes = setOrder(applySpotMap(reading.pool, fromClass ? map : undefined, engine.frets));
     const plan = {
       source: material.kind === "position" ? `position:${material.position}` : `${material.kind}:${material.id}`,
       title: material.kind === "position" ? `Position ${material.position}, naturals` : material.name,
@@ -80,7 +77,7 @@ async function planOf(
       tuning,
       frets: engine.frets,
       keyFifths: engine.keyFifths,
-      homeOnly: spec.homeOnly,
+      homeOnly: reading.set.homeOnly,
     };
     return { ok: true, plan: { ...plan, ...common, classMap: fromClass, tuneId: null, notes, outside: [] } };
   } catch (error) {
@@ -112,16 +109,17 @@ export async function practicePlan(db: Db, user: SessionUser, query: URLSearchPa
   }
   const setId = get("set");
   if (setId) {
-    const set = await setFor(db, user, setId);
-    if (!set) return { ok: false, status: 404, message: "No such reading set." };
-    if (!set.spec) return { ok: false, status: 400, message: "This reading set needs an edit by your teacher before it can be practised." };
-    return planOf(db, user, { kind: "set", id: set.id, name: set.name, spec: set.spec }, { classId: set.classId ?? classId });
+    const found = await readingSetFor(db, user, setId);
+    if (!found) return { ok: false, status: 404, message: "No such reading set." };
+    const { saved: set, reading } = found;
+    if (!reading) return { ok: false, status: 400, message: "This reading set needs an edit by your teacher before it can be practised." };
+    return planOf(db, user, { kind: "set", id: set.id, name: set.name, reading }, { classId: set.classId ?? classId });
   }
   const presetId = get("preset");
   if (presetId) {
-    const preset = readingPreset(presetId);
-    if (!preset) return { ok: false, status: 404, message: "No such ready-made reading set." };
-    return planOf(db, user, { kind: "preset", id: preset.id, name: preset.name, spec: preset.spec }, { classId });
+    const material = await resolveMaterial(db, user.orgId, { kind: "preset", id: presetId });
+    if (!material) return { ok: false, status: 404, message: "No such ready-made reading set." };
+    return planOf(db, user, material, { classId });
   }
   const tuneId = get("tune");
   if (tuneId) {

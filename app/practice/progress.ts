@@ -7,8 +7,8 @@
  * - **Which answers count**: only practice answers stored with this assignment's id (the student
  *   practised *this* assignment from its "Practise" link). Free practice of the same notes does not
  *   count, so a teacher can read the figures as "work done for this assignment".
- * - **Correct** = the class review's rule (`isCorrect`): the home spot always; another spot of the
- *   right pitch only when `homeOnly` is off. Assignments pass homeOnly = true, as solo practice
+ * - **Correct** = the live rounds' full-credit rule (`verdictOf` in game/scoring.ts): the home spot
+ *   always; another spot of the right pitch only when `homeOnly` is off. Assignments pass homeOnly = true, as solo practice
  *   drills the home spot (assignments.server.ts).
  * - **The judged window** = the latest `goal.notes` answers, in the order they were given. A goal
  *   "40 notes at 90 % with a median under 2 s" means: 40 answers in a row that together are at
@@ -25,7 +25,7 @@
  *   the due time, else open. Practice after the due time still counts.
  */
 import { median } from "~/lib/median";
-import { isCorrect } from "~/review/stats";
+import { verdictOf } from "~/game/scoring";
 
 export interface Goal {
   /** How many answers in a row make the judged window. */
@@ -83,7 +83,7 @@ function judge(window: readonly (PracticeRow & { correct: boolean })[], goal: Go
 export function progressOf(goal: Goal, rows: readonly PracticeRow[], homeOnly: boolean): Progress {
   const n = Math.max(1, Math.floor(goal.notes));
   // Stable sort: answers with the same time keep the order they were stored in.
-  const ordered = [...rows].sort((a, b) => a.at - b.at).map((r) => ({ ...r, correct: isCorrect(r, homeOnly) }));
+  const ordered = [...rows].sort((a, b) => a.at - b.at).map((r) => ({ ...r, correct: verdictOf(r, homeOnly) === "right" }));
   let completedEnd: number | null = null;
   for (let end = n; end <= ordered.length && completedEnd === null; end++) {
     const j = judge(ordered.slice(end - n, end), goal);

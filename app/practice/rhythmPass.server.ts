@@ -90,8 +90,7 @@ export async function recordRhythmPass(db: Db, user: SessionUser, body: unknown,
 }
 
 function storedOf(row: typeof rhythmAttempts.$inferSelect): StoredPass {
-  const results = row.results as RhythmScore;
-  return { ...results, id: row.id, tuneId: row.tuneId, tempo: row.tempo, score: row.score, at: row.at.getTime() };
+  return { ...row.results, id: row.id, tuneId: row.tuneId, tempo: row.tempo, score: row.score, at: row.at.getTime() };
 }
 
 /** The student's own passes, newest first (of one tune, or all). */

@@ -7,7 +7,7 @@ import type { Db } from "~/db/client.server";
 import { classes, readingSets } from "~/db/schema";
 import { classesFor } from "~/school/classes.server";
 import { readingPreset } from "./presets";
-import { readingSetSpecSchema, describeReadingSet, type ReadingSetSpec } from "./spec";
+import { parseReadingSet, readingSetSpecSchema, describeReadingSet, type ParsedReadingSet, type ReadingSetSpec } from "./spec";
 
 export interface SavedSet {
   id: string;
@@ -27,17 +27,21 @@ async function visibleFilter(db: Db, user: SessionUser) {
   return and(inOrg, or(isNull(readingSets.classId), mine.length ? inArray(readingSets.classId, mine) : undefined));
 }
 
-function toSaved(row: { id: string; name: string; classId: string | null; className: string | null; spec: unknown; createdAt: Date; updatedAt: Date | null }): SavedSet {
-  const parsed = readingSetSpecSchema.safeParse(row.spec);
-  return {
+type Row = { id: string; name: string; classId: string | null; className: string | null; spec: unknown; createdAt: Date; updatedAt: Date | null };
+
+/** A stored set parsed once: what lists show, and the parsed set (null when it needs an edit) for hosting or practice. */
+function parsedRow(row: Row): { saved: SavedSet; reading: ParsedReadingSet | null } {
+  const parsed = parseReadingSet(readingSetSpecSchema, row.spec);
+  const saved = {
     id: row.id,
     name: row.name,
     classId: row.classId,
     className: row.className,
-    spec: parsed.success ? parsed.data : null,
-    summary: parsed.success ? describeReadingSet(parsed.data) : `Needs an edit: ${parsed.error.issues[0]?.message ?? "it no longer checks out"}`,
+    spec: parsed.ok ? parsed.set : null,
+    summary: parsed.ok ? describeReadingSet(parsed.set) : `Needs an edit: ${Object.values(parsed.errors)[0] ?? "it no longer checks out"}`,
     updatedAt: (row.updatedAt ?? row.createdAt).toISOString(),
   };
+  return { saved, reading: parsed.ok ? parsed : null };
 }
 
 const columns = {
@@ -57,22 +61,21 @@ export async function setsFor(db: Db, user: SessionUser): Promise<SavedSet[]> {
     .leftJoin(classes, eq(classes.id, readingSets.classId))
     .where(await visibleFilter(db, user))
     .orderBy(desc(readingSets.updatedAt), desc(readingSets.createdAt));
-  return rows.map(toSaved);
+  return rows.map((row) => parsedRow(row).saved);
 }
 
-/** One set the user may see, or undefined (callers answer 404, never a hint that it exists elsewhere). */
-export async function setFor(db: Db, user: SessionUser, id: string): Promise<SavedSet | undefined> {
+/** One set the user may see, with its parse; undefined when there is none (callers answer 404, never a hint that it exists elsewhere). */
+export async function readingSetFor(db: Db, user: SessionUser, id: string) {
   const [row] = await db
     .select(columns)
     .from(readingSets)
     .leftJoin(classes, eq(classes.id, readingSets.classId))
     .where(and(eq(readingSets.id, id), await visibleFilter(db, user)));
-  return row ? toSaved(row) : undefined;
+  return row ? parsedRow(row) : undefined;
 }
 
-/** Whether the user may file a set under this class (none = school-wide, always allowed). */
-export async function mayUseClass(db: Db, user: SessionUser, classId: string | null | undefined) {
-  return !classId || (await classesFor(db, user)).some((c) => c.id === classId);
+export async function setFor(db: Db, user: SessionUser, id: string): Promise<SavedSet | undefined> {
+  return (await readingSetFor(db, user, id))?.saved;
 }
 
 export async function createSet(db: Db, user: SessionUser, input: { name: string; classId: string | null; spec: ReadingSetSpec }) {
@@ -89,10 +92,13 @@ export async function deleteSet(db: Db, id: string) {
   await db.delete(readingSets).where(eq(readingSets.id, id));
 }
 
-/** What "host this set" opens from: a ready-made set by its id, or a saved one the user may see. */
+/** What "host this set" opens from, parsed: a ready-made set by its id, or a saved one the user may see that still checks out. */
 export async function hostableSet(db: Db, user: SessionUser, id: string) {
   const preset = readingPreset(id);
-  if (preset) return { spec: preset.spec, source: { name: preset.name } };
-  const saved = await setFor(db, user, id);
-  return saved?.spec ? { spec: saved.spec, source: { name: saved.name, readingSetId: saved.id } } : undefined;
+  if (preset) {
+    const reading = parseReadingSet(readingSetSpecSchema, preset.spec);
+    return reading.ok ? { reading, source: { name: preset.name } } : undefined;
+  }
+  const found = await readingSetFor(db, user, id);
+  return found?.reading ? { reading: found.reading, source: { name: found.saved.name, readingSetId: found.saved.id } } : undefined;
 }

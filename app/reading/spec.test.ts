@@ -1,7 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { parseForm } from "~/lib/forms";
 import { buildPool } from "~/music/pools";
-import { collectStrings, readingSetFormSchema, readingSetSpecSchema, readingSpecOf, describeReadingSet, type ReadingSetSpec } from "./spec";
+import { parseReadingSet, readingSetFormSchema, readingSetSpecSchema, readingSpecOf, describeReadingSet, type ReadingSetSpec } from "./spec";
 
 const SET: ReadingSetSpec = {
   mode: "sprint",
@@ -66,8 +65,8 @@ describe("reading set spec ↔ the engine's ReadingSpec", () => {
   });
 
   it("parses the posted form, checkboxes for strings included", () => {
-    const parsed = parseForm(readingSetFormSchema, collectStrings(form(good)));
-    expect(parsed).toMatchObject({ ok: true, data: { name: "Week 2", strings: [1, 2, 3], lowest: undefined, ledgerLines: true } });
+    const parsed = parseReadingSet(readingSetFormSchema, form(good));
+    expect(parsed).toMatchObject({ ok: true, set: { name: "Week 2", strings: [1, 2, 3], lowest: undefined, ledgerLines: true } });
   });
 
   it.each([
@@ -81,7 +80,7 @@ describe("reading set spec ↔ the engine's ReadingSpec", () => {
     [{ lowest: "G5", highest: "E4" }, "pool", "is above the highest note"],
     [{ strings: ["", "1"], lowest: "C4", highest: "D4" }, "pool", "No notes fit this reading set"],
   ])("refuses %o with a clear message on %s", (override, field, message) => {
-    const parsed = parseForm(readingSetFormSchema, collectStrings(form({ ...good, ...override })));
+    const parsed = parseReadingSet(readingSetFormSchema, form({ ...good, ...override }));
     expect(parsed.ok).toBe(false);
     if (!parsed.ok) expect(parsed.errors[field]).toContain(message);
   });

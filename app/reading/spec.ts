@@ -1,12 +1,16 @@
-// A reading set: what a class reads (the engine's ReadingSpec) plus how a round from it runs.
-// The same fields describe the host page's quick setup, which is a reading set not saved yet.
+// What a reading set is: what a class reads (the engine's ReadingSpec) plus how a round from it runs.
+// The same fields describe the host page's quick setup, which is a reading set not saved yet. Every
+// reading set, posted or stored, goes through parseReadingSet, which builds its pool once.
 import { z } from "zod";
 import type { Mode } from "~/game/protocol";
 import { ANSWER_MS_RANGE } from "~/game/roomConfig";
+import { parseFields, type FieldErrors } from "~/lib/forms";
 import { KEYS } from "~/music/keys";
 import { displayPitch, MusicError, parsePitch } from "~/music/pitch";
-import { buildPool, type ReadingSpec } from "~/music/pools";
+import { buildPool, type PoolNote, type ReadingSpec } from "~/music/pools";
+import { homeSpotFor, type SpotMap } from "~/music/positions";
 import { MAX_FRETS, MIN_FRETS, resolveTuning } from "~/music/tuning";
+import { nameField } from "~/lib/names";
 
 export const PROMPT_COUNT_RANGE = [3, 60] as const;
 /** Tune walk reads a tune, not a pool, so a reading set offers the other modes. */
@@ -85,7 +89,7 @@ export const readingSetFields = {
     .max(ANSWER_MS_RANGE[1] / 1000, `At most ${ANSWER_MS_RANGE[1] / 1000} seconds.`),
 };
 
-type ReadingFields = z.output<z.ZodObject<typeof readingSetFields>>;
+type ReadingFields = z.output<z.ZodObject<typeof readingSetFields>> & { mode: Mode };
 
 /** The engine's view of a reading set. Naturals read without a signature, whatever key was left selected. */
 export function readingSpecOf(set: ReadingFields): ReadingSpec {
@@ -103,35 +107,65 @@ export function readingSpecOf(set: ReadingFields): ReadingSpec {
   };
 }
 
-/** The engine has the last word: a set whose pool is empty or impossible is refused with its message, on `pool`. */
-export function poolCheck(set: ReadingFields & { mode: Mode }, ctx: z.RefinementCtx) {
-  if (set.mode === "tune-walk") return;
-  try {
-    buildPool(readingSpecOf(set));
-  } catch (error) {
-    if (!(error instanceof MusicError)) throw error;
-    ctx.addIssue({ code: "custom", path: ["pool"], message: error.message });
-  }
-}
-
-export const readingSetSpecSchema = z
-  .object({ mode: z.enum(SET_MODES, "Choose Sprint, Full neck or Teams."), ...readingSetFields })
-  .superRefine(poolCheck);
+/** A saved reading set's fields (stored as the set's JSON). */
+export const readingSetSpecSchema = z.object({ mode: z.enum(SET_MODES, "Choose Sprint, Full neck or Teams."), ...readingSetFields });
 export type ReadingSetSpec = z.output<typeof readingSetSpecSchema>;
 
-export const readingSetFormSchema = z
-  .object({
-    name: z.string().trim().min(1, "Give the set a name.").max(80, "Keep the name under 80 characters."),
-    classId: z.preprocess(blankToUndefined, z.string().max(64).optional()),
-    mode: z.enum(SET_MODES, "Choose Sprint, Full neck or Teams."),
-    ...readingSetFields,
-  })
-  .superRefine(poolCheck);
+/** Where a saved set is filed: its name and, optionally, its class. */
+export const setFilingSchema = z.object({
+  name: nameField("the set's name", 80, "Give the set a name."),
+  classId: z.preprocess(blankToUndefined, z.string().max(64).optional()),
+});
+
+/** The reading set page's form: the set and where it is filed. */
+export const readingSetFormSchema = readingSetSpecSchema.extend(setFilingSchema.shape);
 
 /** Checkboxes named "strings" come as several values; a hidden empty one marks that the form had them at all. */
 export function collectStrings(form: FormData): FormData {
   if (form.has("strings")) form.set("strings", form.getAll("strings").filter((v) => v !== "").join(","));
   return form;
+}
+
+/** A reading set that checks out, with what everything else derives from it. */
+export interface ParsedReadingSet<T extends ReadingFields = ReadingSetSpec> {
+  set: T;
+  spec: ReadingSpec;
+  /** Its notes, built once here; empty for a Tune walk, which reads its tune instead. */
+  pool: PoolNote[];
+}
+
+export type ReadingSetResult<T extends ReadingFields> = ({ ok: true } & ParsedReadingSet<T>) | { ok: false; errors: FieldErrors };
+
+/**
+ * The one parse of a reading set (or a quick setup, or a form carrying one), from a posted form or stored
+ * JSON: the fields by `schema`, then the engine has the last word — a set whose pool is empty or
+ * impossible is refused with its message, on `pool`.
+ */
+export function parseReadingSet<S extends z.ZodType<ReadingFields>>(schema: S, input: FormData | unknown): ReadingSetResult<z.output<S>> {
+  const parsed = parseFields(schema, input instanceof FormData ? Object.fromEntries(collectStrings(input)) : input);
+  if (!parsed.ok) return parsed;
+  const set: z.output<S> = parsed.data;
+  const spec = readingSpecOf(set);
+  if (set.mode === "tune-walk") return { ok: true, set, spec, pool: [] };
+  try {
+    return { ok: true, set, spec, pool: buildPool(spec) };
+  } catch (error) {
+    if (!(error instanceof MusicError)) throw error;
+    return { ok: false, errors: { pool: error.message } };
+  }
+}
+
+/**
+ * A class that moved some home spots reads with its own map: each note's home (which diagnosis and scoring go by)
+ * becomes the class's spot. A pitch the map doesn't reach keeps the default, and so does a map spot beyond this
+ * neck's frets: a map is kept per position and tuning, not per neck, and a spot the pad cannot show cannot be the answer.
+ */
+export function applySpotMap<T extends Pick<PoolNote, "writtenMidi" | "home">>(notes: readonly T[], map: SpotMap | undefined, frets: number): T[] {
+  if (!map) return [...notes];
+  return notes.map((n) => {
+    const spot = homeSpotFor(map, n.writtenMidi);
+    return spot && spot.fret <= frets ? { ...n, home: spot } : n;
+  });
 }
 
 const ACCIDENTAL_WORDS = { naturals: "naturals only", key: "notes of the key", chromatic: "with accidentals" } as const;

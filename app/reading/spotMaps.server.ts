@@ -12,7 +12,7 @@ const where = (classId: string, position: number, tuningId: string) =>
 export async function classSpotMap(db: Db, classId: string, position: number, tuning: string): Promise<SpotMap | undefined> {
   const t = resolveTuning(tuning);
   const [row] = await db.select({ map: spotMaps.map }).from(spotMaps).where(where(classId, position, t.id));
-  const map = row?.map as SpotMap | undefined;
+  const map = row?.map;
   return map && validateSpotMap(map, t).length === 0 ? map : undefined;
 }
 

@@ -4,13 +4,22 @@ import type { PlayerFigures, RoundInfo } from "./stats";
 
 export const CSV_COLUMNS = ["class", "round", "date", "student", "account", "points", "answers", "correct", "accuracy %", "median time s", "longest streak"] as const;
 
+// The start of the cell and of every line in it, when a formula character follows.
+const FORMULA_LINE = /(?<=^|[\r\n])(?=[=+\-@\t\r])/g;
+
 /**
  * A spreadsheet runs a cell starting with =, +, -, @, tab or CR as a formula (a nickname like
- * "=HYPERLINK(…)" would be a link out of the school's gradebook); papaparse's escapeFormulae prefixes
- * such text cells with ' so they stay text. Numbers are written as numbers.
+ * "=HYPERLINK(…)" would be a link out of the school's gradebook). Such a text cell gets a ' in
+ * front, which keeps it text. A cell with line breaks gets one in front of every line that starts
+ * so too, because some importers and a paste of the cell split it into one cell per line.
+ * Numbers are written as numbers.
  */
+export function neutraliseCell(cell: string | number): string | number {
+  return typeof cell === "string" ? cell.replace(FORMULA_LINE, "'") : cell;
+}
+
 export function toCsv(rows: readonly (readonly (string | number)[])[]): string {
-  return Papa.unparse({ fields: [...CSV_COLUMNS], data: rows.map((r) => [...r]) }, { escapeFormulae: true, newline: "\r\n" });
+  return Papa.unparse({ fields: [...CSV_COLUMNS], data: rows.map((r) => r.map(neutraliseCell)) }, { newline: "\r\n" });
 }
 
 export function gradebookRows(className: string, round: Pick<RoundInfo, "title" | "startedAt">, players: readonly PlayerFigures[]) {

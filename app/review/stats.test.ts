@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { classReview, mistakeShares, mostImproved, noteHeatmap, reteachList, scoresHomeOnly, roundPlayers, studentProgress, type AnswerRow, type ReviewInput } from "./stats";
+import { classReview, mistakeShares, mostImproved, noteHeatmap, reteachList, roundPlayers, studentProgress, type AnswerRow, type ReviewInput } from "./stats";
 
 /**
  * Two rounds, worked out by hand.
@@ -16,6 +16,8 @@ const row = (roomId: string, playerId: string, promptIndex: number, written: str
   fret: 5,
   kind,
   pitchRight: kind === "home-spot" || kind === "other-spot",
+  // As the rounds' reducer stored it: S2 was played with home spot only off.
+  verdict: kind === "home-spot" || (kind === "other-spot" && roomId === "S2") ? "right" : kind === "other-spot" ? "partial" : "wrong",
   points,
   reactionMs,
   streak,
@@ -24,8 +26,8 @@ const row = (roomId: string, playerId: string, promptIndex: number, written: str
 
 const input: ReviewInput = {
   rounds: [
-    { id: "S2", title: "Week 2", startedAt: 2000, live: false, homeOnly: false, position: 5, tuning: "standard", frets: 15, homes: [{ string: 4, fret: 4 }, { string: 4, fret: 4 }, { string: 2, fret: 3 }, { string: 2, fret: 1 }] },
-    { id: "S1", title: "Week 1", startedAt: 1000, live: false, homeOnly: true, position: 5, tuning: "standard", frets: 15, homes: [{ string: 2, fret: 1 }, { string: 2, fret: 3 }, { string: 4, fret: 4 }, { string: 2, fret: 1 }] },
+    { id: "S2", title: "Week 2", startedAt: 2000, live: false, position: 5, tuning: "standard", frets: 15, homes: [{ string: 4, fret: 4 }, { string: 4, fret: 4 }, { string: 2, fret: 3 }, { string: 2, fret: 1 }] },
+    { id: "S1", title: "Week 1", startedAt: 1000, live: false, position: 5, tuning: "standard", frets: 15, homes: [{ string: 2, fret: 1 }, { string: 2, fret: 3 }, { string: 4, fret: 4 }, { string: 2, fret: 1 }] },
   ],
   players: [
     { id: "a1", roomId: "S1", userId: "u-ana", nickname: "Ana" },
@@ -176,13 +178,5 @@ describe("one student", () => {
     expect(ben.bests.speed).toEqual({ value: 650, roundId: "S1" });
     expect(ben.bests.points).toEqual({ value: 4030, roundId: "S1" });
     expect(ben.heatmap.find((c) => c.written === "F#4")).toMatchObject({ answers: 3, correct: 1 });
-  });
-});
-
-describe("scoresHomeOnly", () => {
-  it("follows the round's setting, except Full neck which never asks for the home spot", () => {
-    expect(scoresHomeOnly({ homeOnly: true, mode: "sprint" })).toBe(true);
-    expect(scoresHomeOnly({ homeOnly: false, mode: "sprint" })).toBe(false);
-    expect(scoresHomeOnly({ homeOnly: true, mode: "full-neck" })).toBe(false);
   });
 });

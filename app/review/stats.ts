@@ -4,9 +4,8 @@
  * progress. No I/O, so every rule below is checked in stats.test.ts against hand-made answers.
  *
  * Rules, in one place:
- * - **Correct** = full credit, as the round scored it: the home spot always; another spot of the
- *   right pitch only when the round did not ask for the home spot (home spot only off, or Full
- *   neck, which never asks for one). See `scoresHomeOnly`.
+ * - **Correct** = full credit, as the round scored it: the verdict the reducer gave, stored with
+ *   each answer row (`verdict = "right"`). Nothing here re-derives it.
  * - **Accuracy** = correct ÷ answers given. Prompts a player did not answer are not rows, so they
  *   do not count (the live round already breaks the streak for them).
  * - **Median time** = median reaction time of the right-pitch answers (home or other spot): how fast
@@ -22,6 +21,7 @@
 import type { Spot } from "~/music/fretboard";
 import { MISTAKE_LABELS, type MistakeKind } from "~/music/mistakes";
 import type { RoomConfig } from "~/game/roomConfig";
+import type { Verdict } from "~/game/scoring";
 import { median } from "~/lib/median";
 
 export const MIN_RANKED = 3;
@@ -42,6 +42,8 @@ export interface AnswerRow {
   fret: number;
   kind: string;
   pitchRight: boolean;
+  /** The round's verdict; null only for a row its room's log does not hold (counts as not right). */
+  verdict: Verdict | null;
   points: number;
   reactionMs: number;
   streak: number;
@@ -62,8 +64,6 @@ export interface RoundInfo {
   title: string;
   startedAt: number;
   live: boolean;
-  /** Whether only the home spot earned full credit (scoresHomeOnly of the round's config). */
-  homeOnly: boolean;
   /** The home spot of each prompt, by prompt index. */
   homes: Spot[];
   /** Where it was read, to draw the fretboard. */
@@ -78,34 +78,27 @@ export interface ReviewInput {
   answers: AnswerRow[];
 }
 
-/** Mirrors the reducer: Full neck diagnoses without "home spot only", whatever the setting says. */
-export const scoresHomeOnly = (config: Pick<RoomConfig, "homeOnly" | "mode">) => config.homeOnly && config.mode !== "full-neck";
-
-export function roundInfo(room: { id: string; title: string; position: number; createdAt: Date; endedAt: Date | null; config: unknown }): RoundInfo {
-  const config = room.config as RoomConfig;
+export function roundInfo(room: { id: string; title: string; position: number; createdAt: Date; endedAt: Date | null; config: RoomConfig }): RoundInfo {
   return {
     id: room.id,
     title: room.title,
     startedAt: room.createdAt.getTime(),
     live: room.endedAt === null,
-    homeOnly: scoresHomeOnly(config),
-    homes: config.prompts.map((p) => ({ string: p.home.string, fret: p.home.fret })),
+    homes: room.config.prompts.map((p) => ({ string: p.home.string, fret: p.home.fret })),
     position: room.position,
-    tuning: config.tuning,
-    frets: config.frets,
+    tuning: room.config.tuning,
+    frets: room.config.frets,
   };
 }
 
-export const isCorrect = (a: Pick<AnswerRow, "kind">, homeOnly: boolean) => a.kind === "home-spot" || (a.kind === "other-spot" && !homeOnly);
-
-/** Answer rows with their round's scoring rule attached, so mixed rounds count right. */
+/** Answer rows with full credit marked, and only those of the given rounds. */
 interface Scored extends AnswerRow {
   correct: boolean;
 }
 
 function scoredRows(input: ReviewInput, rows: readonly AnswerRow[] = input.answers): Scored[] {
-  const homeOnly = new Map(input.rounds.map((s) => [s.id, s.homeOnly]));
-  return rows.filter((a) => homeOnly.has(a.roomId)).map((a) => ({ ...a, correct: isCorrect(a, homeOnly.get(a.roomId)!) }));
+  const known = new Set(input.rounds.map((s) => s.id));
+  return rows.filter((a) => known.has(a.roomId)).map((a) => ({ ...a, correct: a.verdict === "right" }));
 }
 
 // ---- per player ----------------------------------------------------------------------------
@@ -243,12 +236,33 @@ export function noteHeatmap(input: ReviewInput, rows: readonly AnswerRow[] = inp
   return [...groups]
     .map(([written, list]) => {
       const f = figuresOf(list);
-      const kinds: NoteCell["kinds"] = {};
-      for (const a of list) kinds[a.kind as MistakeKind] = (kinds[a.kind as MistakeKind] ?? 0) + 1;
       const first = list[0]!;
-      return { written, writtenMidi: first.writtenMidi, home: homes.get(first.roomId)?.[first.promptIndex] ?? null, answers: f.answered, correct: f.correct, accuracy: f.accuracy, medianMs: f.medianMs, kinds };
+      return { written, writtenMidi: first.writtenMidi, home: homes.get(first.roomId)?.[first.promptIndex] ?? null, answers: f.answered, correct: f.correct, accuracy: f.accuracy, medianMs: f.medianMs, kinds: kindCounts(list) };
     })
     .sort((a, b) => a.writtenMidi - b.writtenMidi || a.written.localeCompare(b.written));
+}
+
+function kindCounts(rows: readonly Pick<AnswerRow, "kind">[]): Partial<Record<MistakeKind, number>> {
+  const kinds: Partial<Record<MistakeKind, number>> = {};
+  for (const a of rows) kinds[a.kind as MistakeKind] = (kinds[a.kind as MistakeKind] ?? 0) + 1;
+  return kinds;
+}
+
+export interface PromptResult {
+  index: number;
+  written: string;
+  answered: number;
+  right: number;
+  kinds: Partial<Record<MistakeKind, number>>;
+}
+
+/** Note by note through one round: for each prompt shown (in order), answers given, right, and the kinds given. */
+export function promptResults(input: ReviewInput, roundId: string, shown: readonly { written: string }[]): PromptResult[] {
+  const rows = scoredRows(input).filter((a) => a.roomId === roundId);
+  return shown.map((note, index) => {
+    const mine = rows.filter((a) => a.promptIndex === index);
+    return { index, written: note.written, answered: mine.length, right: mine.filter((a) => a.correct).length, kinds: kindCounts(mine) };
+  });
 }
 
 export interface MistakeShare {

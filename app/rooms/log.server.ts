@@ -1,8 +1,7 @@
 import { asc, eq } from "drizzle-orm";
 import type { Db } from "~/db/client.server";
 import { roomEvents, rooms } from "~/db/schema";
-import { replay, type RoomRecord, type RoomState } from "~/game/room";
-import type { RoomConfig } from "~/game/roomConfig";
+import { replay, type RoomEvent, type RoomRecord, type RoomState } from "~/game/room";
 
 /**
  * A room rebuilt from SQLite: its config and every persisted record, replayed through the reducer.
@@ -18,5 +17,13 @@ export async function loadRoomState(db: Db, roomId: string): Promise<{ state: Ro
     .where(eq(roomEvents.roomId, roomId))
     .orderBy(asc(roomEvents.seq));
   const last = rows.at(-1);
-  return { state: replay(room.config as RoomConfig, rows.map((r) => r.event as RoomRecord)), seq: last?.seq ?? 0, lastAt: last?.at ?? null };
+  return { state: replay(room.config, rows.map((r) => upgraded(r.event))), seq: last?.seq ?? 0, lastAt: last?.at ?? null };
+}
+
+/** Join events logged before the field was named `seatToken` carry it as `seat`. */
+function upgraded(record: RoomRecord): RoomRecord {
+  const e = record.event as RoomEvent & { seat?: string };
+  if (e.type !== "join" || e.seatToken !== undefined) return record;
+  const { seat, ...event } = e;
+  return { ...record, event: { ...event, seatToken: seat! } };
 }

@@ -1,30 +1,28 @@
-import { MISTAKE_LABELS, type MistakeKind } from "~/music/mistakes";
-import { playerSummaries } from "~/game/standings";
 import type { Db } from "~/db/client.server";
+import { MISTAKE_LABELS } from "~/music/mistakes";
+import { reviewInput } from "~/review/review.server";
+import { leaderboards, promptResults, roundPlayers } from "~/review/stats";
 import { loadRoomState } from "./log.server";
 
-export interface PromptResult {
-  index: number;
-  written: string;
-  answered: number;
-  right: number;
-  kinds: Partial<Record<MistakeKind, number>>;
-}
-
-/** A round's results, rebuilt from its log so they match what the class saw on the stage. */
+/**
+ * A round's results. The figures come from the stored answer rows, as in the class review, the export
+ * and the API; the log only says how far the round got and who the host removed (left off the boards, as on the stage).
+ */
 export async function roundResults(db: Db, roomId: string) {
   const loaded = await loadRoomState(db, roomId);
   if (!loaded) return undefined;
   const { state } = loaded;
-  const summaries = playerSummaries(state);
-  const byPoints = [...summaries].sort((a, b) => b.points - a.points || b.longestStreak - a.longestStreak);
-  const byStreak = [...summaries].sort((a, b) => b.longestStreak - a.longestStreak || b.points - a.points);
+  const removed = new Set(state.players.filter((p) => p.removed).map((p) => p.id));
+  const input = await reviewInput(db, { roomId });
+  const boards = leaderboards(roundPlayers({ ...input, players: input.players.filter((p) => !removed.has(p.id)) }, roomId));
   const shown = state.run ? state.run.index + 1 : 0;
-  const prompts: PromptResult[] = state.config.prompts.slice(0, shown).map((note, index) => {
-    const mine = state.answers.filter((a) => a.index === index);
-    const kinds: Partial<Record<MistakeKind, number>> = {};
-    for (const a of mine) kinds[a.diagnosis.kind] = (kinds[a.diagnosis.kind] ?? 0) + 1;
-    return { index, written: note.written, answered: mine.length, right: mine.filter((a) => a.verdict === "right").length, kinds };
-  });
-  return { phase: state.phase, mode: state.config.mode, tuneName: state.config.tuneName, byPoints, byStreak, prompts, labels: MISTAKE_LABELS };
+  return {
+    phase: state.phase,
+    mode: state.config.mode,
+    tuneName: state.config.tuneName,
+    byPoints: boards.points,
+    byStreak: boards.streak,
+    prompts: promptResults(input, roomId, state.config.prompts.slice(0, shown)),
+    labels: MISTAKE_LABELS,
+  };
 }

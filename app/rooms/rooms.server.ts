@@ -1,18 +1,19 @@
 import { and, desc, eq, isNull } from "drizzle-orm";
 import { nanoid } from "nanoid";
 import { createHmac, randomInt, timingSafeEqual } from "node:crypto";
+import { clientAddress, peek, take, type Limits } from "~/auth/rate-limit.server";
 import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
 import { rooms } from "~/db/schema";
 import { newRoomCode } from "~/game/roomCode";
-import { drawnPrompts, roomConfig, tunePrompts, type RoomConfig } from "~/game/roomConfig";
+import { promptsFromPool, roomConfig, tunePrompts, type RoomConfig } from "~/game/roomConfig";
 import { UserError } from "~/lib/userError";
 import type { SpotMap } from "~/music/positions";
 import { classSpotMap } from "~/reading/spotMaps.server";
-import { MODE_NAMES, readingSpecOf } from "~/reading/spec";
+import { applySpotMap, MODE_NAMES, parseReadingSet } from "~/reading/spec";
 import type { Tune } from "~/tunes/builtin";
 import { barRange, findTune } from "~/tunes/tunes.server";
-import { quickSetupSchema, withSpotMap, type QuickSetup } from "./setup";
+import { quickSetupSchema, type ParsedSetup, type QuickSetup } from "./setup";
 
 /**
  * The stage's credential for its room: derived from the server secret, so nothing secret is
@@ -29,11 +30,10 @@ export function hostKeyMatches(secret: string, roomId: string, key: string) {
 }
 
 /**
- * Builds the room's config from the quick setup (throws RoomConfigError / MusicError with a clear message).
+ * Builds the room's config from the parsed quick setup (throws RoomConfigError / MusicError with a clear message).
  * With a class's home-spot map, every prompt's home spot is the class's.
  */
-export function configFromSetup(setup: QuickSetup, code: string, seed = randomInt(2 ** 31), spotMap?: SpotMap, tune?: Tune): RoomConfig {
-  const spec = readingSpecOf(setup);
+export function configFromSetup({ set: setup, spec, pool }: ParsedSetup, code: string, seed = randomInt(2 ** 31), spotMap?: SpotMap, tune?: Tune): RoomConfig {
   const settings = {
     code,
     mode: setup.mode,
@@ -46,9 +46,9 @@ export function configFromSetup(setup: QuickSetup, code: string, seed = randomIn
     const notes = barRange(tune, setup.fromBar ?? 1, setup.toBar ?? Infinity);
     if (notes.length === 0) throw new UserError(`Bars ${setup.fromBar ?? 1}–${setup.toBar ?? "end"} of “${tune.title}” have no notes.`, "fromBar");
     const prompts = tunePrompts({ ...spec, keyFifths: tune.keyFifths }, notes.map((n) => n.pitch));
-    return roomConfig(spec, { ...settings, tuneName: tune.title }, withSpotMap(prompts, spotMap, spec.frets));
+    return roomConfig(spec, { ...settings, tuneName: tune.title }, applySpotMap(prompts, spotMap, spec.frets));
   }
-  return roomConfig(spec, settings, withSpotMap(drawnPrompts(spec, setup.prompts, seed), spotMap, spec.frets));
+  return roomConfig(spec, settings, applySpotMap(promptsFromPool(pool, spec.keyFifths, setup.prompts, seed), spotMap, spec.frets));
 }
 
 const isCodeClash = (error: unknown) =>
@@ -62,15 +62,16 @@ export interface RoomSource {
 
 /**
  * Opens a room; a room code clash with another open room (rare: 19⁶ codes) draws a new code. The setup is kept
- * beside the game's config (the game ignores it) so "Host this again" can draw afresh from the same settings.
+ * in its own column so "Host this again" can draw afresh from the same settings.
  */
-export async function createRoom(db: Db, host: SessionUser, setup: QuickSetup, source: RoomSource = {}) {
+export async function createRoom(db: Db, host: SessionUser, parsed: ParsedSetup, source: RoomSource = {}) {
+  const setup = parsed.set;
   const spotMap = setup.classId ? await classSpotMap(db, setup.classId, setup.position, setup.tuning) : undefined;
   const tune = setup.mode === "tune-walk" ? await findTune(db, host.orgId, setup.tuneId ?? "") : undefined;
   const title = source.name ? `${source.name} · ${MODE_NAMES[setup.mode]}` : `${MODE_NAMES[setup.mode]} · position ${setup.position}`;
   for (let attempt = 0; ; attempt++) {
     const code = newRoomCode();
-    const config = configFromSetup(setup, code, undefined, spotMap, tune);
+    const config = configFromSetup(parsed, code, undefined, spotMap, tune);
     const id = nanoid();
     try {
       await db.insert(rooms).values({
@@ -83,7 +84,9 @@ export async function createRoom(db: Db, host: SessionUser, setup: QuickSetup, s
         title,
         mode: setup.mode,
         position: setup.position,
-        config: { ...config, setup, sourceName: source.name ?? null },
+        config,
+        setup,
+        sourceName: source.name ?? null,
       });
       return { id, code };
     } catch (error) {
@@ -96,6 +99,20 @@ export async function createRoom(db: Db, host: SessionUser, setup: QuickSetup, s
 export async function openRoomByCode(db: Db, code: string) {
   const [room] = await db.select().from(rooms).where(and(eq(rooms.code, code), isNull(rooms.endedAt)));
   return room;
+}
+
+/**
+ * A typed room code from a visitor: an address that has tried too many codes that open no room is
+ * refused for a while (codes can't be found by guessing), right codes never count.
+ */
+export async function lookUpRoom(svc: { db: Db; limits: Limits }, request: Request, code: string) {
+  const address = clientAddress(request);
+  const refused = await peek(svc.limits.roomLookups, address);
+  if (refused) return { ok: false as const, refused };
+  const room = await openRoomByCode(svc.db, code);
+  if (room) return { ok: true as const, room };
+  await take(svc.limits.roomLookups, address);
+  return { ok: false as const, refused: undefined, error: "No open room has that code. Check the code on the class screen." };
 }
 
 export async function roomById(db: Db, id: string) {
@@ -113,10 +130,10 @@ export async function roomsHostedBy(db: Db, userId: string, limit = 20) {
 }
 
 /** The settings a room was opened with, to host it again with a new draw; undefined for rooms from before they were kept. */
-export function roomSetup(room: { config: unknown; readingSetId: string | null; classId: string | null }) {
-  const kept = room.config as { setup?: unknown; sourceName?: unknown };
-  const parsed = quickSetupSchema.safeParse(kept.setup);
-  if (!parsed.success) return undefined;
-  const source: RoomSource = { readingSetId: room.readingSetId, ...(typeof kept.sourceName === "string" ? { name: kept.sourceName } : {}) };
-  return { setup: { ...parsed.data, classId: room.classId ?? undefined }, source };
+export function roomSetup(room: { setup: QuickSetup | null; sourceName: string | null; readingSetId: string | null; classId: string | null }) {
+  // Parsed again: a setup kept under older rules may no longer make a round.
+  const parsed = room.setup && parseReadingSet(quickSetupSchema, { ...room.setup, classId: room.classId ?? undefined });
+  if (!parsed?.ok) return undefined;
+  const source: RoomSource = { readingSetId: room.readingSetId, ...(room.sourceName !== null ? { name: room.sourceName } : {}) };
+  return { setup: parsed, source };
 }

@@ -2,7 +2,8 @@ import { Form, useNavigation } from "react-router";
 import { z } from "zod";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { createApiToken, listApiTokens, revokeApiToken } from "~/auth/tokens.server";
-import { Button, Card, Field, Notice, PageTitle } from "~/components/ui";
+import { SettingsNav } from "~/components/SettingsNav";
+import { Button, Card, Field, Notice, PageTitle, PostButton } from "~/components/ui";
 import { services } from "~/context";
 import { parseForm } from "~/lib/forms";
 import type { Route } from "./+types/settings";
@@ -12,7 +13,7 @@ export const meta: Route.MetaFunction = () => [{ title: "API tokens · Fretcall"
 export async function loader({ request, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const tokens = await listApiTokens(services(context).db, user.id);
-  return { tokens: tokens.map((t) => ({ ...t, createdAt: t.createdAt.toISOString(), lastUsedAt: t.lastUsedAt?.toISOString() ?? null, revoked: t.revokedAt !== null })) };
+  return { role: user.role, tokens: tokens.map((t) => ({ ...t, createdAt: t.createdAt.toISOString(), lastUsedAt: t.lastUsedAt?.toISOString() ?? null, revoked: t.revokedAt !== null })) };
 }
 
 const actionSchema = z.discriminatedUnion("intent", [
@@ -38,6 +39,7 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
   const busy = useNavigation().state !== "idle";
   return (
     <div className="mx-auto max-w-2xl space-y-6">
+      <SettingsNav role={loaderData.role} />
       <PageTitle lead="Personal API tokens let a script read your classes and results through the JSON API (/api/v1/…), with your permissions. Send one as “Authorization: Bearer …”.">
         API tokens
       </PageTitle>
@@ -71,13 +73,7 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
               {t.revoked ? (
                 <span className="text-ink-soft">✗ revoked</span>
               ) : (
-                <Form method="post">
-                  <input type="hidden" name="intent" value="revoke" />
-                  <input type="hidden" name="id" value={t.id} />
-                  <Button type="submit" tone="ghost">
-                    Revoke
-                  </Button>
-                </Form>
+                <PostButton fields={{ intent: "revoke", id: t.id }}>Revoke</PostButton>
               )}
             </li>
           ))}

@@ -116,7 +116,7 @@ export async function acceptInvitation(db: Db, token: string, password: string, 
 async function mailInvitation(
   mailer: Mailer,
   publicUrl: string,
-  to: { email: string; displayName: string; role: "teacher" | "student"; className: string; token: string },
+  to: { email: string; displayName: string; role: "teacher" | "student"; className: string; orgId: string; token: string },
 ) {
   const link = `${publicUrl}/invite/${to.token}`;
   const what =
@@ -124,6 +124,7 @@ async function mailInvitation(
       ? `Your guitar teacher has added you to the class "${to.className}" on Fretcall, where you practise reading music on the guitar.`
       : `You've been added as a teacher of "${to.className}" on Fretcall.`;
   await mailer.send({
+    orgId: to.orgId,
     to: to.email,
     subject: to.role === "student" ? `Join ${to.className} on Fretcall` : "You're invited to teach on Fretcall",
     text: `Hello ${to.displayName},\n\n${what} To choose your password and sign in, open this link within 7 days:\n\n${link}\n\nThe link works once. If you weren't expecting this, ignore this e-mail.\n`,
@@ -137,15 +138,27 @@ export async function mailInvitations(
   list: readonly { email: string; displayName: string; token: string }[],
   role: "teacher" | "student",
   className: string,
+  orgId: string,
 ) {
   let failed = 0;
   for (const invite of list) {
     try {
-      await mailInvitation(mailer, publicUrl, { ...invite, role, className });
+      await mailInvitation(mailer, publicUrl, { ...invite, role, className, orgId });
     } catch (error) {
       failed += 1;
       console.error("invitation e-mail failed", error);
     }
   }
   return failed;
+}
+
+/** The note that goes to an address added to a class while it has an account at another school. */
+export function addressInUseMail(publicUrl: string, to: { email: string; displayName: string }, role: "teacher" | "student", className: string) {
+  return {
+    // System mail: in the adding school's outbox it would tell them the address has an account.
+    orgId: null,
+    to: to.email,
+    subject: "Someone tried to add you on Fretcall",
+    text: `Hello,\n\nA ${role === "student" ? "guitar teacher" : "school"} on Fretcall tried to add this address, under the name ${to.displayName}, as a ${role} of the class "${className}". This address already has a Fretcall account, and one address can hold one account, so nothing was sent to join.\n\nIf you want to join that class, ask them to use another e-mail address. Your own account is unchanged; you can sign in at ${publicUrl}/signin. If you don't know them, ignore this e-mail.\n`,
+  };
 }

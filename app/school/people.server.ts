@@ -1,49 +1,32 @@
-// Classes, rosters and people: who may see a class, who is in it, and the admin's changes to the school.
+// Classes, rosters and people: who is in a class, and the admin's changes to the school (who may see what: app/auth/access.server.ts).
 import { and, eq, inArray, isNull, sql } from "drizzle-orm";
 import { nanoid } from "nanoid";
-import { data } from "react-router";
+import type { ClassRecord } from "~/auth/access.server";
 import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
+import { listSessions } from "~/auth/session.server";
+import { listApiTokens } from "~/auth/tokens.server";
 import {
   answers,
+  apiTokens,
+  assignments,
   assignmentTargets,
   classes,
   invitations,
+  mailLog,
   memberships,
+  passwordResets,
   practiceAnswers,
   rhythmAttempts,
+  roomEvents,
   roomPlayers,
   rooms,
   users,
+  userSessions,
 } from "~/db/schema";
 import { looksLikeRoomCode, newJoinCode, normaliseJoinCode } from "./joinCode";
 import { checkRosterRows, type CheckedRow, type RosterRow } from "./roster";
 import { createInvitation, revokeInvitations } from "./invitations.server";
-
-export interface ClassRecord {
-  id: string;
-  orgId: string;
-  name: string;
-  joinCode: string;
-}
-
-/**
- * A class's teachers and the school's admins may open it; anyone else gets a 404, not a hint that it
- * exists. Students are turned away earlier, by requireUserWithRole.
- */
-export async function requireClassAccess(db: Db, user: SessionUser, classId: string): Promise<ClassRecord> {
-  const [row] = await db
-    .select({ id: classes.id, orgId: classes.orgId, name: classes.name, joinCode: classes.joinCode, teaches: memberships.userId })
-    .from(classes)
-    .leftJoin(
-      memberships,
-      and(eq(memberships.classId, classes.id), eq(memberships.userId, user.id), eq(memberships.role, "teacher")),
-    )
-    .where(and(eq(classes.id, classId), eq(classes.orgId, user.orgId)));
-  if (!row || (user.role !== "admin" && !row.teaches)) throw data({ error: "No such class." }, { status: 404 });
-  const { teaches: _omit, ...cls } = row;
-  return cls;
-}
 
 export type SignInStatus = "nickname" | "active" | "invited" | "invite-expired";
 
@@ -82,7 +65,12 @@ export async function rosterOf(db: Db, classId: string, now = Date.now()): Promi
   }));
 }
 
-/** What the import needs to know about the e-mails in a batch: which belong to the school's students, which to nobody we may use. */
+/**
+ * What the import needs to know about the e-mails in a batch: which belong to the school's students,
+ * which to other people of the school, and which to accounts elsewhere. An address in use at
+ * another school is treated like a new one in every answer (adding someone must not tell whether
+ * an address has an account anywhere); see addStudents.
+ */
 async function emailOwners(db: Db, orgId: string, emails: string[]) {
   const found = emails.length
     ? await db
@@ -92,11 +80,13 @@ async function emailOwners(db: Db, orgId: string, emails: string[]) {
     : [];
   const reusable = new Map<string, { id: string; hasPassword: boolean }>();
   const blocked = new Map<string, string>();
+  const elsewhere = new Set<string>();
   for (const u of found) {
-    if (u.orgId === orgId && u.role === "student") reusable.set(u.email!, { id: u.id, hasPassword: Boolean(u.hasPassword) });
-    else blocked.set(u.email!, "This e-mail belongs to another account that can't join as a student.");
+    if (u.orgId !== orgId) elsewhere.add(u.email!);
+    else if (u.role === "student") reusable.set(u.email!, { id: u.id, hasPassword: Boolean(u.hasPassword) });
+    else blocked.set(u.email!, "This e-mail belongs to a teacher or admin of your school, who can't join as a student.");
   }
-  return { reusable, blocked };
+  return { reusable, blocked, elsewhere };
 }
 
 export async function checkRowsForClass(db: Db, cls: ClassRecord, rows: readonly RosterRow[]) {
@@ -108,7 +98,13 @@ export async function checkRowsForClass(db: Db, cls: ClassRecord, rows: readonly
     emails: roster.flatMap((r) => (r.email ? [r.email] : [])),
     blockedEmails: owners.blocked,
   });
-  return { checked, reusable: owners.reusable };
+  return { checked, reusable: owners.reusable, elsewhere: owners.elsewhere };
+}
+
+/** An address that already has an account at another school: its owner is told instead of invited. */
+export interface AddressInUse {
+  email: string;
+  displayName: string;
 }
 
 export interface InviteToSend {
@@ -120,39 +116,44 @@ export interface InviteToSend {
 /**
  * Adds checked rows to a class in one transaction: new students are created (nickname-only when
  * there is no e-mail); a student of the school who already has that e-mail is enrolled as they are.
- * Returns the invitations to mail, or the rows' errors when any row fails (nothing is stored then).
+ * An address in use at another school gives a nickname-only student here and a note to its owner,
+ * with the same answer as a new address. Returns the invitations and notes to mail, or the rows'
+ * errors when any row fails (nothing is stored then).
  */
 export async function addStudents(
   db: Db,
   cls: ClassRecord,
   invitedBy: string,
   rows: readonly RosterRow[],
-): Promise<{ ok: true; invites: InviteToSend[]; added: number } | { ok: false; rows: CheckedRow[] }> {
-  const { checked, reusable } = await checkRowsForClass(db, cls, rows);
+): Promise<{ ok: true; invites: InviteToSend[]; inUse: AddressInUse[]; added: number } | { ok: false; rows: CheckedRow[] }> {
+  const { checked, reusable, elsewhere } = await checkRowsForClass(db, cls, rows);
   if (rows.length === 0 || checked.some((r) => r.errors.length)) return { ok: false, rows: checked };
+  const inUse: AddressInUse[] = [];
   const invites = await db.transaction(async (tx) => {
     const out: InviteToSend[] = [];
     for (const row of checked) {
       const existing = row.email ? reusable.get(row.email) : undefined;
       const userId = existing?.id ?? nanoid();
+      const taken = Boolean(row.email && elsewhere.has(row.email));
+      if (taken) inUse.push({ email: row.email, displayName: row.name });
       if (!existing) {
         await tx.insert(users).values({
           id: userId,
           orgId: cls.orgId,
           role: "student",
           displayName: row.name,
-          email: row.email || null,
+          email: (!taken && row.email) || null,
         });
       }
       await tx.insert(memberships).values({ classId: cls.id, userId, role: "student" });
-      if (row.email && !existing?.hasPassword) {
+      if (row.email && !taken && !existing?.hasPassword) {
         const token = await createInvitation(tx, { userId, classId: cls.id, invitedBy });
         out.push({ email: row.email, displayName: row.name, token });
       }
     }
     return out;
   });
-  return { ok: true, invites, added: checked.length };
+  return { ok: true, invites, inUse, added: checked.length };
 }
 
 /** Takes a student off a class roster; their account and other classes stay. */
@@ -249,13 +250,25 @@ export async function setTeacher(db: Db, classId: string, userId: string, teach:
   }
 }
 
-/** A new teacher account, without a password until they accept the invitation to their first class. */
+/** Whether an address belongs to someone of this school (other schools' accounts are not told). */
+export async function emailInSchool(db: Db, orgId: string, email: string) {
+  const [row] = await db.select({ id: users.id }).from(users).where(and(eq(users.email, email), eq(users.orgId, orgId)));
+  return Boolean(row);
+}
+
+/**
+ * A new teacher account, without a password until they accept the invitation to their first class.
+ * When the address already has an account at another school, the teacher is added without it and
+ * no invitation is made (`token` undefined): the caller mails the address's owner a note instead,
+ * and answers as for a new address.
+ */
 export async function addTeacher(db: Db, orgId: string, input: { displayName: string; email: string; classId: string }, invitedBy: string) {
   const id = nanoid();
+  const [elsewhere] = await db.select({ id: users.id }).from(users).where(eq(users.email, input.email));
   return db.transaction(async (tx) => {
-    await tx.insert(users).values({ id, orgId, role: "teacher", displayName: input.displayName, email: input.email });
+    await tx.insert(users).values({ id, orgId, role: "teacher", displayName: input.displayName, email: elsewhere ? null : input.email });
     await tx.insert(memberships).values({ classId: input.classId, userId: id, role: "teacher" });
-    return { id, token: await createInvitation(tx, { userId: id, classId: input.classId, invitedBy }) };
+    return { id, token: elsewhere ? undefined : await createInvitation(tx, { userId: id, classId: input.classId, invitedBy }) };
   });
 }
 
@@ -279,34 +292,89 @@ export async function studentInSchool(db: Db, orgId: string, userId: string) {
   return row;
 }
 
+/** What a deleted student's seats in past rounds are called from then on (a valid nickname, so a replay accepts it). */
+export const REMOVED_STUDENT = "Removed student";
+
 /**
- * Deletes a student and everything that is theirs: the foreign keys cascade to memberships,
- * invitations, practice, rhythm attempts, assignment targets, tokens and mail log, and null the
- * account link of their seats in past rounds (the round's own figures stay for the class).
+ * Deletes a student and everything that names or identifies them, in one transaction:
+ * - the account, class places, invitations, reset links, API tokens, practice answers, rhythm
+ *   attempts, assignment targets and mail log rows (the foreign keys would cascade too, but a
+ *   pooled connection may lack `foreign_keys = ON`, so each is deleted by name);
+ * - their seats in past rounds stay for the class's figures, with the answers, but unlinked and
+ *   renamed REMOVED_STUDENT, and so does the nickname in each seat's join record in the round's
+ *   event log, which the results page and a restarted hub replay.
+ * Deleted pages are overwritten (secure_delete) and the WAL is copied back and emptied after the
+ * commit, so the name is gone from the database file and its WAL, not just unreachable.
+ *
+ * A student seated in a live round right now: the database is cleaned at once, and the room on the
+ * stage plays on from memory under the name it showed until it ends (its seat row is never written
+ * again); its results, and the room if the server restarts, show REMOVED_STUDENT.
  */
 export async function deleteStudent(db: Db, orgId: string, userId: string) {
-  const gone = await db
-    .delete(users)
-    .where(and(eq(users.id, userId), eq(users.orgId, orgId), eq(users.role, "student")))
-    .returning({ id: users.id });
-  return gone.length > 0;
+  const gone = await db.transaction(async (tx) => {
+    // Again here: the pool may lend this transaction a connection that openDb did not set up.
+    if (db.$client.protocol === "file") await tx.run(sql`PRAGMA secure_delete = ON`);
+    const [student] = await tx
+      .select({ id: users.id })
+      .from(users)
+      .where(and(eq(users.id, userId), eq(users.orgId, orgId), eq(users.role, "student")));
+    if (!student) return false;
+    const seats = (await tx.select({ id: roomPlayers.id }).from(roomPlayers).where(eq(roomPlayers.userId, userId))).map((s) => s.id);
+    if (seats.length) {
+      await tx
+        .update(roomEvents)
+        .set({ event: sql`json_set(${roomEvents.event}, '$.event.nickname', ${REMOVED_STUDENT})` })
+        .where(and(sql`json_extract(${roomEvents.event}, '$.event.type') = 'join'`, inArray(sql`json_extract(${roomEvents.event}, '$.event.playerId')`, seats)));
+      await tx.update(roomPlayers).set({ userId: null, nickname: REMOVED_STUDENT }).where(inArray(roomPlayers.id, seats));
+    }
+    // A table that keeps a user id belongs in this list too.
+    for (const table of [userSessions, memberships, invitations, passwordResets, apiTokens, assignmentTargets, practiceAnswers, rhythmAttempts, mailLog]) {
+      await tx.delete(table).where(eq(table.userId, userId));
+    }
+    await tx.delete(users).where(eq(users.id, userId));
+    return true;
+  });
+  // A remote database has no WAL of ours to empty.
+  if (gone && db.$client.protocol === "file") await emptyWal(db);
+  return gone;
 }
 
-/** Everything Fretcall keeps about one person, for them or their school's admin to download. */
+/**
+ * Copies the WAL into the database file and truncates it. A reader or the checkpointer thread may
+ * hold it up for a moment, so it is tried a few times; should it still not finish, the next
+ * checkpoint does the same (with secure_delete, the copied pages hold no trace of the row).
+ */
+async function emptyWal(db: Db) {
+  for (let attempt = 0; attempt < 20; attempt++) {
+    // The first column is 1 when the checkpoint could not finish; a busy error is tried again too,
+    // as the deletion itself is committed by now.
+    const done = await db.$client.execute("PRAGMA wal_checkpoint(TRUNCATE)").then(
+      (result) => Number(result.rows[0]?.[0] ?? 0) === 0,
+      () => false,
+    );
+    if (done) return;
+    await new Promise((r) => setTimeout(r, 50));
+  }
+}
+
+/**
+ * Everything Fretcall keeps about one person, for them or their school's admin to download. Never
+ * a secret: tokens and invitations are listed by name and dates, not by hash.
+ */
 export async function exportPersonalData(db: Db, userId: string) {
   const [profile] = await db
     .select({ id: users.id, displayName: users.displayName, email: users.email, role: users.role, createdAt: users.createdAt })
     .from(users)
     .where(eq(users.id, userId));
   if (!profile) return undefined;
-  const [classList, seats, practice, rhythm, invites, targets] = await Promise.all([
+  const [classList, seats, practice, rhythm, invites, targets, mail, tokens, devices] = await Promise.all([
     db
       .select({ className: classes.name, role: memberships.role, joinedAt: memberships.createdAt })
       .from(memberships)
       .innerJoin(classes, eq(classes.id, memberships.classId))
       .where(eq(memberships.userId, userId)),
     db
-      .select({ seatId: roomPlayers.id, nickname: roomPlayers.nickname, round: rooms.title, mode: rooms.mode, at: rooms.createdAt })
+      .select({ seatId: roomPlayers.id, roomId: rooms.id, nickname: roomPlayers.nickname, round: rooms.title, mode: rooms.mode, at: rooms.createdAt })
       .from(roomPlayers)
       .innerJoin(rooms, eq(rooms.id, roomPlayers.roomId))
       .where(eq(roomPlayers.userId, userId)),
@@ -317,23 +385,44 @@ export async function exportPersonalData(db: Db, userId: string) {
       .from(invitations)
       .innerJoin(classes, eq(classes.id, invitations.classId))
       .where(eq(invitations.userId, userId)),
-    db.select({ assignmentId: assignmentTargets.assignmentId }).from(assignmentTargets).where(eq(assignmentTargets.userId, userId)),
+    db
+      .select({ assignmentId: assignments.id, title: assignments.title, className: classes.name, dueAt: assignments.dueAt })
+      .from(assignmentTargets)
+      .innerJoin(assignments, eq(assignments.id, assignmentTargets.assignmentId))
+      .innerJoin(classes, eq(classes.id, assignments.classId))
+      .where(eq(assignmentTargets.userId, userId)),
+    db.select({ kind: mailLog.kind, subjectId: mailLog.subjectId, sentAt: mailLog.sentAt }).from(mailLog).where(eq(mailLog.userId, userId)),
+    listApiTokens(db, userId),
+    listSessions(db, userId),
   ]);
-  const roundAnswers = seats.length
-    ? await db
-        .select()
-        .from(answers)
-        .where(inArray(answers.playerId, seats.map((s) => s.seatId)))
-    : [];
+  const seatIds = seats.map((s) => s.seatId);
+  const [roundAnswers, events] = seatIds.length
+    ? await Promise.all([
+        db.select().from(answers).where(inArray(answers.playerId, seatIds)),
+        // Every record of a round's log that is about one of their seats (joins, answers, comings and goings).
+        db
+          .select({ roomId: roomEvents.roomId, seq: roomEvents.seq, at: roomEvents.at, event: roomEvents.event })
+          .from(roomEvents)
+          .where(inArray(sql`json_extract(${roomEvents.event}, '$.event.playerId')`, seatIds))
+          .orderBy(roomEvents.roomId, roomEvents.seq),
+      ])
+    : [[], []];
   return {
     exportedAt: new Date().toISOString(),
     profile,
     classes: classList,
-    rounds: seats.map((s) => ({ ...s, answers: roundAnswers.filter((a) => a.playerId === s.seatId) })),
+    rounds: seats.map((s) => ({
+      ...s,
+      answers: roundAnswers.filter((a) => a.playerId === s.seatId),
+      events: events.filter((e) => e.roomId === s.roomId),
+    })),
     practiceAnswers: practice,
     rhythmAttempts: rhythm,
     invitations: invites,
     assignedTo: targets,
+    mailSent: mail,
+    apiTokens: tokens,
+    devices,
   };
 }
 

@@ -53,19 +53,27 @@ describe("checkRosterRows", () => {
         row(8, "amani k."),
         row(9, "Gus", "bram@x.example"),
         row(10, "Hal", "t@x.example"),
+        row(11, "\u202Eeve"),
+        row(12, "Iv\u200Bo"),
+        row(13, "\u0410mani K."), // Cyrillic А: looks like Amani K., already in the class
+        row(14, "\u0415ve"), // Cyrillic Е: looks like Eve on line 5
       ],
       ctx,
     );
     expect(checked.map((r) => r.errors.map((e) => `${e.field}: ${e.message}`))).toEqual([
       ["name: Missing name."],
       ["email: That doesn't look like an e-mail address."],
-      ["name: Name is too long (at most 60 characters)."],
+      ["name: Keep a name under 60 characters."],
       [],
       ["name: Same name as line 5."],
       ["email: Same e-mail as line 5."],
       ["name: A student with this name is already in the class."],
       ["email: A student with this e-mail is already in the class."],
       ["email: Used by another account."],
+      ["name: Names can't contain text-direction control characters (U+202E)."],
+      ["name: Names can't contain invisible characters (U+200B)."],
+      ["name: Same name as line 8.", "name: A student with this name is already in the class."],
+      ["name: Same name as line 5."],
     ]);
   });
 });

@@ -3,6 +3,7 @@
 import Papa from "papaparse";
 import { z } from "zod";
 import { email as emailSchema, NAME_MAX } from "~/auth/schemas";
+import { cleanName, skeleton } from "~/lib/names";
 
 export const CSV_MAX_BYTES = 100_000;
 export const CSV_MAX_ROWS = 200;
@@ -71,26 +72,25 @@ function lineNumbers(records: number, text: string): number[] {
   return filled.length === records ? filled.map(({ i }) => i + 1) : Array.from({ length: records }, (_, i) => i + 1);
 }
 
-const fold = (name: string) => name.normalize("NFC").trim().replace(/\s+/g, " ").toLowerCase();
-
 /** Checks each row on its own and against the rows before it and the class as it is now. */
 export function checkRosterRows(rows: readonly RosterRow[], ctx: RosterContext): CheckedRow[] {
-  const classNames = new Set([...ctx.names].map(fold));
+  // Names that look alike ("Ana" and a Cyrillic "Аna") would be two students no one can tell apart.
+  const classNames = new Set([...ctx.names].map(skeleton));
   const classEmails = new Set([...ctx.emails].map((e) => e.toLowerCase()));
   const seenNames = new Map<string, number>();
   const seenEmails = new Map<string, number>();
   return rows.map((row) => {
     const errors: RowProblem[] = [];
     const problem = (field: RowProblem["field"], message: string) => errors.push({ field, message });
-    const name = row.name.trim().replace(/\s+/g, " ");
+    const clean = cleanName(row.name, { what: "a name", max: NAME_MAX, empty: "Missing name." });
+    const name = clean.ok ? clean.name : row.name.normalize("NFC").trim().replace(/\s+/g, " ");
     const email = row.email.trim().toLowerCase();
-    if (!name) problem("name", "Missing name.");
-    else if (name.length > NAME_MAX) problem("name", `Name is too long (at most ${NAME_MAX} characters).`);
+    if (!clean.ok) problem("name", clean.message);
     if (email) {
       const check = emailSchema.safeParse(email);
       if (!check.success) problem("email", check.error.issues[0]?.message ?? "Bad e-mail address.");
     }
-    const key = fold(name);
+    const key = skeleton(name);
     const where = (line: number) => (line > 0 ? `line ${line}` : "an earlier row");
     if (name && seenNames.has(key)) problem("name", `Same name as ${where(seenNames.get(key)!)}.`);
     if (email && seenEmails.has(email)) problem("email", `Same e-mail as ${where(seenEmails.get(email)!)}.`);

@@ -3,7 +3,9 @@ import { nanoid } from "nanoid";
 import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
 import { tunes } from "~/db/schema";
+import { cleanName } from "~/lib/names";
 import { parseScoreFile, type Tune as ParsedScore } from "~/music/musicxml";
+import { MusicError } from "~/music/pitch";
 import { BUILTIN_TUNES, builtinTune, type Tune, type TuneNote } from "./builtin";
 
 export const TITLE_MAX = 80;
@@ -23,7 +25,10 @@ export function toStoredTune(score: ParsedScore, title: string): Omit<Tune, "id"
 /** Parses an upload and stores it; a MusicError from the parser carries the message for the teacher. */
 export async function saveUploadedTune(db: Db, user: SessionUser, bytes: Uint8Array, typedTitle: string) {
   const score = parseScoreFile(bytes);
-  const title = (typedTitle.trim() || score.title || "Untitled tune").slice(0, TITLE_MAX);
+  // A typed title is the teacher's and is checked as it is; the score's own is cut to fit.
+  const clean = cleanName(typedTitle.trim() || [...(score.title || "Untitled tune")].slice(0, TITLE_MAX).join(""), { what: "the title", max: TITLE_MAX });
+  if (!clean.ok) throw new MusicError(`The tune's title can't be used: ${clean.message}`);
+  const title = clean.name;
   const stored = toStoredTune(score, title);
   const id = nanoid();
   await db.insert(tunes).values({
@@ -45,7 +50,7 @@ const fromRow = (row: typeof tunes.$inferSelect): Tune => ({
   composer: row.composer,
   keyFifths: row.keyFifths,
   beatsPerBar: row.beatsPerBar,
-  notes: row.notes as TuneNote[],
+  notes: row.notes,
 });
 
 /** The school's uploaded tunes after the built-in ones. */

@@ -46,6 +46,11 @@ test("a new teacher starts a studio; empty fields get clear errors first", async
   await page.getByLabel("Password again").fill("strings and frets");
   await shot(page, "signup");
   await page.getByRole("button", { name: "Create studio" }).click();
+  await expect(page.getByText("Open the link in it within 24 hours")).toBeVisible();
+  const mail = (await readMail()).find((m) => m.to.includes("bettany@harbourlight.example"));
+  const link = new URL(mail!.text.match(/https?:\/\/\S+\/signup\?studio=\S+/)![0]);
+  await page.goto(link.pathname + link.search);
+  await page.getByRole("button", { name: "Create my studio" }).click();
   await expect(page).toHaveURL(/\/admin$/);
   await expect(page.getByRole("heading", { name: "Your school" })).toBeVisible();
 });
@@ -64,4 +69,48 @@ test("password reset through the captured e-mail", async ({ page }) => {
   await expect(page.getByText("Your password is changed.")).toBeVisible();
   await signIn(page, "saoirse@larkspur.example", "a fresh reading password");
   await expect(page).toHaveURL(/\/teach$/);
+});
+
+test("a teacher signs another browser out from Settings and changes the password", async ({ browser, page }) => {
+  const email = `ilse-${Date.now()}@marrowgate.example`;
+  const other = await browser.newContext();
+  const laptop = await other.newPage();
+  await laptop.goto("/signup");
+  await laptop.getByLabel("Studio or school name").fill("Marrowgate Strings");
+  await laptop.getByLabel("Your name").fill("Ilse Penhallow");
+  await laptop.getByLabel("E-mail").fill(email);
+  await laptop.getByLabel("Password", { exact: true }).fill("first long password");
+  await laptop.getByLabel("Password again").fill("first long password");
+  await laptop.getByRole("button", { name: "Create studio" }).click();
+  await expect(laptop).toHaveURL(/\/admin$/);
+
+  // The same account on a second browser (the test's own page).
+  await signIn(page, email, "first long password");
+  await expect(page).toHaveURL(/\/admin$/);
+
+  await laptop.getByRole("link", { name: "Settings" }).click();
+  await expect(laptop.getByRole("heading", { name: "Signed-in devices" })).toBeVisible();
+  await expect(laptop.getByText("this device")).toHaveCount(1);
+  await expect(laptop.getByRole("button", { name: /Sign out (here|there)/ })).toHaveCount(2);
+  await shot(laptop, "settings-devices");
+  await laptop.getByRole("button", { name: "Sign out there" }).click();
+  await expect(laptop.getByText("That device is signed out.")).toBeVisible();
+  await page.goto("/admin");
+  await expect(page).toHaveURL(/\/signin\?redirectTo=%2Fadmin/);
+
+  await laptop.getByRole("link", { name: "Password" }).click();
+  await laptop.getByLabel("Current password").fill("not the password");
+  await laptop.getByLabel("New password", { exact: true }).fill("second long password");
+  await laptop.getByLabel("New password again").fill("second long password");
+  await laptop.getByRole("button", { name: "Change password" }).click();
+  await expect(laptop.getByText("That isn't your current password.")).toBeVisible();
+  await laptop.getByLabel("Current password").fill("first long password");
+  await laptop.getByLabel("New password", { exact: true }).fill("second long password");
+  await laptop.getByLabel("New password again").fill("second long password");
+  await laptop.getByRole("button", { name: "Change password" }).click();
+  await expect(laptop.getByText("Your password is changed.")).toBeVisible();
+  await shot(laptop, "settings-password");
+  await other.close();
+  await signIn(page, email, "second long password");
+  await expect(page).toHaveURL(/\/admin$/);
 });

@@ -3,7 +3,16 @@ import { readOutbox } from "~/mail/outbox.server";
 
 export const DEMO_PASSWORD = "fretcall-demo";
 export const MAIL_DIR = "tests/.tmp/e2e-mail";
-export const readMail = () => readOutbox(MAIL_DIR);
+/** The captured mail once it has settled: mail leaves after the answer, from a queue. */
+export async function readMail() {
+  let mail = await readOutbox(MAIL_DIR);
+  for (;;) {
+    await new Promise((done) => setTimeout(done, 250));
+    const again = await readOutbox(MAIL_DIR);
+    if (again.length === mail.length) return again;
+    mail = again;
+  }
+}
 
 /**
  * Every test records the hosts its pages asked for; any host but this one fails the test

@@ -161,3 +161,75 @@ test("a Teams round splits the class into even teams and ranks the teams", async
   await expect(stage.getByText(/\(2\)$/)).toHaveCount(2);
   await shot(stage, "stage-teams-end");
 });
+
+test("a reloaded stage shows the screen it had, phase by phase", async ({ page: stage, browser }) => {
+  test.setTimeout(240_000);
+  await stage.setViewportSize({ width: 1280, height: 800 });
+  const code = await hostRound(stage, "Sprint", SPRINT_NOTES);
+  const pad = await joinOnPhone(browser, code, "Lu");
+  const button = (name: string) => stage.getByRole("button", { name, exact: true });
+  const paused = stage.getByText("Paused", { exact: true });
+  const secondsLeft = stage.locator("p", { hasText: /s left$/ });
+
+  await expect(stage.getByText("Players (1)")).toBeVisible();
+  await stage.reload();
+  await expect(stage.getByText("Players (1)")).toBeVisible();
+  await expect(button("▶ Start")).toBeVisible();
+
+  // Paused during the countdown (or just after): the note and the time left stay as they were.
+  await button("▶ Start").click();
+  await button("Pause").click();
+  await expect(paused).toBeVisible();
+  const held = await secondsLeft.textContent();
+  await stage.reload();
+  await expect(paused).toBeVisible();
+  await expect(stage.getByText(`Note 1 of ${SPRINT_NOTES}`)).toBeVisible();
+  await expect(secondsLeft).toHaveText(held!);
+  await expect(button("▶ Resume")).toBeVisible();
+
+  await button("▶ Resume").click();
+  await expect(pad.getByText("Find the note on the class screen")).toBeVisible();
+  await stage.reload();
+  await expect(stage.getByText(`Note 1 of ${SPRINT_NOTES}`)).toBeVisible();
+  await expect(stage.getByText("0/1")).toBeVisible();
+  await expect(button("Skip")).toBeVisible();
+  await expect(paused).toBeHidden();
+
+  const note = await currentNote(stage);
+  await tapSpot(pad, note.home);
+  await expect(stage.getByText("1/1")).toBeVisible();
+  await stage.reload();
+  await expect(stage.getByText("1/1")).toBeVisible();
+  await expect(stage.getByText(`string ${note.home.string}, ${note.home.fret === 0 ? "open" : `fret ${note.home.fret}`}`)).toBeVisible();
+  await expect(button("Next ▶")).toBeVisible();
+  // The phone, reloaded too, still shows its verdict beside the reveal.
+  await pad.reload();
+  await expect(pad.getByText("Home spot!")).toBeVisible();
+
+  for (let i = 2; i <= 5; i++) {
+    await button("Next ▶").click();
+    await expect(stage.getByText(`Note ${i} of ${SPRINT_NOTES}`)).toBeVisible();
+    await button("Skip").click();
+    await expect(stage.getByText("0/1")).toBeVisible();
+  }
+  await button("Next ▶").click();
+  const standings = stage.getByRole("heading", { name: "Standings", exact: true });
+  await expect(standings).toBeVisible();
+  await stage.reload();
+  await expect(standings).toBeVisible();
+  await expect(button("Next ▶")).toBeVisible();
+  await button("Pause").click();
+  await stage.reload();
+  await expect(paused).toBeVisible();
+  await expect(standings).toBeVisible();
+  await expect(button("▶ Resume")).toBeVisible();
+
+  await button("■ End").click();
+  await button("Really end?").click();
+  await expect(stage.getByText("Round complete")).toBeVisible();
+  await stage.reload();
+  await expect(stage.getByText("Round complete")).toBeVisible();
+  await expect(stage.getByText("Final standings")).toBeVisible();
+  await expect(stage.getByRole("link", { name: "See note-by-note results" })).toBeVisible();
+  await expect(stage.getByRole("alert")).toHaveCount(0);
+});

@@ -117,16 +117,16 @@ describe("who may see assignments", () => {
     expect(body.assignments[0]!.practiceUrl).toMatch(/\/me\/practice\?assignment=demo-assignment-tue$/);
   });
 
-  it("lets a teacher see only their own classes; others' are 404, not a hint", async () => {
+  it("lets a teacher see only their own classes; the school's others are 403, unknown ones 404", async () => {
     const rafe = await signIn(S.teachers[0].email);
     expect((await rafe.get(tuePage)).status).toBe(200);
     expect((await rafe.get(tueApi)).status).toBe(200);
-    expect((await rafe.get("/teach/classes/demo-class-sat/assignments")).status).toBe(404);
-    expect((await rafe.get("/teach/classes/demo-class-sat/assignments/new")).status).toBe(404);
-    expect((await rafe.get("/api/v1/classes/demo-class-sat/assignments")).status).toBe(404);
+    expect((await rafe.get("/teach/classes/demo-class-sat/assignments")).status).toBe(403);
+    expect((await rafe.get("/teach/classes/demo-class-sat/assignments/new")).status).toBe(403);
+    expect((await rafe.get("/api/v1/classes/demo-class-sat/assignments")).status).toBe(403);
     expect((await rafe.get("/api/v1/classes/no-such-class/assignments")).status).toBe(404);
-    // Deleting another teacher's assignment: 404, and it stays.
-    expect((await rafe.post("/teach/classes/demo-class-sat/assignments", { intent: "delete", id: "demo-assignment-sat" })).status).toBe(404);
+    // Deleting another teacher's assignment: 403, and it stays.
+    expect((await rafe.post("/teach/classes/demo-class-sat/assignments", { intent: "delete", id: "demo-assignment-sat" })).status).toBe(403);
     expect(await db().select().from(assignments).where(eq(assignments.id, "demo-assignment-sat"))).toHaveLength(1);
     expect((await rafe.get("/api/v1/me/assignments")).status).toBe(403);
   });

@@ -6,6 +6,7 @@ import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
 import { createClass } from "~/school/people.server";
 import { seedDemo } from "../../server/seed";
 import { Client, startTestServer, type TestServer } from "./harness";
+import { testRoomConfig } from "../../server/scripted-rooms";
 
 let server: TestServer;
 const db = () => server.services.db;
@@ -79,20 +80,20 @@ describe("role matrix: route × role → status", () => {
   } as const;
   type R = keyof typeof roles;
   const self = "demo-student-1";
-  // 302 = sent to sign in; 403 = wrong role; 404 = not theirs (no hint that it exists).
+  // 302 = sent to sign in; 403 = wrong role, or the school's but not theirs; 404 = no such thing in their school.
   const table: [string, Record<R, number>][] = [
     ["/admin", { anonymous: 302, student: 403, teacherOfClass: 403, otherTeacher: 403, admin: 200 }],
     ["/admin/students/demo-student-2", { anonymous: 302, student: 403, teacherOfClass: 403, otherTeacher: 403, admin: 200 }],
     ["/admin/students/demo-teacher-rafe", { anonymous: 302, student: 403, teacherOfClass: 403, otherTeacher: 403, admin: 404 }],
-    [`/teach/classes/${TUE}`, { anonymous: 302, student: 403, teacherOfClass: 200, otherTeacher: 404, admin: 200 }],
+    [`/teach/classes/${TUE}`, { anonymous: 302, student: 403, teacherOfClass: 200, otherTeacher: 403, admin: 200 }],
     ["/teach/classes/no-such-class", { anonymous: 302, student: 403, teacherOfClass: 404, otherTeacher: 404, admin: 404 }],
     ["/me", { anonymous: 302, student: 200, teacherOfClass: 403, otherTeacher: 403, admin: 403 }],
     ["/me/join-class", { anonymous: 302, student: 200, teacherOfClass: 403, otherTeacher: 403, admin: 403 }],
     ["/invite/not-a-real-token", { anonymous: 200, student: 200, teacherOfClass: 200, otherTeacher: 200, admin: 200 }],
-    [`/people/${self}/export.json`, { anonymous: 302, student: 200, teacherOfClass: 404, otherTeacher: 404, admin: 200 }],
-    ["/people/demo-student-2/export.json", { anonymous: 302, student: 404, teacherOfClass: 404, otherTeacher: 404, admin: 200 }],
+    [`/people/${self}/export.json`, { anonymous: 302, student: 200, teacherOfClass: 403, otherTeacher: 403, admin: 200 }],
+    ["/people/demo-student-2/export.json", { anonymous: 302, student: 403, teacherOfClass: 403, otherTeacher: 403, admin: 200 }],
     ["/api/v1/classes", { anonymous: 401, student: 200, teacherOfClass: 200, otherTeacher: 200, admin: 200 }],
-    [`/api/v1/classes/${TUE}/roster`, { anonymous: 401, student: 403, teacherOfClass: 200, otherTeacher: 404, admin: 200 }],
+    [`/api/v1/classes/${TUE}/roster`, { anonymous: 401, student: 403, teacherOfClass: 200, otherTeacher: 403, admin: 200 }],
   ];
   const clients: Partial<Record<R, Client>> = {};
   beforeAll(async () => {
@@ -111,7 +112,7 @@ describe("role matrix: route × role → status", () => {
   it("refuses the class page's actions to another teacher, and changes nothing", async () => {
     const before = await studentsIn(TUE);
     const res = await clients.otherTeacher!.post(`/teach/classes/${TUE}`, { intent: "add", name: "Intruder X." });
-    expect(res.status).toBe(404);
+    expect(res.status).toBe(403);
     expect(await studentsIn(TUE)).toEqual(before);
   });
 
@@ -161,11 +162,11 @@ describe("CSV import", () => {
     for (const message of [
       "Missing name.",
       "That doesn't look like an e-mail address.",
-      "Name is too long (at most 60 characters).",
+      "Keep a name under 60 characters.",
       "A student with this name is already in the class.",
       "A student with this e-mail is already in the class.",
       "Same name as line 7.",
-      "This e-mail belongs to another account that can't join as a student.",
+      "This e-mail belongs to a teacher or admin of your school, who can't join as a student.",
     ]) {
       expect(page).toContain(message);
     }
@@ -265,14 +266,14 @@ describe("invitations through the captured e-mail", () => {
     const res = await admin.post("/admin", { intent: "addTeacher", displayName: "Pim Quarles", email: "pim@example.org", classId });
     expect(await html(res)).toContain("Added Pim Quarles to Invite Test Class");
     const dup = await admin.post("/admin", { intent: "addTeacher", displayName: "Pim Again", email: "PIM@example.org", classId });
-    expect(await html(dup)).toContain("An account with this e-mail already exists.");
+    expect(await html(dup)).toContain("Someone in your school already has this e-mail.");
     const link = await inviteLink("pim@example.org");
     const pim = new Client(server.url);
     const done = await pim.post(link, password);
     expect(done.headers.get("location")).toBe("/teach");
     const list = (await (await pim.get("/api/v1/classes")).json()) as { classes: { name: string }[] };
     expect(list.classes.map((c) => c.name)).toEqual(["Invite Test Class"]);
-    expect((await pim.get(`/teach/classes/${TUE}`)).status).toBe(404);
+    expect((await pim.get(`/teach/classes/${TUE}`)).status).toBe(403);
   });
 
   it("lets a signed-in student join a class by its code", async () => {
@@ -304,7 +305,7 @@ describe("API with a personal token", () => {
     const body = (await roster.json()) as { class: { joinCode: string }; students: { displayName: string }[] };
     expect(body.class.joinCode).toBe("TUEBEG");
     expect(body.students.map((s) => s.displayName)).toContain("Amani K.");
-    expect((await get("/api/v1/classes/demo-class-sat/roster")).status).toBe(404);
+    expect((await get("/api/v1/classes/demo-class-sat/roster")).status).toBe(403);
     expect(await revokeApiToken(db(), RAFE.id, id)).toBe(true);
     expect((await get("/api/v1/classes")).status).toBe(401);
     expect((await get(`/api/v1/classes/${TUE}/roster`)).status).toBe(401);
@@ -340,7 +341,7 @@ describe("removing and deleting students", () => {
       title: "Old round",
       mode: "sprint",
       position: 5,
-      config: {},
+      config: testRoomConfig("DELTST"),
       endedAt: new Date(),
     });
     await db().insert(roomPlayers).values({ id: "seat-delete-test", roomId: "room-delete-test", userId: victim, nickname: "Bram" });

@@ -4,7 +4,7 @@ import { afterAll, describe, expect, it } from "vitest";
 import { closeDb, openDb } from "~/db/client.server";
 import { rooms } from "~/db/schema";
 import { ensureDemo, seedDemo } from "../../server/seed";
-import { openTestRoom } from "./rooms";
+import { openTestRoom } from "../../server/scripted-rooms";
 
 const db = await openDb(process.env.DATABASE_URL!);
 afterAll(() => closeDb(db));

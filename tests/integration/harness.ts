@@ -1,4 +1,5 @@
 import { randomBytes } from "node:crypto";
+import { DEMO_PASSWORD } from "~/demo/school";
 import { readOutbox, type CapturedMail } from "~/mail/outbox.server";
 import { startServer, type RunningServer } from "../../server/index";
 import { startMailCatcher } from "../../server/mail-catcher";
@@ -22,12 +23,17 @@ export async function startTestServer(extra: Record<string, string> = {}): Promi
     SESSION_SECRET: randomBytes(24).toString("hex"),
     SMTP_URL: catcher.url,
     MAIL_DIR: mailDir,
+    LOG_LEVEL: "silent",
     ...extra,
   });
   return {
     ...running,
     mailDir,
-    mail: () => readOutbox(mailDir),
+    // Mail leaves after the answer, from a queue: wait for what is queued so far.
+    mail: async () => {
+      await running.services.mailQueue.idle();
+      return readOutbox(mailDir);
+    },
     async close() {
       await running.close();
       await catcher.close();
@@ -71,4 +77,12 @@ export class Client {
   post(path: string, fields: Record<string, string>) {
     return this.request(path, { method: "POST", body: new URLSearchParams(fields) });
   }
+}
+
+/** A client signed in with a demo account's password (the sign-in must succeed). */
+export async function signedIn(base: string, email: string, password = DEMO_PASSWORD) {
+  const client = new Client(base);
+  const res = await client.post("/signin", { email, password });
+  if (res.status !== 302) throw new Error(`signing in as ${email} answered ${res.status}`);
+  return client;
 }

@@ -1,11 +1,12 @@
 import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { answers, roomPlayers, rooms } from "~/db/schema";
-import { CLOSE_CODES, MAX_MESSAGE_BYTES, PROTOCOL_VERSION, RATE_LIMIT_BURST } from "~/game/protocol";
+import { CLOSE_CODES, MAX_MESSAGE_BYTES, PROTOCOL_VERSION, RATE_LIMIT_BURST, type HostAction, type ServerMessage, type ServerMessageOf } from "~/game/protocol";
+import { hostKeyFor } from "~/rooms/rooms.server";
 import { seedDemo } from "../../server/seed";
-import { startTestServer, type TestServer } from "./harness";
-import { joinPlayer, openStage, openTestRoom, spotOf, untilShown } from "./rooms";
-import { TestSocket } from "./socket";
+import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
+import { Client, startTestServer, type TestServer } from "./harness";
+import { joinPlayer, openStage, openTestRoom, ScriptedSocket, spotOf, untilShown } from "../../server/scripted-rooms";
 
 let server: TestServer;
 let secret: string;
@@ -70,7 +71,7 @@ describe("a full Sprint round with 30 scripted players", () => {
 describe("bad input never crashes or stalls the room", () => {
   it("answers malformed JSON, unknown types and bad fields with an error message", async () => {
     const room = await openTestRoom(server.services.db);
-    const s = await TestSocket.open(server.url);
+    const s = await ScriptedSocket.open(server.url);
     s.send("{not json");
     expect((await s.next("error")).code).toBe("bad-message");
     s.send({ type: "launch-rockets" });
@@ -84,17 +85,17 @@ describe("bad input never crashes or stalls the room", () => {
   });
 
   it("closes an oversized message with the documented code", async () => {
-    const s = await TestSocket.open(server.url);
+    const s = await ScriptedSocket.open(server.url);
     s.send({ type: "join", room: "ABCDEF", nickname: "x".repeat(MAX_MESSAGE_BYTES) });
     expect((await s.waitClose()).code).toBe(CLOSE_CODES.tooLarge);
   });
 
   it("refuses a wrong protocol version and a forged host key", async () => {
     const room = await openTestRoom(server.services.db);
-    const old = await TestSocket.open(server.url);
+    const old = await ScriptedSocket.open(server.url);
     old.send({ type: "hello", protocol: PROTOCOL_VERSION + 1, role: "player", room: room.code });
     expect((await old.waitClose()).code).toBe(CLOSE_CODES.badVersion);
-    const forger = await TestSocket.open(server.url);
+    const forger = await ScriptedSocket.open(server.url);
     forger.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "host", room: room.code, hostKey: "f".repeat(43) });
     expect((await forger.waitClose()).code).toBe(CLOSE_CODES.unauthorised);
   });
@@ -108,14 +109,14 @@ describe("bad input never crashes or stalls the room", () => {
   });
 
   it("rate-limits a flood, then closes the socket", async () => {
-    const s = await TestSocket.open(server.url);
+    const s = await ScriptedSocket.open(server.url);
     for (let i = 0; i < RATE_LIMIT_BURST + 40; i++) s.send({ type: "ping", t0: i });
     await s.next("error", (m) => m.code === "rate-limited");
     expect((await s.waitClose()).code).toBe(CLOSE_CODES.rateLimited);
   });
 
   it("refuses a socket from another site", async () => {
-    await expect(TestSocket.open(server.url, "http://elsewhere.example")).rejects.toThrow(/403/);
+    await expect(ScriptedSocket.open(server.url, "http://elsewhere.example")).rejects.toThrow(/403/);
   });
 
   it("refuses second answers, answers to another prompt and answers after the deadline", async () => {
@@ -159,8 +160,8 @@ describe("reconnecting", () => {
     const ack = await pad.next("answer-ack");
     pad.close();
     await stage.next("roster", (m) => m.players.some((p) => p.playerId === you.playerId && !p.online));
-    const again = await TestSocket.open(server.url);
-    again.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: room.code, seat: you.seat });
+    const again = await ScriptedSocket.open(server.url);
+    again.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: room.code, seatToken: you.seatToken });
     const welcome = await again.next("welcome", (m) => m.you !== null);
     expect(welcome.you!.playerId).toBe(you.playerId);
     const restored = await again.next("answer-ack");
@@ -168,6 +169,60 @@ describe("reconnecting", () => {
     await stage.next("roster", (m) => m.players.some((p) => p.playerId === you.playerId && p.online));
     again.close();
     other.pad.close();
+    stage.close();
+  });
+});
+
+describe("a reloaded stage", () => {
+  it("gets the phase and the screen it had, in every phase", async () => {
+    const room = await openTestRoom(server.services.db, { prompts: 2, countdownMs: 3_000, standingsEvery: 1 });
+    const stage = await openStage(server.url, secret, room);
+    const { pad } = await joinPlayer(server.url, room.code, "Zia");
+    /** A second stage, as after a reload: its snapshot, up to the message that ends it. */
+    const reload = async (last: ServerMessage["type"]) => {
+      const again = await ScriptedSocket.open(server.url);
+      again.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "host", room: room.code, hostKey: hostKeyFor(secret, room.id) });
+      await again.next(last);
+      again.close();
+      return again.messages;
+    };
+    const phases = (messages: ServerMessage[]) => messages.flatMap((m) => ("phase" in m ? [`${m.type}:${m.phase}`] : []));
+    const act = async (action: HostAction, type: ServerMessage["type"]) => {
+      const from = stage.messages.length;
+      stage.send({ type: "host", action });
+      return stage.next(type, () => true, from);
+    };
+
+    expect(phases(await reload("roster"))).toEqual(["welcome:lobby"]);
+    const prompt = (await act("start", "prompt")) as ServerMessageOf<"prompt">;
+    // The countdown: the prompt comes back with its note still to show.
+    const counting = await reload("answered");
+    expect(phases(counting)).toEqual(["welcome:prompt", "prompt:prompt"]);
+    expect(counting.find((m) => m.type === "prompt")).toMatchObject({ promptId: prompt.promptId, showAt: prompt.showAt });
+    expect((counting[0] as ServerMessageOf<"welcome">).serverTime).toBeLessThan(prompt.showAt);
+    await untilShown(prompt.showAt);
+    expect(phases(await reload("answered"))).toEqual(["welcome:prompt", "prompt:prompt"]);
+    pad.send({ type: "answer", promptId: prompt.promptId, spot: spotOf(room.config.prompts[0]!.home), tapAt: Date.now() });
+    await stage.next("reveal");
+    const revealed = await reload("reveal");
+    expect(phases(revealed)).toEqual(["welcome:reveal", "prompt:reveal", "reveal:reveal"]);
+    expect(revealed.find((m) => m.type === "answered")).toMatchObject({ count: 1, of: 1 });
+    await act("pause", "paused");
+    expect(phases(await reload("paused"))).toEqual(["welcome:paused", "prompt:paused", "reveal:paused", "paused:paused"]);
+    expect((await reload("paused")).at(-1)).toMatchObject({ pausedFrom: "reveal" });
+    expect(await act("resume", "resumed")).toMatchObject({ phase: "reveal" });
+    await act("next", "standings");
+    expect(phases(await reload("standings"))).toEqual(["welcome:standings", "standings:standings"]);
+    await act("end", "ended");
+    // An ended room is no longer live: the stage page draws its last screen from the log.
+    expect((await reload("error")).at(-1)).toMatchObject({ code: "room-not-found" });
+    const teacher = new Client(server.url);
+    expect((await teacher.post("/signin", { email: DEMO_SCHOOL.teachers[0].email, password: DEMO_PASSWORD })).status).toBe(302);
+    const page = await (await teacher.get(`/stage/${room.id}`)).text();
+    expect(page).toContain("Round complete");
+    expect(page).toContain("Final standings");
+    expect(page).toContain("Zia");
+    pad.close();
     stage.close();
   });
 });

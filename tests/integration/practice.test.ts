@@ -223,10 +223,11 @@ describe("who may write and read practice", () => {
     expect(own.status).toBe(200);
     expect((await own.json()).answers).toHaveLength(5);
     for (const client of [rafe, admin]) expect((await client.get(`/api/v1/practice/answers?student=${AMANI}`)).status).toBe(200);
+    // Another teacher or student of the school: 403 (another school's users get 404: tests/integration/tenancy.test.ts).
     for (const client of [saoirse, other]) {
       const res = await client.get(`/api/v1/practice/answers?student=${AMANI}`);
-      expect(res.status).toBe(404);
-      expect(await res.json()).toEqual({ error: "No such student." });
+      expect(res.status).toBe(403);
+      expect(await res.json()).toMatchObject({ error: expect.stringContaining("teachers") });
     }
     expect((await anon().get("/api/v1/practice/answers")).status).toBe(401);
     expect((await amani.get("/api/v1/practice/answers?since=yesterday")).status).toBe(400);

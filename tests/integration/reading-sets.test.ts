@@ -42,18 +42,18 @@ describe("reading sets and home-spot maps: route × role → status", () => {
     admin: DEMO_SCHOOL.admin.email,
   } as const;
   type R = keyof typeof roles;
-  // 302 = sent to sign in; 404 = not theirs (no hint that it exists).
+  // 302 = sent to sign in; 403 = the school's but not theirs; 404 = not in their school (no hint that it exists).
   const table: [string, Record<R, number>][] = [
     ["/teach/sets", { anonymous: 302, student: 403, teacher: 200, otherSchool: 200, admin: 200 }],
     ["/teach/sets/new", { anonymous: 302, student: 403, teacher: 200, otherSchool: 200, admin: 200 }],
     ["/teach/sets/demo-set-tue-1", { anonymous: 302, student: 403, teacher: 200, otherSchool: 404, admin: 200 }],
-    ["/teach/sets/demo-set-sat-1", { anonymous: 302, student: 403, teacher: 404, otherSchool: 404, admin: 200 }],
+    ["/teach/sets/demo-set-sat-1", { anonymous: 302, student: 403, teacher: 403, otherSchool: 404, admin: 200 }],
     ["/teach/sets/demo-set-school", { anonymous: 302, student: 403, teacher: 200, otherSchool: 404, admin: 200 }],
     ["/teach/classes/demo-class-tue/maps?position=5&tuning=standard", { anonymous: 302, student: 403, teacher: 200, otherSchool: 404, admin: 200 }],
-    ["/teach/classes/demo-class-sat/maps", { anonymous: 302, student: 403, teacher: 404, otherSchool: 404, admin: 200 }],
+    ["/teach/classes/demo-class-sat/maps", { anonymous: 302, student: 403, teacher: 403, otherSchool: 404, admin: 200 }],
     ["/api/v1/reading-sets", { anonymous: 401, student: 403, teacher: 200, otherSchool: 200, admin: 200 }],
     ["/api/v1/reading-sets/demo-set-tue-1", { anonymous: 401, student: 403, teacher: 200, otherSchool: 404, admin: 200 }],
-    ["/api/v1/reading-sets/demo-set-sat-1", { anonymous: 401, student: 403, teacher: 404, otherSchool: 404, admin: 200 }],
+    ["/api/v1/reading-sets/demo-set-sat-1", { anonymous: 401, student: 403, teacher: 403, otherSchool: 404, admin: 200 }],
     ["/api/v1/reading-sets/ready-naturals-5", { anonymous: 401, student: 403, teacher: 200, otherSchool: 200, admin: 200 }],
   ];
   const clients: Partial<Record<R, Client>> = {};
@@ -148,7 +148,7 @@ describe("creating and editing a reading set", () => {
     const id = copy.headers.get("location")!.split("/").pop()!;
     const [row] = await server.services.db.select().from(readingSets).where(eq(readingSets.id, id));
     expect(row).toMatchObject({ name: "One flat: F major", classId: "demo-class-thu", spec: { keyFifths: -1 } });
-    expect((await post(client, "/teach/sets", { intent: "delete", id: "demo-set-sat-2" })).status).toBe(404);
+    expect((await post(client, "/teach/sets", { intent: "delete", id: "demo-set-sat-2" })).status).toBe(403);
     expect((await post(client, "/teach/sets", { intent: "delete", id })).status).toBe(302);
     expect(await server.services.db.select().from(readingSets).where(eq(readingSets.id, id))).toEqual([]);
   });
@@ -232,8 +232,7 @@ describe("hosting from reading sets", () => {
     const client = await signIn(rafe);
     const res = await client.post("/host", { intent: "set", set: "ready-g-major-5", classId: "" });
     expect((await roomOf(res.headers.get("location"))).title).toBe("One sharp: G major · Sprint");
-    const refused = await client.post("/host", { intent: "set", set: "demo-set-sat-1", classId: "" });
-    expect(await refused.text()).toContain("That reading set doesn&#x27;t exist or needs an edit first.");
+    expect((await client.post("/host", { intent: "set", set: "demo-set-sat-1", classId: "" })).status).toBe(403);
     const notMine = await (await signIn(OTHER.email)).post("/host", { intent: "again", roomId: (await roomOf(res.headers.get("location"))).id });
     expect(notMine.status).toBe(404);
   });

@@ -9,8 +9,7 @@ import { answers } from "~/db/schema";
 import { PROTOCOL_VERSION } from "~/game/protocol";
 import { LATE_GRACE_MS } from "~/game/room";
 import { seedDemo } from "../../server/seed";
-import { joinPlayer, openStage, openTestRoom, spotOf, untilShown } from "./rooms";
-import { TestSocket } from "./socket";
+import { joinPlayer, openStage, openTestRoom, ScriptedSocket, spotOf, untilShown } from "../../server/scripted-rooms";
 
 const SECRET = "restart-test-secret-0123456789abcdef0123";
 
@@ -113,8 +112,8 @@ describe("kill and restart mid-round", () => {
     const stage2 = await openStage(url, SECRET, room);
     expect((await stage2.next("welcome")).phase).toBe("paused");
     for (const { you } of players) {
-      const pad = await TestSocket.open(url);
-      pad.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: room.code, seat: you.seat });
+      const pad = await ScriptedSocket.open(url);
+      pad.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: room.code, seatToken: you.seatToken });
       expect((await pad.next("welcome", (m) => m.you !== null)).you!.playerId).toBe(you.playerId);
     }
     stage2.send({ type: "host", action: "resume" });

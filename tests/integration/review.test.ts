@@ -6,7 +6,7 @@ import { answers, classes, memberships, roomPlayers, rooms } from "~/db/schema";
 import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
 import { seedDemo } from "../../server/seed";
 import { Client, startTestServer, type TestServer } from "./harness";
-import { openTestRoom } from "./rooms";
+import { openTestRoom } from "../../server/scripted-rooms";
 
 let server: TestServer;
 beforeAll(async () => {
@@ -36,8 +36,8 @@ beforeAll(async () => {
 });
 
 describe("class review: route × role → status", () => {
-  // 302 = sent to sign in; 403 = wrong role; 404 = not one of your classes (no hint it exists).
-  const page = { anonymous: 302, student: 403, rafe: 200, saoirse: 404, admin: 200 };
+  // 302 = sent to sign in; 403 = wrong role, or a class of the school you don't teach; 404 = no such thing in your school.
+  const page = { anonymous: 302, student: 403, rafe: 200, saoirse: 403, admin: 200 };
   const api = { ...page, anonymous: 401 };
   const table: [string, Record<Who, number>][] = [
     ["/teach/classes/demo-class-tue/review", page],
@@ -47,13 +47,13 @@ describe("class review: route × role → status", () => {
     ["/teach/classes/demo-class-tue/export.csv?round=demo-round-tue-1", page],
     ["/api/v1/classes/demo-class-tue/results", api],
     ["/api/v1/rounds/demo-round-tue-1/results", api],
-    ["/teach/classes/demo-class-sat/review", { ...page, rafe: 404, saoirse: 200 }],
-    ["/api/v1/rounds/demo-round-sat-1/results", { ...api, rafe: 404, saoirse: 200 }],
+    ["/teach/classes/demo-class-sat/review", { ...page, rafe: 403, saoirse: 200 }],
+    ["/api/v1/rounds/demo-round-sat-1/results", { ...api, rafe: 403, saoirse: 200 }],
     // Wrong pairings are 404s, not other classes' data.
     ["/teach/classes/demo-class-tue/review?round=demo-round-sat-1", { ...page, rafe: 404, admin: 404 }],
     ["/teach/classes/demo-class-tue/students/demo-student-17", { ...page, rafe: 404, admin: 404 }],
-    ["/teach/classes/no-such-class/review", { ...page, rafe: 404, admin: 404 }],
-    ["/teach/classes/demo-class-tue/review/live?round=demo-round-sat-1", { ...page, rafe: 404, admin: 404 }],
+    ["/teach/classes/no-such-class/review", { ...page, rafe: 404, saoirse: 404, admin: 404 }],
+    ["/teach/classes/demo-class-tue/review/live?round=demo-round-sat-1", { ...page, rafe: 403, admin: 404 }],
   ];
   for (const [path, expected] of table) {
     for (const who of Object.keys(roles) as Who[]) {
@@ -124,7 +124,7 @@ describe("the rounds table, paged on the server", () => {
 });
 
 describe("JSON API", () => {
-  it("lists a class's sessions with summaries, with a session cookie or a Bearer token", async () => {
+  it("lists a class's rounds with summaries, with a session cookie or a Bearer token", async () => {
     const body = await (await clients.rafe!.get("/api/v1/classes/demo-class-tue/results")).json();
     expect(body.class).toEqual({ id: "demo-class-tue", name: "Tuesday Beginners" });
     expect(body.rounds).toHaveLength(5);
@@ -147,7 +147,7 @@ describe("CSV export", () => {
     await db.update(rooms).set({ classId: "demo-class-tue", endedAt: new Date() }).where(eq(rooms.id, room.id));
     await db.insert(roomPlayers).values({ id: `${room.id}-evil`, roomId: room.id, nickname: "=HYPERLINK(\"http://evil.example\")", userId: null });
     const note = room.config.prompts[0]!;
-    await db.insert(answers).values({ roomId: room.id, playerId: `${room.id}-evil`, promptIndex: 0, written: note.written, writtenMidi: note.writtenMidi, string: note.home.string, fret: note.home.fret, kind: "home-spot", pitchRight: true, points: 900, reactionMs: 1200, streak: 1, at: Date.now() });
+    await db.insert(answers).values({ roomId: room.id, playerId: `${room.id}-evil`, promptIndex: 0, written: note.written, writtenMidi: note.writtenMidi, string: note.home.string, fret: note.home.fret, kind: "home-spot", pitchRight: true, verdict: "right", points: 900, reactionMs: 1200, streak: 1, at: Date.now() });
 
     const res = await clients.rafe!.get(`/teach/classes/demo-class-tue/export.csv?round=${room.id}`);
     expect(res.headers.get("content-type")).toMatch(/^text\/csv/);
@@ -190,7 +190,7 @@ describe("live review", () => {
 
     await db.insert(roomPlayers).values({ id: `${room.id}-p`, roomId: room.id, nickname: "Pia", userId: null });
     const note = room.config.prompts[0]!;
-    await db.insert(answers).values({ roomId: room.id, playerId: `${room.id}-p`, promptIndex: 0, written: note.written, writtenMidi: note.writtenMidi, string: note.home.string, fret: note.home.fret, kind: "home-spot", pitchRight: true, points: 900, reactionMs: 1000, streak: 1, at: Date.now() });
+    await db.insert(answers).values({ roomId: room.id, playerId: `${room.id}-p`, promptIndex: 0, written: note.written, writtenMidi: note.writtenMidi, string: note.home.string, fret: note.home.fret, kind: "home-spot", pitchRight: true, verdict: "right", points: 900, reactionMs: 1000, streak: 1, at: Date.now() });
     expect(await readUntil(body, /data: 1\n\n/)).toContain("event: answers\ndata: 1\n\n");
 
     await db.update(rooms).set({ endedAt: new Date() }).where(eq(rooms.id, room.id));

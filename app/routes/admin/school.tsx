@@ -2,17 +2,20 @@ import { Form, Link, useNavigation, useSearchParams } from "react-router";
 import { z } from "zod";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { email, NAME_MAX } from "~/auth/schemas";
-import { emailTaken, normaliseEmail } from "~/auth/users.server";
+import { retryAfterHeaders, take, tooMany, type TooMany } from "~/auth/rate-limit.server";
+import { normaliseEmail } from "~/auth/users.server";
 import { DataTable, type Column } from "~/components/DataTable";
 import { Badge, Button, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
 import { parseForm } from "~/lib/forms";
+import { nameField } from "~/lib/names";
 import { classesFor } from "~/school/classes.server";
-import { createInvitation, mailInvitations } from "~/school/invitations.server";
+import { addressInUseMail, createInvitation, mailInvitations } from "~/school/invitations.server";
 import {
   addTeacher,
   classInSchool,
   createClass,
+  emailInSchool,
   lastInvitedClass,
   renameClass,
   schoolOverview,
@@ -22,6 +25,8 @@ import {
 import type { Route } from "./+types/school";
 
 export const meta: Route.MetaFunction = () => [{ title: "School · Fretcall" }];
+
+export const headers: Route.HeadersFunction = retryAfterHeaders;
 
 export async function loader({ request, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["admin"]);
@@ -35,13 +40,13 @@ export async function loader({ request, context }: Route.LoaderArgs) {
   };
 }
 
-const className = z.string().trim().min(1, "Enter the class's name.").max(NAME_MAX, `Keep the name under ${NAME_MAX} characters.`);
+const className = nameField("the class's name", NAME_MAX);
 const id = z.string().min(1).max(40);
 
 const actionSchema = z.discriminatedUnion("intent", [
   z.object({
     intent: z.literal("addTeacher"),
-    displayName: z.string().trim().min(1, "Enter the teacher's name.").max(NAME_MAX, `Keep the name under ${NAME_MAX} characters.`),
+    displayName: nameField("the teacher's name", NAME_MAX),
     email,
     classId: z.string().min(1, "Choose their first class (create one first if there is none)."),
   }),
@@ -53,34 +58,42 @@ const actionSchema = z.discriminatedUnion("intent", [
 
 type ActionResult = { notice?: string; errors: Partial<Record<string, string>>; intent?: string };
 
-export async function action({ request, context }: Route.ActionArgs): Promise<ActionResult> {
+export async function action({ request, context }: Route.ActionArgs): Promise<ActionResult | TooMany<ActionResult>> {
   const admin = await requireUserWithRole(request, context, ["admin"]);
-  const { db, mailer, env } = services(context);
+  const { db, mailer, mailQueue, env, limits } = services(context);
   const form = await request.formData();
   const parsed = parseForm(actionSchema, form);
   const intent = String(form.get("intent") ?? "");
   if (!parsed.ok) return { errors: parsed.errors, intent };
   const input = parsed.data;
-  const mailed = (failed: number, notice: string): ActionResult =>
-    failed ? { notice, errors: { form: "The invitation e-mail couldn't be sent; try “Resend invitation” later." }, intent } : { notice, errors: {}, intent };
+  // Invitations go out after the answer (app/mail/queue.server.ts); a failed one can be resent.
+  const invite = (to: { email: string; displayName: string; token: string }, className: string) =>
+    mailQueue.later(() => mailInvitations(mailer, env.PUBLIC_URL, [to], "teacher", className, admin.orgId));
+  if (input.intent === "addTeacher" || input.intent === "resendTeacher") {
+    const refused = await take(limits.invitations, admin.id);
+    if (refused) return tooMany(refused, { errors: { form: refused.message }, intent });
+  }
 
   switch (input.intent) {
     case "addTeacher": {
       const cls = await classInSchool(db, admin.orgId, input.classId);
       if (!cls) return { errors: { classId: "Choose one of the school's classes." }, intent };
       const address = normaliseEmail(input.email);
-      if (await emailTaken(db, address)) return { errors: { email: "An account with this e-mail already exists." }, intent };
+      // Only the school's own people are named; an account elsewhere gets the same answer as a new address.
+      if (await emailInSchool(db, admin.orgId, address)) return { errors: { email: "Someone in your school already has this e-mail." }, intent };
       const { token } = await addTeacher(db, admin.orgId, { displayName: input.displayName, email: address, classId: cls.id }, admin.id);
-      const failed = await mailInvitations(mailer, env.PUBLIC_URL, [{ email: address, displayName: input.displayName, token }], "teacher", cls.name);
-      return mailed(failed, `Added ${input.displayName} to ${cls.name}; an invitation to set a password is on its way to ${address}.`);
+      const to = { email: address, displayName: input.displayName };
+      if (token) invite({ ...to, token }, cls.name);
+      else mailQueue.send(addressInUseMail(env.PUBLIC_URL, to, "teacher", cls.name));
+      return { notice: `Added ${input.displayName} to ${cls.name}; an invitation to set a password is on its way to ${address}.`, errors: {}, intent };
     }
     case "resendTeacher": {
       const teacher = await teacherInSchool(db, admin.orgId, input.userId);
       const last = teacher && !teacher.passwordHash && teacher.email ? await lastInvitedClass(db, teacher.id) : undefined;
       if (!teacher?.email || !last) return { errors: { form: "Only a teacher who hasn't set a password yet can be sent a new invitation." }, intent };
       const token = await createInvitation(db, { userId: teacher.id, classId: last.classId, invitedBy: admin.id });
-      const failed = await mailInvitations(mailer, env.PUBLIC_URL, [{ email: teacher.email, displayName: teacher.displayName, token }], "teacher", last.className);
-      return mailed(failed, `A new invitation is on its way to ${teacher.email}; the previous link no longer works.`);
+      invite({ email: teacher.email, displayName: teacher.displayName, token }, last.className);
+      return { notice: `A new invitation is on its way to ${teacher.email}; the previous link no longer works.`, errors: {}, intent };
     }
     case "createClass": {
       if (input.teacherId && !(await teacherInSchool(db, admin.orgId, input.teacherId))) {

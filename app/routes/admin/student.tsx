@@ -55,8 +55,9 @@ export default function AdminStudent({ loaderData, actionData }: Route.Component
       <Card>
         <h2 className="font-display text-2xl font-semibold">Delete this student's data</h2>
         <p className="mt-2">
-          Removes the account, class places, invitations, practice and rhythm results for good. Past live rounds keep their
-          figures for the class, no longer linked to this student. This can't be undone.
+          Removes the account, class places, invitations, practice and rhythm results, tokens and mail records for good.
+          Past live rounds keep their figures for the class under the name “Removed student”, no longer linked to this
+          student. This can't be undone.
         </p>
         <Form method="post" className="mt-4 space-y-4" noValidate>
           {actionData?.error ? <Notice tone="error">{actionData.error}</Notice> : null}

@@ -1,8 +1,8 @@
 // GET /api/v1/classes/:classId/assignments — the class's assignments with every targeted student's progress.
+import { requireClassTeacher } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
 import { classAssignments } from "~/practice/assignments.server";
-import { requireReviewClass } from "~/review/review.server";
 import type { Route } from "./+types/class-assignments";
 
 const iso = (ms: number | null) => (ms === null ? null : new Date(ms).toISOString());
@@ -10,7 +10,7 @@ const iso = (ms: number | null) => (ms === null ? null : new Date(ms).toISOStrin
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const cls = await requireReviewClass(db, user, params.classId);
+  const cls = await requireClassTeacher(db, user, params.classId);
   const list = await classAssignments(db, cls.id);
   return Response.json(
     {

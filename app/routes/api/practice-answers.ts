@@ -1,9 +1,10 @@
 // POST /api/v1/practice/answers — a student's finished practice answers, in batches (see app/practice/answers.ts).
 // GET  /api/v1/practice/answers[?student=<id>][&since=<ms>][&limit=<n>] — stored answers, newest first: your own,
 //      or (teachers of the student's class, admins of their school) a student's.
+import { requireStudentReader } from "~/auth/access.server";
 import { requireUser } from "~/auth/guards.server";
 import { services } from "~/context";
-import { mayReadPractice, practiceRows, recordPracticeAnswers } from "~/practice/answers.server";
+import { practiceRows, recordPracticeAnswers } from "~/practice/answers.server";
 import { noStore, readJsonBody } from "~/lib/json.server";
 import type { Route } from "./+types/practice-answers";
 
@@ -15,7 +16,7 @@ export async function loader({ request, context }: Route.LoaderArgs) {
     return Response.json({ error: "Name the student whose practice you want: ?student=<id>." }, { status: 400, headers: noStore });
   }
   const studentId = params.get("student") ?? user.id;
-  if (!(await mayReadPractice(db, user, studentId))) return Response.json({ error: "No such student." }, { status: 404, headers: noStore });
+  await requireStudentReader(db, user, studentId);
   const number = (name: string) => {
     const text = params.get(name);
     return text === null ? undefined : /^\d{1,15}$/.test(text) ? Number(text) : NaN;

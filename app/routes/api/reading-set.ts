@@ -1,4 +1,5 @@
 // GET /api/v1/reading-sets/:id — one saved reading set the caller may see, or a ready-made one by its id.
+import { requireReadingSet } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
 import { readingPreset } from "~/reading/presets";
@@ -11,7 +12,9 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const headers = { "Cache-Control": "private, no-store" };
   const preset = readingPreset(params.id);
   if (preset) return Response.json({ kind: "ready-made", ...preset, summary: describeReadingSet(preset.spec) }, { headers });
-  const set = await setFor(services(context).db, user, params.id);
+  const { db } = services(context);
+  await requireReadingSet(db, user, params.id, "see");
+  const set = await setFor(db, user, params.id);
   if (!set) return Response.json({ error: "No such reading set." }, { status: 404, headers });
   return Response.json({ kind: "saved", ...set }, { headers });
 }

@@ -1,6 +1,6 @@
 import { Form, Link, useNavigation } from "react-router";
 import { z } from "zod";
-import { checkLimits } from "~/auth/rate-limit.server";
+import { retryAfterHeaders, clientAddress, firstRefusal, take, tooMany } from "~/auth/rate-limit.server";
 import { email } from "~/auth/schemas";
 import { createPasswordReset, normaliseEmail } from "~/auth/users.server";
 import { Button, Card, Field, Notice, PageTitle } from "~/components/ui";
@@ -10,25 +10,27 @@ import type { Route } from "./+types/forgot";
 
 export const meta: Route.MetaFunction = () => [{ title: "Reset your password · Fretcall" }];
 
+export const headers: Route.HeadersFunction = retryAfterHeaders;
+
 export async function action({ request, context }: Route.ActionArgs) {
-  const { db, mailer, limits, env } = services(context);
+  const { db, mailQueue, limits, env } = services(context);
   const parsed = parseForm(z.object({ email }), await request.formData());
   if (!parsed.ok) return { errors: parsed.errors, sent: false };
   const address = normaliseEmail(parsed.data.email);
-  const wait = checkLimits(limits.reset, address, request);
-  if (wait > 0) {
-    return { errors: { form: `Too many reset requests. Try again in ${Math.ceil(wait / 60)} minutes.` }, sent: false };
-  }
+  const refused = await firstRefusal([take(limits.reset.account, address), take(limits.reset.address, clientAddress(request))]);
+  if (refused) return tooMany(refused, { errors: { form: refused.message }, sent: false });
   const reset = await createPasswordReset(db, address);
   if (reset) {
     const link = `${env.PUBLIC_URL}/reset/${reset.token}`;
-    await mailer.send({
+    mailQueue.send({
+      orgId: null,
       to: address,
       subject: "Reset your Fretcall password",
       text: `Hello ${reset.displayName},\n\nSomeone asked to reset the password of your Fretcall account. To choose a new password, open this link within the next hour:\n\n${link}\n\nThe link works once. If you didn't ask for this, ignore this e-mail; your password stays as it is.\n`,
     });
   }
-  // The same answer whether or not the account exists, so the form can't be used to find accounts.
+  // The same answer whether or not the account exists, and the mail goes out after it, so neither
+  // the words nor the timing can be used to find accounts.
   return { errors: {}, sent: true };
 }
 

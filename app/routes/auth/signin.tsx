@@ -1,5 +1,6 @@
 import { Form, Link, redirect, useNavigation, useSearchParams } from "react-router";
 import { getOptionalUser } from "~/auth/guards.server";
+import { retryAfterHeaders, tooMany } from "~/auth/rate-limit.server";
 import { homeFor, startSession } from "~/auth/session.server";
 import { Button, Card, Field, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
@@ -7,6 +8,8 @@ import { safeRedirect } from "~/lib/forms";
 import type { Route } from "./+types/signin";
 
 export const meta: Route.MetaFunction = () => [{ title: "Sign in · Fretcall" }];
+
+export const headers: Route.HeadersFunction = retryAfterHeaders;
 
 export async function loader({ request, context }: Route.LoaderArgs) {
   const user = await getOptionalUser(request, context);
@@ -18,7 +21,10 @@ export async function action({ request, context }: Route.ActionArgs) {
   const { authenticator, sessions } = services(context);
   const form = await request.clone().formData();
   const result = await authenticator.authenticate("form", request);
-  if (!result.ok) return { error: result.message, email: String(form.get("email") ?? "") };
+  if (!result.ok) {
+    const body = { error: result.message, email: String(form.get("email") ?? "") };
+    return result.retryAfter ? tooMany({ retryAfter: result.retryAfter, message: result.message }, body) : body;
+  }
   return startSession(sessions, request, result.user.id, safeRedirect(form.get("redirectTo"), homeFor(result.user.role)));
 }
 

@@ -1,8 +1,9 @@
 import { useState } from "react";
-import { Form, Link, redirect, useNavigation } from "react-router";
+import { Form, Link, redirect, useNavigation, useSearchParams } from "react-router";
 import { z } from "zod";
+import { mayFileUnderClass, requireReadingSet, requireRound } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
-import { Button, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
+import { Button, buttonClass, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
 import { parseForm } from "~/lib/forms";
 import { formErrors } from "~/lib/userError";
@@ -11,11 +12,10 @@ import { TUNINGS } from "~/music/tuning";
 import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
 import { READING_PRESETS } from "~/reading/presets";
-import { hostableSet, mayUseClass, setsFor } from "~/reading/sets.server";
-import { describeReadingSet } from "~/reading/spec";
-import { requireRoomAccess } from "~/rooms/access.server";
+import { hostableSet, setsFor } from "~/reading/sets.server";
+import { describeReadingSet, parseReadingSet } from "~/reading/spec";
 import { createRoom, roomSetup, type RoomSource } from "~/rooms/rooms.server";
-import { QUICK_DEFAULTS, quickSetupSchema, setupFromSet, type QuickSetup } from "~/rooms/setup";
+import { QUICK_DEFAULTS, quickSetupSchema, setupFromSet, type ParsedSetup } from "~/rooms/setup";
 import { classesFor } from "~/school/classes.server";
 import { tunesFor } from "~/tunes/tunes.server";
 import type { Route } from "./+types/host";
@@ -32,7 +32,8 @@ export async function loader({ request, context }: Route.LoaderArgs) {
   const own = saved.filter((s) => s.spec).map((s) => ({ id: s.id, name: s.name, note: s.className ?? "Whole school", summary: s.summary, classId: s.classId }));
   return {
     classes: classList.map((c) => ({ id: c.id, name: c.name })),
-    classId: classList.some((c) => c.id === classId) ? classId : (classList[0]?.id ?? ""),
+    // An empty ?class= is "No class", chosen on purpose.
+    classId: classId === "" || classList.some((c) => c.id === classId) ? classId : (classList[0]?.id ?? ""),
     sets: [...own, ...presets],
     chosen: params.get("set"),
     tunes: tuneList.map((t) => ({ id: t.id, title: t.title })),
@@ -44,8 +45,8 @@ export async function loader({ request, context }: Route.LoaderArgs) {
 type Errors = Record<string, string | undefined>;
 
 /** Opens the room, or says in plain words why the settings don't make one. */
-async function open(db: Db, user: SessionUser, setup: QuickSetup, source?: RoomSource) {
-  if (setup.classId && !(await mayUseClass(db, user, setup.classId))) return { errors: { classId: "You don't teach that class." } as Errors };
+async function open(db: Db, user: SessionUser, setup: ParsedSetup, source?: RoomSource) {
+  if (setup.set.classId && !(await mayFileUnderClass(db, user, setup.set.classId))) return { errors: { classId: "You don't teach that class." } as Errors };
   try {
     const room = await createRoom(db, user, setup, source);
     return redirect(`/stage/${room.id}`);
@@ -72,19 +73,20 @@ export async function action({ request, context }: Route.ActionArgs) {
   const input = intent.data;
   const classId = String(form.get("classId") ?? "") || undefined;
   if (input.intent === "set") {
+    await requireReadingSet(db, user, input.set, "see");
     const chosen = await hostableSet(db, user, input.set);
     if (!chosen) return { errors: { set: "That reading set doesn't exist or needs an edit first." } as Errors };
-    return open(db, user, setupFromSet(chosen.spec, classId), chosen.source);
+    return open(db, user, setupFromSet(chosen.reading, classId), chosen.source);
   }
   if (input.intent === "again") {
-    const room = await requireRoomAccess(db, user, input.roomId);
+    const room = await requireRound(db, user, input.roomId);
     const again = roomSetup(room);
     if (!again) return { errors: { form: "This round was hosted before its settings were kept; set it up again below." } as Errors };
     return open(db, user, again.setup, again.source);
   }
-  const parsed = parseForm(quickSetupSchema, form);
+  const parsed = parseReadingSet(quickSetupSchema, form);
   if (!parsed.ok) return { errors: parsed.errors };
-  return open(db, user, parsed.data);
+  return open(db, user, parsed);
 }
 
 const MODES = [
@@ -100,6 +102,7 @@ export default function Host({ loaderData, actionData }: Route.ComponentProps) {
   const errors: Errors = actionData?.errors ?? {};
   const busy = useNavigation().state !== "idle";
   const [classId, setClassId] = useState(loaderData.classId ?? "");
+  const [params] = useSearchParams();
   const d = QUICK_DEFAULTS;
   // A set picked elsewhere (?set=…) comes first, so hosting it is one click away.
   const sets = [...loaderData.sets].sort((a, b) => Number(b.id === loaderData.chosen) - Number(a.id === loaderData.chosen));
@@ -107,15 +110,27 @@ export default function Host({ loaderData, actionData }: Route.ComponentProps) {
     <div className="mx-auto max-w-3xl space-y-6">
       <PageTitle lead="Choose what the class reads. Students join with the room code on the class screen.">Host a round</PageTitle>
       {errors.form ? <Notice tone="error">{errors.form}</Notice> : null}
-      <SelectField
-        label="Class"
-        name="class"
-        value={classId}
-        onChange={(e) => setClassId(e.target.value)}
-        error={errors.classId}
-        hint="Rounds for a class use the class's home-spot map and count towards its class review."
-        options={[{ value: "", label: "No class (a one-off round)" }, ...loaderData.classes.map((c) => ({ value: c.id, label: c.name }))]}
-      />
+      {/* A form of its own, as both forms below need the class: with JavaScript the choice applies at
+          once; without, "Use this class" reloads the page with it (the rest of the address kept). */}
+      <Form method="get" className="flex flex-wrap items-end gap-2">
+        {[...params].filter(([k]) => k !== "class").map(([k, v]) => (
+          <input key={k} type="hidden" name={k} value={v} />
+        ))}
+        <div className="min-w-0 flex-1">
+          <SelectField
+            label="Class"
+            name="class"
+            value={classId}
+            onChange={(e) => setClassId(e.target.value)}
+            error={errors.classId}
+            hint="Rounds for a class use the class's home-spot map and count towards its class review."
+            options={[{ value: "", label: "No class (a one-off round)" }, ...loaderData.classes.map((c) => ({ value: c.id, label: c.name }))]}
+          />
+        </div>
+        <noscript>
+          <button className={buttonClass("ghost")}>Use this class</button>
+        </noscript>
+      </Form>
       <section aria-labelledby="sets-heading">
         <div className="flex flex-wrap items-baseline justify-between gap-2">
           <h2 id="sets-heading" className="font-display text-2xl font-semibold">

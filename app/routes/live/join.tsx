@@ -2,28 +2,30 @@ import { Form, redirect, useNavigation, useSearchParams } from "react-router";
 import { Button, Card, Field, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
 import { parseRoomCode } from "~/game/roomCode";
-import { openRoomByCode } from "~/rooms/rooms.server";
+import { retryAfterHeaders, tooMany } from "~/auth/rate-limit.server";
+import { lookUpRoom } from "~/rooms/rooms.server";
 import type { Route } from "./+types/join";
 
 export const meta: Route.MetaFunction = () => [{ title: "Join a round · Fretcall" }];
+
+export const headers: Route.HeadersFunction = retryAfterHeaders;
 
 /** /join?code=… (the QR code's link) goes straight to the pad when the room is open. */
 export async function loader({ request, context }: Route.LoaderArgs) {
   const typed = new URL(request.url).searchParams.get("code");
   if (!typed) return { error: null };
-  return checkCode(typed, context);
+  return checkCode(typed, request, context);
 }
 
 export async function action({ request, context }: Route.ActionArgs) {
-  return checkCode(String((await request.formData()).get("code") ?? ""), context);
+  return checkCode(String((await request.formData()).get("code") ?? ""), request, context);
 }
 
-async function checkCode(typed: string, context: Route.LoaderArgs["context"]) {
+async function checkCode(typed: string, request: Request, context: Route.LoaderArgs["context"]) {
   const parsed = parseRoomCode(typed);
   if (!parsed.ok) return { error: parsed.message };
-  if (!(await openRoomByCode(services(context).db, parsed.code))) {
-    return { error: "No open room has that code. Check the code on the class screen." };
-  }
+  const found = await lookUpRoom(services(context), request, parsed.code);
+  if (!found.ok) return found.refused ? tooMany(found.refused, { error: found.refused.message }) : { error: found.error };
   throw redirect(`/play/${parsed.code}`);
 }
 

@@ -1,11 +1,12 @@
 import { data, Form, Link } from "react-router";
+import { requireRound } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { buttonClass, Card, PageTitle } from "~/components/ui";
 import { services } from "~/context";
 import { Icon } from "~/live/parts";
 import { displayPitch, parsePitch } from "~/music/pitch";
-import { requireRoomAccess } from "~/rooms/access.server";
 import { roundResults } from "~/rooms/results.server";
+import { pct, secs } from "~/review/format";
 import { roomSetup } from "~/rooms/rooms.server";
 import type { Route } from "./+types/results";
 
@@ -14,16 +15,13 @@ export const meta: Route.MetaFunction = () => [{ title: "Round results · Fretca
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const room = await requireRoomAccess(db, user, params.roomId);
+  const room = await requireRound(db, user, params.roomId);
   const results = await roundResults(db, room.id);
   if (!results) throw data({ error: "No such round." }, { status: 404 });
   // Same settings, same reading set, a new draw: one click for the next class.
   const canHostAgain = roomSetup(room) !== undefined;
   return { room: { id: room.id, title: room.title, createdAt: room.createdAt.toISOString() }, canHostAgain, ...results };
 }
-
-const pct = (x: number) => `${Math.round(x * 100)} %`;
-const secs = (ms: number | null) => (ms === null ? "—" : `${(ms / 1000).toFixed(1)} s`);
 
 export default function Results({ loaderData: r }: Route.ComponentProps) {
   return (
@@ -46,14 +44,14 @@ export default function Results({ loaderData: r }: Route.ComponentProps) {
             </thead>
             <tbody>
               {r.byPoints.map((s, i) => (
-                <tr key={s.playerId} className="border-t border-ink/10">
+                <tr key={s.key} className="border-t border-ink/10">
                   <td className="py-2">{i + 1}</td>
                   <td>{s.nickname}</td>
                   <td className="text-right font-semibold">{s.points}</td>
                   <td className="text-right">
                     {s.correct}/{s.answered} ({pct(s.accuracy)})
                   </td>
-                  <td className="text-right">{secs(s.medianReactionMs)}</td>
+                  <td className="text-right">{secs(s.medianMs)}</td>
                 </tr>
               ))}
             </tbody>
@@ -63,7 +61,7 @@ export default function Results({ loaderData: r }: Route.ComponentProps) {
           <h2 className="font-display text-2xl font-semibold">Longest streaks</h2>
           <ol className="mt-3 space-y-1">
             {r.byStreak.map((s) => (
-              <li key={s.playerId} className="flex justify-between border-t border-ink/10 py-2">
+              <li key={s.key} className="flex justify-between border-t border-ink/10 py-2">
                 <span>{s.nickname}</span>
                 <span className="font-semibold">
                   <Icon name="streak" className="mr-1 h-[1em] w-[1em] text-brass" />

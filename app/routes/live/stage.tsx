@@ -1,11 +1,13 @@
 import QRCode from "qrcode";
+import { requireRound } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
-import type { RoomConfig } from "~/game/roomConfig";
+import { snapshot } from "~/game/room";
 import { Stage } from "~/live/Stage";
-import { requireRoomAccess } from "~/rooms/access.server";
+import { loadRoomState } from "~/rooms/log.server";
 import { hostKeyFor } from "~/rooms/rooms.server";
 import { IMMERSIVE } from "~/components/AppShell";
+import { NeedsJavaScript } from "~/components/ui";
 import type { Route } from "./+types/stage";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Room ${data?.code ?? ""} · Fretcall stage` }];
@@ -16,10 +18,12 @@ export const handle = IMMERSIVE;
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db, env } = services(context);
-  const room = await requireRoomAccess(db, user, params.roomId);
-  const config = room.config as RoomConfig;
+  const room = await requireRound(db, user, params.roomId);
+  const config = room.config;
   // The address the teacher reached us on is the one the class's phones can reach too.
   const joinUrl = `${new URL(request.url).origin}/join?code=${room.code}`;
+  // An ended room has no live socket to connect to: its last screen comes from its log.
+  const ended = room.endedAt ? await loadRoomState(db, room.id) : undefined;
   return {
     roomId: room.id,
     code: room.code,
@@ -30,9 +34,15 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
     tuning: config.tuning,
     frets: config.frets,
     position: room.position,
+    finalScreen: ended ? snapshot(ended.state, { role: "host" }, Date.now()) : null,
   };
 }
 
 export default function StageRoute({ loaderData }: Route.ComponentProps) {
-  return <Stage {...loaderData} />;
+  return (
+    <>
+      <NeedsJavaScript what="The class screen of a live round" />
+      <Stage {...loaderData} />
+    </>
+  );
 }

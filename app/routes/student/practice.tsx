@@ -3,7 +3,7 @@
 import { useEffect } from "react";
 import { data, Form, Link } from "react-router";
 import { requireUserWithRole } from "~/auth/guards.server";
-import { buttonClass, Card, Notice, PageTitle, SelectField } from "~/components/ui";
+import { buttonClass, Card, NeedsJavaScript, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
 import { DEFAULT_SESSION_NOTES, historyFor, practiceChoices, practicePlan } from "~/practice/practice.server";
 import { PracticeSession } from "~/practice/PracticeSession";
@@ -39,7 +39,12 @@ export default function Practice({ loaderData }: Route.ComponentProps) {
   if (loaderData.mode === "session") {
     const { userId, plan, history, count } = loaderData;
     // A new choice (or a new round) starts a fresh session component.
-    return <PracticeSession key={`${plan.source} ${plan.assignmentId ?? ""}`} userId={userId} plan={plan} history={history} count={count} />;
+    return (
+      <>
+        <NeedsJavaScript what="A practice session" />
+        <PracticeSession key={`${plan.source} ${plan.assignmentId ?? ""}`} userId={userId} plan={plan} history={history} count={count} />
+      </>
+    );
   }
   const { choices, error } = loaderData;
   return (

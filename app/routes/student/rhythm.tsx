@@ -1,8 +1,9 @@
 // /me/rhythm/:tuneId — the rhythm pass of a tune, open once its pitches are steady (see app/practice/adaptive.ts).
 import { useEffect } from "react";
 import { data, Link } from "react-router";
+import { requireTune } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
-import { buttonClass, Card, Notice, PageTitle } from "~/components/ui";
+import { buttonClass, Card, NeedsJavaScript, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
 import { noteName, STEADY_BOX, TOP_BOX } from "~/practice/adaptive";
 import { TUNE_POSITION } from "~/practice/practice.server";
@@ -16,6 +17,7 @@ export const meta: Route.MetaFunction = ({ data: d }) => [{ title: `${d && "stat
 export async function loader({ request, context, params }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["student"]);
   const { db } = services(context);
+  await requireTune(db, user, params.tuneId, "see");
   const text = new URL(request.url).searchParams.get("position");
   const position = text && /^(?:[1-9]|1[0-2])$/.test(text) ? Number(text) : TUNE_POSITION;
   const state = await rhythmState(db, user, params.tuneId, position);
@@ -31,7 +33,10 @@ export default function Rhythm({ loaderData }: Route.ComponentProps) {
     <div className="space-y-4">
       <PageTitle lead={`${tune.composer} · ${tune.beatsPerBar} beats in a bar · position ${state.position}`}>Rhythm pass: {tune.title}</PageTitle>
       {state.unlocked ? (
-        <RhythmPass tune={tune} position={state.position} />
+        <>
+          <NeedsJavaScript what="A rhythm pass" />
+          <RhythmPass tune={tune} position={state.position} />
+        </>
       ) : (
         <Card className="space-y-3">
           <Notice tone="info">

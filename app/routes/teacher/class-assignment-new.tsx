@@ -2,6 +2,7 @@
 // with a message beside its field and everything typed kept.
 import { useEffect, useRef, useState } from "react";
 import { Form, Link, redirect, useNavigation } from "react-router";
+import { requireClassTeacher } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { Button, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
@@ -18,7 +19,6 @@ import {
 } from "~/practice/assignmentForm";
 import { classStudents, createAssignment, materialOptions } from "~/practice/assignments.server";
 import { sendAssignmentNotices } from "~/practice/mail.server";
-import { requireReviewClass } from "~/review/review.server";
 import type { Route } from "./+types/class-assignment-new";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Set an assignment${data ? ` · ${data.cls.name}` : ""} · Fretcall` }];
@@ -34,7 +34,7 @@ const GROUP_WORDS = { "Reading sets": "Reading set", "Ready-made reading sets": 
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const cls = await requireReviewClass(db, user, params.classId);
+  const cls = await requireClassTeacher(db, user, params.classId);
   const [options, students] = await Promise.all([materialOptions(db, user, cls.id), classStudents(db, cls.id)]);
   return {
     cls: { id: cls.id, name: cls.name },
@@ -47,7 +47,7 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
 export async function action({ request, params, context }: Route.ActionArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db, mailer, env } = services(context);
-  const cls = await requireReviewClass(db, user, params.classId);
+  const cls = await requireClassTeacher(db, user, params.classId);
   const form = collectStudents(await request.formData());
   const values = Object.fromEntries([...form].map(([k, v]) => [k, String(v)]));
   const now = Date.now();

@@ -1,6 +1,7 @@
 // A class's assignments: who has done each one and who hasn't, and deleting one.
 import { Form, Link, useNavigation } from "react-router";
 import { z } from "zod";
+import { requireClassTeacher } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { Button, buttonClass, Card, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
@@ -9,7 +10,6 @@ import { DueTime, ProgressBar, StatusBadge } from "~/practice/AssignmentParts";
 import { classAssignmentsPath, MATERIAL_WORDS } from "~/practice/assignmentForm";
 import { classAssignments, deleteAssignment } from "~/practice/assignments.server";
 import { goalWords } from "~/practice/progress";
-import { requireReviewClass } from "~/review/review.server";
 import type { Route } from "./+types/class-assignments";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Assignments${data ? ` · ${data.cls.name}` : ""} · Fretcall` }];
@@ -17,7 +17,7 @@ export const meta: Route.MetaFunction = ({ data }) => [{ title: `Assignments${da
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const cls = await requireReviewClass(db, user, params.classId);
+  const cls = await requireClassTeacher(db, user, params.classId);
   const url = new URL(request.url);
   const mailed = url.searchParams.get("mailed");
   return {
@@ -34,7 +34,7 @@ const actionSchema = z.object({ intent: z.literal("delete"), id: z.string().min(
 export async function action({ request, params, context }: Route.ActionArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const cls = await requireReviewClass(db, user, params.classId);
+  const cls = await requireClassTeacher(db, user, params.classId);
   const parsed = parseForm(actionSchema, await request.formData());
   if (!parsed.ok) return { error: "That request wasn't understood. Reload the page and try again.", deleted: false };
   const deleted = await deleteAssignment(db, cls.id, parsed.data.id);

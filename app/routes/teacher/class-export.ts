@@ -1,16 +1,17 @@
 // GET /teach/classes/:classId/export.csv[?round=<roomId>] — results for a gradebook.
 import { data } from "react-router";
+import { requireClassTeacher } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
 import { gradebookRows, toCsv } from "~/review/csv";
-import { requireReviewClass, reviewInput } from "~/review/review.server";
+import { reviewInput } from "~/review/review.server";
 import { roundPlayers } from "~/review/stats";
 import type { Route } from "./+types/class-export";
 
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const cls = await requireReviewClass(db, user, params.classId);
+  const cls = await requireClassTeacher(db, user, params.classId);
   const input = await reviewInput(db, { classId: cls.id });
   const only = new URL(request.url).searchParams.get("round");
   const rounds = input.rounds.filter((s) => only === null || s.id === only).sort((a, b) => a.startedAt - b.startedAt);

@@ -2,9 +2,10 @@
 // "answers" (the new count) whenever answers were added, "ended" once the round is over.
 import { data } from "react-router";
 import { eventStream } from "remix-utils/sse/server";
+import { requireClassTeacher, requireRound } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
-import { answerCount, requireReviewClass, requireReviewRoom, roomEnded } from "~/review/review.server";
+import { answerCount, roomEnded } from "~/review/review.server";
 import type { Route } from "./+types/class-review-live";
 
 const POLL_MS = 1_000;
@@ -14,9 +15,9 @@ const MAX_POLLS = 3 * 60 * 60;
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  await requireReviewClass(db, user, params.classId);
+  await requireClassTeacher(db, user, params.classId);
   const roomId = new URL(request.url).searchParams.get("round") ?? "";
-  const room = await requireReviewRoom(db, user, roomId);
+  const room = await requireRound(db, user, roomId);
   if (room.classId !== params.classId) throw data({ error: "No such round." }, { status: 404 });
 
   return eventStream(request.signal, (send, abort) => {

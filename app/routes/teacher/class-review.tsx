@@ -2,6 +2,7 @@
 import { useEffect } from "react";
 import { data, Form, Link, useRevalidator, useSubmit } from "react-router";
 import { useEventSource } from "remix-utils/sse/react";
+import { requireClassTeacher } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { DataTable, type Column } from "~/components/DataTable";
 import { readTableQuery } from "~/components/dataTable";
@@ -10,7 +11,7 @@ import { services } from "~/context";
 import { MISTAKE_LABELS } from "~/music/mistakes";
 import { change, day, noteName, pct, secs } from "~/review/format";
 import { HeatmapFretboard, HeatmapStaves, MistakeChart } from "~/review/ReviewParts";
-import { requireReviewClass, reviewInput } from "~/review/review.server";
+import { reviewInput } from "~/review/review.server";
 import { ROUND_SORT_KEYS, roundsPage, type RoundRow } from "~/review/rounds.server";
 import { classReview, MIN_RANKED, RETEACH_ACCURACY_BAR, RETEACH_MIN_SAMPLE, type PlayerFigures } from "~/review/stats";
 import type { Route } from "./+types/class-review";
@@ -20,7 +21,7 @@ export const meta: Route.MetaFunction = ({ data }) => [{ title: `Class review${d
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const cls = await requireReviewClass(db, user, params.classId);
+  const cls = await requireClassTeacher(db, user, params.classId);
   const input = await reviewInput(db, { classId: cls.id });
   const search = new URL(request.url).searchParams;
   const roundId = search.get("round") || null;

@@ -1,12 +1,13 @@
 // One student of a class: progress over the class's rounds, personal bests and their own note heatmap.
 import { Link } from "react-router";
+import { requireClassTeacher } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { DataTable, type Column } from "~/components/DataTable";
 import { Card, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
 import { day, noteName, pct, secs } from "~/review/format";
 import { HeatmapStaves, ProgressCharts } from "~/review/ReviewParts";
-import { requireClassStudent, requireReviewClass, reviewInput } from "~/review/review.server";
+import { requireClassStudent, reviewInput } from "~/review/review.server";
 import { MIN_RANKED, reteachList, studentProgress, type Best, type ProgressPoint } from "~/review/stats";
 import type { Route } from "./+types/class-student";
 
@@ -15,7 +16,7 @@ export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data ? `${dat
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const cls = await requireReviewClass(db, user, params.classId);
+  const cls = await requireClassTeacher(db, user, params.classId);
   const student = await requireClassStudent(db, cls.id, params.userId);
   const progress = studentProgress(await reviewInput(db, { classId: cls.id }), student.id);
   return { cls, student, progress, reteach: reteachList(progress.heatmap) };

@@ -1,18 +1,20 @@
 import { Form, Link, useNavigation } from "react-router";
 import { z } from "zod";
+import { requireClassTeacher } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { DataTable, type Column } from "~/components/DataTable";
 import { Badge, Button, Card, Field, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
 import { parseForm } from "~/lib/forms";
-import { mailInvitations } from "~/school/invitations.server";
+import { retryAfterHeaders, take, tooMany, type TooMany } from "~/auth/rate-limit.server";
+import { addressInUseMail, mailInvitations } from "~/school/invitations.server";
 import {
   addStudents,
   checkRowsForClass,
   removeFromClass,
-  requireClassAccess,
   resendStudentInvite,
   rosterOf,
+  type AddressInUse,
   type RosterEntry,
   type SignInStatus,
 } from "~/school/people.server";
@@ -21,10 +23,12 @@ import type { Route } from "./+types/class";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.cls.name ?? "Class"} · Fretcall` }];
 
+export const headers: Route.HeadersFunction = retryAfterHeaders;
+
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const cls = await requireClassAccess(db, user, params.classId);
+  const cls = await requireClassTeacher(db, user, params.classId);
   return { cls: { id: cls.id, name: cls.name, joinCode: cls.joinCode }, roster: await rosterOf(db, cls.id) };
 }
 
@@ -45,10 +49,10 @@ const addSchema = z.object({
 // The file and the ticked rows are read from the form by their own checks below.
 const actionSchema = z.discriminatedUnion("intent", [z.object({ intent: z.literal("preview") }), z.object({ intent: z.literal("import") }), addSchema, userIntent]);
 
-export async function action({ request, params, context }: Route.ActionArgs): Promise<ActionResult> {
+export async function action({ request, params, context }: Route.ActionArgs): Promise<ActionResult | TooMany<ActionResult>> {
   const user = await requireUserWithRole(request, context, ["teacher"]);
-  const { db, mailer, env } = services(context);
-  const cls = await requireClassAccess(db, user, params.classId);
+  const { db, mailer, mailQueue, env, limits } = services(context);
+  const cls = await requireClassTeacher(db, user, params.classId);
   // Refuse an oversized upload before reading it into memory.
   if (Number(request.headers.get("Content-Length") ?? 0) > CSV_MAX_BYTES * 2) {
     return { error: `The file is too large (at most ${CSV_MAX_BYTES / 1000} KB).` };
@@ -57,11 +61,16 @@ export async function action({ request, params, context }: Route.ActionArgs): Pr
   const parsed = parseForm(actionSchema, form);
   if (!parsed.ok) return form.get("intent") === "add" ? { errors: parsed.errors } : { error: "Unknown action." };
   const input = parsed.data;
-  const sent = async (invites: Parameters<typeof mailInvitations>[2], what: string) => {
-    const failed = await mailInvitations(mailer, env.PUBLIC_URL, invites, "student", cls.name);
-    return failed
-      ? { notice: what, error: `${failed} invitation e-mail${failed === 1 ? "" : "s"} couldn't be sent; use “Resend invitation” later.` }
-      : { notice: what };
+  // Invitations go out after the answer (app/mail/queue.server.ts); a failed one can be resent.
+  const sent = (invites: Parameters<typeof mailInvitations>[2], what: string, inUse: AddressInUse[] = []) => {
+    mailQueue.later(() => mailInvitations(mailer, env.PUBLIC_URL, invites, "student", cls.name, cls.orgId));
+    for (const to of inUse) mailQueue.send(addressInUseMail(env.PUBLIC_URL, to, "student", cls.name));
+    return { notice: what };
+  };
+  /** Counts the e-mails about to be sent against the sender's invitation limit. */
+  const overInvitationLimit = async (emails: number) => {
+    const refused = emails ? await take(limits.invitations, user.id, emails) : undefined;
+    return refused ? tooMany(refused, { error: refused.message }) : undefined;
   };
 
   if (input.intent === "preview") {
@@ -81,27 +90,33 @@ export async function action({ request, params, context }: Route.ActionArgs): Pr
       rows.push(row.data);
     }
     if (rows.length === 0) return { error: "Tick at least one row to import." };
+    const over = await overInvitationLimit(rows.filter((r) => r.email.trim()).length);
+    if (over) return over;
     const result = await addStudents(db, cls, user.id, rows);
     if (!result.ok) {
       return { preview: result.rows, error: "Nothing was imported: some rows have problems (shown below). Untick or fix them and try again." };
     }
-    return sent(result.invites, `Imported ${result.added} student${result.added === 1 ? "" : "s"}.`);
+    return sent(result.invites, `Imported ${result.added} student${result.added === 1 ? "" : "s"}.`, result.inUse);
   }
 
   if (input.intent === "add") {
+    const over = await overInvitationLimit(input.email.trim() ? 1 : 0);
+    if (over) return over;
     const result = await addStudents(db, cls, user.id, [{ line: 0, name: input.name, email: input.email }]);
     if (!result.ok) {
       const problems = result.rows[0]?.errors ?? [];
       const on = (field: string) => problems.filter((p) => p.field === field).map((p) => p.message).join(" ") || undefined;
       return { errors: { name: on("name"), email: on("email") } };
     }
-    return sent(result.invites, `Added ${input.name.trim()}.`);
+    return sent(result.invites, `Added ${input.name.trim()}.`, result.inUse);
   }
 
   if (input.intent === "remove") {
     const done = await removeFromClass(db, cls.id, input.userId);
     return done ? { notice: "Removed from the class. Their account and other classes are unchanged." } : { error: "That student isn't in this class." };
   }
+  const over = await overInvitationLimit(1);
+  if (over) return over;
   const invite = await resendStudentInvite(db, cls.id, input.userId, user.id);
   if (!invite) return { error: "Only students with an e-mail who haven't set a password yet can be sent an invitation." };
   return sent([invite], `A new invitation is on its way to ${invite.email}; the previous link no longer works.`);

@@ -3,18 +3,19 @@
 import { useMemo, useRef, useState } from "react";
 import { data, Form, Link, redirect, useNavigation } from "react-router";
 import { z } from "zod";
+import { mayFileUnderClass, readingSetAccess, requireReadingSet } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { PoolPreview } from "~/components/PoolPreview";
 import { Button, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
 import { parseForm, type FieldErrors } from "~/lib/forms";
 import { KEYS, spellInKey } from "~/music/keys";
-import { displayPitchClass, MusicError } from "~/music/pitch";
-import { buildPool, type PoolNote } from "~/music/pools";
+import { displayPitchClass } from "~/music/pitch";
+import type { PoolNote } from "~/music/pools";
 import { resolveTuning, TUNINGS } from "~/music/tuning";
 import { readingPreset } from "~/reading/presets";
-import { createSet, deleteSet, mayUseClass, setFor, updateSet } from "~/reading/sets.server";
-import { collectStrings, MODE_NAMES, readingSetFormSchema, readingSetSpecSchema, readingSpecOf, SET_MODES, type ReadingSetSpec } from "~/reading/spec";
+import { createSet, deleteSet, setFor, updateSet } from "~/reading/sets.server";
+import { MODE_NAMES, parseReadingSet, readingSetFormSchema, readingSetSpecSchema, SET_MODES, setFilingSchema, type ReadingSetSpec } from "~/reading/spec";
 import { classesFor } from "~/school/classes.server";
 import type { Route } from "./+types/reading-set";
 
@@ -28,11 +29,13 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
     const url = new URL(request.url);
     const preset = readingPreset(url.searchParams.get("from") ?? "ready-naturals-5")!;
     const classId = url.searchParams.get("class");
-    return { id: null, name: "", classId: classList.some((c) => c.id === classId) ? classId : null, spec: preset.spec, classes: classList };
+    return { id: null, name: "", classId: classList.some((c) => c.id === classId) ? classId : null, spec: preset.spec, classes: classList, canDelete: false };
   }
+  await requireReadingSet(db, user, params.id, "see");
   const set = await setFor(db, user, params.id);
   if (!set) throw data({ error: "No such reading set." }, { status: 404 });
-  return { id: set.id, name: set.name, classId: set.classId, spec: set.spec ?? readingPreset("ready-naturals-5")!.spec, classes: classList };
+  const canDelete = (await readingSetAccess(db, user, set.id, "edit")) === "ok";
+  return { id: set.id, name: set.name, classId: set.classId, spec: set.spec ?? readingPreset("ready-naturals-5")!.spec, classes: classList, canDelete };
 }
 
 // The set's own fields are checked by readingSetFormSchema.
@@ -41,9 +44,10 @@ const intentSchema = z.enum(["delete", "save"]);
 export async function action({ request, params, context }: Route.ActionArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
+  if (params.id !== "new") await requireReadingSet(db, user, params.id, "edit");
   const existing = params.id === "new" ? undefined : await setFor(db, user, params.id);
   if (params.id !== "new" && !existing) throw data({ error: "No such reading set." }, { status: 404 });
-  const form = collectStrings(await request.formData());
+  const form = await request.formData();
   // The editor is the page's main form: a post without an intent saves.
   if (!form.has("intent")) form.set("intent", "save");
   const intent = intentSchema.safeParse(form.get("intent"));
@@ -52,11 +56,10 @@ export async function action({ request, params, context }: Route.ActionArgs) {
     await deleteSet(db, existing.id);
     return redirect(`/teach/sets?done=${encodeURIComponent(`Deleted “${existing.name}”.`)}`);
   }
-  const parsed = parseForm(readingSetFormSchema, form);
+  const parsed = parseReadingSet(readingSetFormSchema, form);
   if (!parsed.ok) return { errors: parsed.errors };
-  const { name, classId, ...rest } = parsed.data;
-  if (!(await mayUseClass(db, user, classId))) return { errors: { classId: "You don't teach that class." } as FieldErrors };
-  const spec = readingSetSpecSchema.parse(rest);
+  const { name, classId, ...spec } = parsed.set;
+  if (!(await mayFileUnderClass(db, user, classId))) return { errors: { classId: "You don't teach that class." } as FieldErrors };
   const input = { name, classId: classId ?? null, spec };
   if (existing) await updateSet(db, existing.id, input);
   const id = existing?.id ?? (await createSet(db, user, input));
@@ -97,29 +100,25 @@ function asForm(values: Values) {
   return form;
 }
 
-function preview(values: Values) {
-  const parsed = parseForm(readingSetSpecSchema, asForm(values));
-  if (!parsed.ok) return { error: parsed.errors.pool ?? "Fix the settings marked in red to see the notes.", pool: null };
-  const spec = readingSpecOf(parsed.data);
-  try {
-    return { error: null, pool: buildPool(spec), spec, tuning: resolveTuning(spec.tuning) };
-  } catch (error) {
-    if (error instanceof MusicError) return { error: error.message, pool: null };
-    throw error;
-  }
+/** Everything the page shows while typing, from one parse of the reading set (so one pool) and a check of its name. */
+function check(values: Values) {
+  const form = asForm(values);
+  const filing = parseForm(setFilingSchema, form);
+  const reading = parseReadingSet(readingSetSpecSchema, form);
+  const errors: FieldErrors = { ...(filing.ok ? {} : filing.errors), ...(reading.ok ? {} : reading.errors) };
+  const preview = reading.ok
+    ? { error: null, pool: reading.pool, spec: reading.spec, tuning: resolveTuning(reading.spec.tuning) }
+    : { error: errors.pool ?? "Fix the settings marked in red to see the notes.", pool: null };
+  return { errors, preview };
 }
 
 export default function ReadingSetPage({ loaderData, actionData }: Route.ComponentProps) {
   const [values, setValues] = useState(() => valuesOf(loaderData.spec, loaderData.name, loaderData.classId));
   const [touched, setTouched] = useState<Set<string>>(new Set());
   const busy = useNavigation().state !== "idle";
-  const live = useMemo(() => {
-    const parsed = parseForm(readingSetFormSchema, asForm(values));
-    return parsed.ok ? {} : parsed.errors;
-  }, [values]);
-  const shown = useMemo(() => preview(values), [values]);
+  const { errors: live, preview: shown } = useMemo(() => check(values), [values]);
   // While a field is being fixed the last good preview stays, dimmed, rather than vanishing mid-edit.
-  const lastGood = useRef<Extract<ReturnType<typeof preview>, { pool: PoolNote[] }> | null>(null);
+  const lastGood = useRef<Extract<typeof shown, { pool: PoolNote[] }> | null>(null);
   if (shown.pool) lastGood.current = shown;
   const server: FieldErrors = actionData?.errors ?? {};
   // A field shows its live error once the teacher has changed it; after a post the server's word stands.
@@ -250,7 +249,7 @@ export default function ReadingSetPage({ loaderData, actionData }: Route.Compone
           ) : null}
         </Card>
       </div>
-      {loaderData.id ? (
+      {loaderData.canDelete ? (
         <Form method="post" onSubmit={(e) => !confirm(`Delete “${loaderData.name}”?`) && e.preventDefault()}>
           <input type="hidden" name="intent" value="delete" />
           <Button type="submit" tone="ghost">

@@ -1,13 +1,14 @@
 // The teacher's reading sets: their own and the school's, the ready-made progression, and copying a set into a class.
 import { data, Form, Link, redirect } from "react-router";
 import { z } from "zod";
+import { mayFileUnderClass, readingSetAccess, requireReadingSet } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { DataTable, type Column } from "~/components/DataTable";
 import { Badge, Button, buttonClass, Card, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
 import { parseForm } from "~/lib/forms";
 import { READING_PRESETS } from "~/reading/presets";
-import { createSet, deleteSet, hostableSet, mayUseClass, setFor, setsFor, type SavedSet } from "~/reading/sets.server";
+import { createSet, deleteSet, hostableSet, setFor, setsFor, type SavedSet } from "~/reading/sets.server";
 import { describeReadingSet } from "~/reading/spec";
 import { classesFor } from "~/school/classes.server";
 import type { Route } from "./+types/reading-sets";
@@ -19,7 +20,8 @@ export async function loader({ request, context }: Route.LoaderArgs) {
   const { db } = services(context);
   const [sets, classList] = await Promise.all([setsFor(db, user), classesFor(db, user)]);
   return {
-    sets,
+    // Delete is offered only where the access rules allow it (docs/decisions/0005-access-rules.md).
+    sets: await Promise.all(sets.map(async (s) => ({ ...s, canEdit: (await readingSetAccess(db, user, s.id, "edit")) === "ok" }))),
     classes: classList.map((c) => ({ id: c.id, name: c.name })),
     presets: READING_PRESETS.map((p) => ({ ...p, summary: describeReadingSet(p.spec) })),
     done: new URL(request.url).searchParams.get("done"),
@@ -39,6 +41,7 @@ export async function action({ request, context }: Route.ActionArgs) {
   const input = parsed.data;
   const id = input.id;
   if (input.intent === "delete") {
+    await requireReadingSet(db, user, id, "edit");
     const set = await setFor(db, user, id);
     if (!set) throw data({ error: "No such reading set." }, { status: 404 });
     await deleteSet(db, set.id);
@@ -46,17 +49,18 @@ export async function action({ request, context }: Route.ActionArgs) {
   }
   if (input.intent === "copy") {
     const classId = input.classId || null;
+    await requireReadingSet(db, user, id, "see");
     const from = await hostableSet(db, user, id);
     if (!from) return { error: "That reading set doesn't exist or needs an edit first." };
-    if (!(await mayUseClass(db, user, classId))) return { error: "You don't teach that class." };
-    const copy = await createSet(db, user, { name: from.source.name, classId, spec: from.spec });
+    if (!(await mayFileUnderClass(db, user, classId))) return { error: "You don't teach that class." };
+    const copy = await createSet(db, user, { name: from.source.name, classId, spec: from.reading.set });
     return redirect(`/teach/sets/${copy}`);
   }
 }
 
 export default function ReadingSets({ loaderData, actionData }: Route.ComponentProps) {
   const { sets, classes, presets, done } = loaderData;
-  const columns: Column<SavedSet>[] = [
+  const columns: Column<SavedSet & { canEdit: boolean }>[] = [
     { key: "name", header: "Name", cell: (s) => <Link to={`/teach/sets/${s.id}`} className="font-semibold text-sky underline">{s.name}</Link> },
     { key: "className", header: "Class", cell: (s) => s.className ?? "Whole school", sortValue: (s) => s.className ?? "" },
     { key: "summary", header: "What it reads", cell: (s) => (s.spec ? s.summary : <Badge tone="miss">{s.summary}</Badge>) },
@@ -72,7 +76,7 @@ export default function ReadingSets({ loaderData, actionData }: Route.ComponentP
               <span aria-hidden="true">▶</span> Host
             </Link>
           ) : null}
-          <Form method="post" onSubmit={(e) => !confirm(`Delete “${s.name}”? Rounds already played keep their results.`) && e.preventDefault()}>
+          <Form method="post" hidden={!s.canEdit} onSubmit={(e) => !confirm(`Delete “${s.name}”? Rounds already played keep their results.`) && e.preventDefault()}>
             <input type="hidden" name="intent" value="delete" />
             <input type="hidden" name="id" value={s.id} />
             <Button type="submit" tone="ghost" className="text-base" aria-label={`Delete ${s.name}`}>

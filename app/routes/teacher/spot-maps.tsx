@@ -3,11 +3,12 @@
 import { useMemo, useState } from "react";
 import { data, Form, redirect, useNavigation } from "react-router";
 import { z } from "zod";
+import { requireClassTeacher } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { Fretboard, type Highlight } from "~/components/Fretboard";
 import { parseSpotMapQuery } from "~/components/neckQuery";
 import { chartFrets, SpotChart } from "~/components/SpotChart";
-import { Badge, Button, Card, Notice, PageTitle, SelectField } from "~/components/ui";
+import { Badge, Button, Card, NeedsJavaScript, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
 import { parseForm } from "~/lib/forms";
 import type { Spot } from "~/music/fretboard";
@@ -16,17 +17,9 @@ import { displayPitch, parsePitch } from "~/music/pitch";
 import { positionWindow, validateSpotMap, type HomeSpot, type SpotMap, type SpotMapProblem } from "~/music/positions";
 import { TUNINGS } from "~/music/tuning";
 import { classSpotMap, resetClassSpotMap, saveClassSpotMap } from "~/reading/spotMaps.server";
-import { classesFor } from "~/school/classes.server";
 import type { Route } from "./+types/spot-maps";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Home-spot map · ${data?.className ?? "class"} · Fretcall` }];
-
-/** The class, if the user teaches it (admins: any of the school's); otherwise 404, not a hint that it exists. */
-async function requireClass(db: Parameters<typeof classesFor>[0], user: Parameters<typeof classesFor>[1], classId: string) {
-  const found = (await classesFor(db, user)).find((c) => c.id === classId);
-  if (!found) throw data({ error: "No such class." }, { status: 404 });
-  return found;
-}
 
 function mapQuery(request: Request) {
   const params = new URL(request.url).searchParams;
@@ -38,7 +31,7 @@ function mapQuery(request: Request) {
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const klass = await requireClass(db, user, params.classId);
+  const klass = await requireClassTeacher(db, user, params.classId);
   const q = mapQuery(request);
   const saved = await classSpotMap(db, klass.id, q.map.position, q.tuning.id);
   return {
@@ -65,7 +58,7 @@ const actionSchema = z.discriminatedUnion("intent", [
 export async function action({ request, params, context }: Route.ActionArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const klass = await requireClass(db, user, params.classId);
+  const klass = await requireClassTeacher(db, user, params.classId);
   const q = mapQuery(request);
   const intent = parseForm(actionSchema, await request.formData());
   if (!intent.ok) return { problems: [{ code: "not-a-map", message: "Choose save or reset." }] as SpotMapProblem[] };
@@ -151,6 +144,7 @@ export default function SpotMaps({ loaderData, actionData }: Route.ComponentProp
         </p>
       </Card>
       <Card className="space-y-4 print:hidden">
+        <NeedsJavaScript what="Changing the map" />
         <fieldset>
           <legend className="font-display text-xl font-semibold">1. Pick a written note</legend>
           <div className="mt-2 flex flex-wrap gap-2">

@@ -1,4 +1,5 @@
 import { data, Form, Link, redirect } from "react-router";
+import { requireTune, tuneAccess } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { Staff } from "~/components/Staff";
 import { Button, buttonClass, Card, Notice, PageTitle, SelectField } from "~/components/ui";
@@ -15,7 +16,8 @@ const whole = (v: string | null, fallback: number) => (v !== null && /^\d{1,4}$/
 
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
-  const tune = await findTune(services(context).db, user.orgId, params.tuneId);
+  const { db } = services(context);
+  const tune = await findTune(db, user.orgId, params.tuneId);
   if (!tune) throw data({ error: "No such tune." }, { status: 404 });
   const q = new URL(request.url).searchParams;
   const lastBar = tune.notes.at(-1)?.bar ?? 1;
@@ -27,13 +29,16 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   // A Tune walk in this position can only ask for notes the position reaches.
   const outside = notes.filter((n) => !homeSpotFor(map, pitchMidi(parsePitch(n.pitch)))).map((n) => `${displayPitch(parsePitch(n.pitch))} (bar ${n.bar})`);
   const bars = Array.from({ length: to - from + 1 }, (_, i) => from + i).map((bar) => ({ bar, notes: notes.filter((n) => n.bar === bar).map((n) => n.pitch) }));
-  return { tune: { id: tune.id, title: tune.title, builtin: tune.builtin, keyFifths: tune.keyFifths, lastBar }, position, from, to, bars, outside };
+  const canDelete = (await tuneAccess(db, user, tune.id, "edit")) === "ok";
+  return { tune: { id: tune.id, title: tune.title, builtin: tune.builtin, keyFifths: tune.keyFifths, lastBar }, canDelete, position, from, to, bars, outside };
 }
 
 export async function action({ request, params, context }: Route.ActionArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
+  const { db } = services(context);
+  await requireTune(db, user, params.tuneId, "edit");
   if ((await request.formData()).get("intent") !== "delete") throw data({ error: "Unknown action." }, { status: 400 });
-  if (!(await deleteTune(services(context).db, user.orgId, params.tuneId))) return { error: "Built-in tunes can't be deleted." };
+  if (!(await deleteTune(db, user.orgId, params.tuneId))) return { error: "This tune was already deleted." };
   return redirect("/teach/tunes");
 }
 
@@ -72,7 +77,7 @@ export default function TunePage({ loaderData: d, actionData }: Route.ComponentP
         <Link to={`/host?mode=tune-walk&tune=${d.tune.id}&position=${d.position}&from=${d.from}&to=${d.to}`} className={buttonClass("teal")}>
           ♫ Host a Tune walk of these bars
         </Link>
-        {!d.tune.builtin ? (
+        {d.canDelete ? (
           <Form method="post" onSubmit={(e) => !confirm("Delete this tune?") && e.preventDefault()}>
             <input type="hidden" name="intent" value="delete" />
             <Button type="submit" tone="ghost">
