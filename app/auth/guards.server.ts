@@ -33,10 +33,6 @@ export async function requireUser(request: Request, context: Ctx): Promise<Sessi
   throw redirect(`/signin?${new URLSearchParams({ redirectTo: url.pathname + url.search })}`);
 }
 
-export async function requireUserId(request: Request, context: Ctx): Promise<string> {
-  return (await requireUser(request, context)).id;
-}
-
 /** 403 for a signed-in user of another role; admins pass every teacher check. */
 export async function requireUserWithRole(request: Request, context: Ctx, roles: readonly Role[]) {
   const user = await requireUser(request, context);

@@ -5,7 +5,7 @@ import { resolveTuning } from "~/music/tuning";
 import { CLOSE_CODES, ERROR_CODES, HOST_ACTIONS, serverMessageSchema, type HostAction, type Phase, type ServerMessage } from "./protocol";
 import { initialState, isStoreEffect, LATE_GRACE_MS, playerBySeatToken, reduce, replay, snapshot, type Answer, type Effect, type RoomEvent, type RoomRecord, type RoomState } from "./room";
 import { drawnPrompts, roomConfig, tunePrompts, type PromptNote, type RoomConfig } from "./roomConfig";
-import { summarise } from "./standings";
+import { playerSummaries } from "./standings";
 
 const SPEC: ReadingSpec = { position: 5, tuning: "standard", frets: 15, reading: "guitar", keyFifths: 0, accidentals: "naturals", ledgerLines: false };
 const T0 = 1_000_000;
@@ -348,7 +348,7 @@ describe("phase transitions", () => {
     expect(room.state.phase).toBe("reveal");
     expect(playerBySeatToken(room.state, "seat-ben-0123456789abcdef")).toBeUndefined();
     expect(errorOf(room.do({ type: "online", playerId: "ben" }))).toBe(ERROR_CODES.unknownPlayer);
-    expect(summarise(room.state).map((s) => s.playerId)).toEqual(["ana"]);
+    expect(playerSummaries(room.state).map((s) => s.playerId)).toEqual(["ana"]);
   });
 
   it("every message that changes the phase carries it, and the stage's snapshot shows the same screen", () => {
@@ -501,7 +501,7 @@ describe("summaries and standings", () => {
       room.host("next");
     }
     expect(room.state.phase).toBe("ended");
-    expect(summarise(room.state)).toEqual([
+    expect(playerSummaries(room.state)).toEqual([
       { playerId: "ana", nickname: "ana", points: expect.any(Number), answered: 4, correct: 3, accuracy: 0.75, medianReactionMs: 2_000, longestStreak: 2 },
       { playerId: "ben", nickname: "ben", points: expect.any(Number), answered: 4, correct: 3, accuracy: 0.75, medianReactionMs: 2_000, longestStreak: 3 },
     ]);
@@ -571,7 +571,7 @@ describe("replay", () => {
       const stored = JSON.parse(JSON.stringify(live.records)) as RoomRecord[];
       const rebuilt = replay(live.config, stored);
       expect(rebuilt).toEqual(live.state);
-      expect(summarise(rebuilt)).toEqual(summarise(live.state));
+      expect(playerSummaries(rebuilt)).toEqual(playerSummaries(live.state));
     }
   });
 

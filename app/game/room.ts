@@ -37,7 +37,7 @@ import {
 } from "./protocol";
 import type { PromptNote, RoomConfig } from "./roomConfig";
 import { scoreAnswer, scoreFind, verdictOf, type Verdict } from "./scoring";
-import { standings, summarise } from "./standings";
+import { playerSummaries, standings } from "./standings";
 
 /** Answers may arrive this long after the deadline if they were tapped before it (radio latency). */
 export const LATE_GRACE_MS = 300;
@@ -599,7 +599,7 @@ function revealMessage(s: RoomState): ServerMessageOf<"reveal"> {
 
 /** Final standings, then the summaries: all of them for the stage, only their own for a player. */
 function endMessages(s: RoomState, to: Audience): ServerMessage[] {
-  const summaries = summarise(s).filter((x) => to.to !== "player" || x.playerId === to.playerId);
+  const summaries = playerSummaries(s).filter((x) => to.to !== "player" || x.playerId === to.playerId);
   return [standings(s, true), { type: "ended", phase: "ended", reason: s.ended!, tuneName: s.config.tuneName, summaries }];
 }
 

@@ -6,9 +6,10 @@ import type { Reading } from "~/music/fretboard";
 import { keyAlter } from "~/music/keys";
 import { parsePitch, pitchMidi, pitchToString } from "~/music/pitch";
 import { buildPool, drawPrompts, type PoolNote, type ReadingSpec } from "~/music/pools";
+import { UserError } from "~/lib/userError";
 import type { Mode } from "./protocol";
 
-export class RoomConfigError extends Error {}
+export class RoomConfigError extends UserError {}
 
 /** A pool note with the key signature it is shown in. */
 export interface PromptNote extends PoolNote {

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import type { Answer, Player, RoomState } from "./room";
-import { standings, summarise } from "./standings";
+import { playerSummaries, standings } from "./standings";
 
 const player = (id: string, points: number, longestStreak: number, team: number | null = null, removed = false): Player => ({
   id, nickname: `Kid ${id}`, seatToken: `seat-${id}`, online: true, removed, team, points, streak: 0, longestStreak,
@@ -18,7 +18,7 @@ function state(players: Player[], answers: Answer[] = [], teams: number | null =
   };
 }
 
-describe("summarise", () => {
+describe("playerSummaries", () => {
   it.each<[string, Answer[], { answered: number; correct: number; accuracy: number; medianReactionMs: number | null }]>([
     ["no answers", [], { answered: 0, correct: 0, accuracy: 0, medianReactionMs: null }],
     ["odd count", [answer("a", 900, "right"), answer("a", 300, "right"), answer("a", 600, "right")], { answered: 3, correct: 3, accuracy: 1, medianReactionMs: 600 }],
@@ -26,11 +26,11 @@ describe("summarise", () => {
     ["misses count against accuracy, not the median", [answer("a", 500, "right"), answer("a", 50, "wrong")], { answered: 2, correct: 1, accuracy: 0.5, medianReactionMs: 500 }],
     ["partial is right pitch but not correct", [answer("a", 400, "partial"), answer("a", 800, "right")], { answered: 2, correct: 1, accuracy: 0.5, medianReactionMs: 600 }],
   ])("%s", (_, answers, expected) => {
-    expect(summarise(state([player("a", 0, 0)], answers))[0]).toMatchObject(expected);
+    expect(playerSummaries(state([player("a", 0, 0)], answers))[0]).toMatchObject(expected);
   });
 
   it("leaves removed players out", () => {
-    expect(summarise(state([player("a", 0, 0), player("b", 0, 0, null, true)])).map((s) => s.playerId)).toEqual(["a"]);
+    expect(playerSummaries(state([player("a", 0, 0), player("b", 0, 0, null, true)])).map((s) => s.playerId)).toEqual(["a"]);
   });
 });
 

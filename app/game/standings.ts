@@ -1,25 +1,18 @@
 /** Summaries and standings, derived from the room state only, so a rebuilt room reports the same. */
 import type { ServerMessageOf, Summary } from "./protocol";
 import type { Player, RoomState } from "./room";
+import { median } from "~/lib/median";
 import { teamScore } from "./scoring";
 
 export const TEAM_NAMES = ["Nut", "Saddle", "Bridge", "Headstock", "Soundhole", "Rosette", "Tuner", "Capo"] as const;
 
 const inRoom = (state: RoomState): Player[] => state.players.filter((p) => !p.removed);
 
-/** Middle value (mean of the middle two for an even count); null when there are none. */
-export function median(values: number[]): number | null {
-  if (values.length === 0) return null;
-  const sorted = [...values].sort((a, b) => a - b);
-  const mid = Math.floor(sorted.length / 2);
-  return sorted.length % 2 === 1 ? sorted[mid]! : (sorted[mid - 1]! + sorted[mid]!) / 2;
-}
-
 /**
  * Per player: points, answers given, correct (full credit), accuracy = correct ÷ answered, the
  * median reaction time of right-pitch answers (how fast the note is found once read), longest streak.
  */
-export function summarise(state: RoomState): Summary[] {
+export function playerSummaries(state: RoomState): Summary[] {
   return inRoom(state).map((p) => {
     const mine = state.answers.filter((a) => a.playerId === p.id);
     const correct = mine.filter((a) => a.verdict === "right").length;

@@ -26,6 +26,22 @@ export const MISTAKE_LABELS: Record<MistakeKind, string> = {
   "wide-miss": "wide miss",
 };
 
+/**
+ * An icon per mistake kind beside its label, so a colour-blind player reads the same as everyone
+ * else; "no-answer" is the live round's word for a prompt left unanswered.
+ */
+export const MISTAKE_ICONS: Record<MistakeKind | "no-answer", string> = {
+  "home-spot": "✓",
+  "other-spot": "◐",
+  "octave-off": "⇅",
+  "key-signature-miss": "♯?",
+  "accidental-miss": "♮?",
+  "half-step-off": "½",
+  "string-over": "⇵",
+  "wide-miss": "✗",
+  "no-answer": "…",
+};
+
 export interface Diagnosis {
   kind: MistakeKind;
   pitchRight: boolean;

@@ -1,7 +1,8 @@
 // Written pitches in scientific pitch notation: parsing, spelling for display and speech, MIDI and frequency.
+import { UserError } from "~/lib/userError";
 
 /** Every bad input to the music engine throws this, with a message a teacher can act on. */
-export class MusicError extends Error {
+export class MusicError extends UserError {
   constructor(message: string) {
     super(message);
     this.name = "MusicError";

@@ -89,8 +89,6 @@ export function assignmentFormSchema(now: number) {
     });
 }
 
-export type AssignmentInput = z.output<ReturnType<typeof assignmentFormSchema>>;
-
 /** Checkboxes named "students" come as several values; parseForm keeps one per name, so join them first. */
 export function collectStudents(form: FormData): FormData {
   form.set("students", form.getAll("students").join(","));

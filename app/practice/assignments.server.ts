@@ -8,7 +8,7 @@ import type { Db } from "~/db/client.server";
 import { assignments, assignmentTargets, classes, memberships, practiceAnswers, readingSets, tunes, users } from "~/db/schema";
 import { READING_PRESETS, readingPreset } from "~/reading/presets";
 import { setsFor } from "~/reading/sets.server";
-import { parseReadingSet, readingSetSpecSchema, summarise, type ParsedReadingSet } from "~/reading/spec";
+import { parseReadingSet, readingSetSpecSchema, describeReadingSet, type ParsedReadingSet } from "~/reading/spec";
 import { BUILTIN_TUNES, type Tune } from "~/tunes/builtin";
 import { practicePath, type MaterialKind, type MaterialRef } from "./assignmentForm";
 import type { OpenAssignment } from "./AssignmentParts";
@@ -34,7 +34,7 @@ export async function materialOptions(db: Db, user: SessionUser, classId: string
     ...sets
       .filter((s) => s.spec && (s.classId === null || s.classId === classId))
       .map((s) => ({ value: `set:${s.id}`, label: `${s.name} — ${s.summary}`, group: "Reading sets" as const })),
-    ...READING_PRESETS.map((p) => ({ value: `preset:${p.id}`, label: `${p.step}. ${p.name} — ${summarise(p.spec)}`, group: "Ready-made reading sets" as const })),
+    ...READING_PRESETS.map((p) => ({ value: `preset:${p.id}`, label: `${p.step}. ${p.name} — ${describeReadingSet(p.spec)}`, group: "Ready-made reading sets" as const })),
     ...[...BUILTIN_TUNES, ...uploaded].map((t) => ({ value: `tune:${t.id}`, label: t.title, group: "Tunes" as const })),
   ];
 }

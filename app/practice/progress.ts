@@ -24,7 +24,7 @@
  * - **Status**: done once completed (late if completed after the due time); otherwise overdue after
  *   the due time, else open. Practice after the due time still counts.
  */
-import { median } from "~/game/standings";
+import { median } from "~/lib/median";
 import { verdictOf } from "~/game/scoring";
 
 export interface Goal {

@@ -7,7 +7,7 @@
  * - **Per note**: the class review's note cells (app/review/stats.ts), counting the home spot as correct, which
  *   is what solo practice drills.
  */
-import { median } from "~/game/standings";
+import { median } from "~/lib/median";
 import type { Spot } from "~/music/fretboard";
 import type { MistakeKind } from "~/music/mistakes";
 import type { NoteCell } from "~/review/stats";

@@ -7,7 +7,7 @@ import type { Db } from "~/db/client.server";
 import { classes, readingSets } from "~/db/schema";
 import { classesFor } from "~/school/classes.server";
 import { readingPreset } from "./presets";
-import { parseReadingSet, readingSetSpecSchema, summarise, type ParsedReadingSet, type ReadingSetSpec } from "./spec";
+import { parseReadingSet, readingSetSpecSchema, describeReadingSet, type ParsedReadingSet, type ReadingSetSpec } from "./spec";
 
 export interface SavedSet {
   id: string;
@@ -38,7 +38,7 @@ function parsedRow(row: Row): { saved: SavedSet; reading: ParsedReadingSet | nul
     classId: row.classId,
     className: row.className,
     spec: parsed.ok ? parsed.set : null,
-    summary: parsed.ok ? summarise(parsed.set) : `Needs an edit: ${Object.values(parsed.errors)[0] ?? "it no longer checks out"}`,
+    summary: parsed.ok ? describeReadingSet(parsed.set) : `Needs an edit: ${Object.values(parsed.errors)[0] ?? "it no longer checks out"}`,
     updatedAt: (row.updatedAt ?? row.createdAt).toISOString(),
   };
   return { saved, reading: parsed.ok ? parsed : null };

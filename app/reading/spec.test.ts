@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { buildPool } from "~/music/pools";
-import { parseReadingSet, readingSetFormSchema, readingSetSpecSchema, readingSpecOf, summarise, type ReadingSetSpec } from "./spec";
+import { parseReadingSet, readingSetFormSchema, readingSetSpecSchema, readingSpecOf, describeReadingSet, type ReadingSetSpec } from "./spec";
 
 const SET: ReadingSetSpec = {
   mode: "sprint",
@@ -86,6 +86,6 @@ describe("reading set spec ↔ the engine's ReadingSpec", () => {
   });
 
   it("sums a set up in one line", () => {
-    expect(summarise(SET)).toBe("Position 5 · Standard · G major, notes of the key · no ledger lines · strings 1, 2, 3 · E4 to G5 · 12 notes, 10 s each · Sprint · home spot only");
+    expect(describeReadingSet(SET)).toBe("Position 5 · Standard · G major, notes of the key · no ledger lines · strings 1, 2, 3 · E4 to G5 · 12 notes, 10 s each · Sprint · home spot only");
   });
 });

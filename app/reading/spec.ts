@@ -171,7 +171,7 @@ export function applySpotMap<T extends Pick<PoolNote, "writtenMidi" | "home">>(n
 const ACCIDENTAL_WORDS = { naturals: "naturals only", key: "notes of the key", chromatic: "with accidentals" } as const;
 
 /** One line a busy teacher can read at a glance. */
-export function summarise(set: ReadingSetSpec): string {
+export function describeReadingSet(set: ReadingSetSpec): string {
   const key = KEYS.find((k) => k.mode === "major" && k.fifths === set.keyFifths);
   const parts = [
     `Position ${set.position}`,

@@ -82,7 +82,7 @@ export interface ProgressDatum {
   medianMs: number | null;
 }
 
-/** Accuracy and median time per session, one line chart each, every point labelled. */
+/** Accuracy and median time per round, one line chart each, every point labelled. */
 export function ProgressCharts({ points }: { points: ProgressDatum[] }) {
   const data = points.map((p) => ({
     when: day(p.startedAt),
@@ -110,8 +110,8 @@ export function ProgressCharts({ points }: { points: ProgressDatum[] }) {
   );
   return (
     <div className="grid gap-6 lg:grid-cols-2">
-      {chart("accuracy", " %", "var(--color-teal)", "Accuracy per session")}
-      {chart("seconds", " s", "var(--color-rosewood)", "Median time per session")}
+      {chart("accuracy", " %", "var(--color-teal)", "Accuracy per round")}
+      {chart("seconds", " s", "var(--color-rosewood)", "Median time per round")}
     </div>
   );
 }

@@ -32,6 +32,6 @@ describe("gradebook CSV", () => {
       ["Tuesday", "Sprint", "2025-01-07", "Amy", "nickname only", 10, 2, 1, 50, "", 1],
       ["Tuesday", "Sprint", "2025-01-07", "Zed", "yes", 10, 2, 1, 50, 1.23, 1],
     ]);
-    expect(toCsv(rows).split("\r\n")[0]).toBe("class,session,date,student,account,points,answers,correct,accuracy %,median time s,longest streak");
+    expect(toCsv(rows).split("\r\n")[0]).toBe("class,round,date,student,account,points,answers,correct,accuracy %,median time s,longest streak");
   });
 });

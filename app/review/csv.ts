@@ -1,8 +1,8 @@
-// Gradebook CSV: one row per student per session, safe to open in a spreadsheet.
+// Gradebook CSV: one row per student per round, safe to open in a spreadsheet.
 import Papa from "papaparse";
-import type { PlayerFigures, SessionInfo } from "./stats";
+import type { PlayerFigures, RoundInfo } from "./stats";
 
-export const CSV_COLUMNS = ["class", "session", "date", "student", "account", "points", "answers", "correct", "accuracy %", "median time s", "longest streak"] as const;
+export const CSV_COLUMNS = ["class", "round", "date", "student", "account", "points", "answers", "correct", "accuracy %", "median time s", "longest streak"] as const;
 
 // The start of the cell and of every line in it, when a formula character follows.
 const FORMULA_LINE = /(?<=^|[\r\n])(?=[=+\-@\t\r])/g;
@@ -22,13 +22,13 @@ export function toCsv(rows: readonly (readonly (string | number)[])[]): string {
   return Papa.unparse({ fields: [...CSV_COLUMNS], data: rows.map((r) => r.map(neutraliseCell)) }, { newline: "\r\n" });
 }
 
-export function gradebookRows(className: string, session: Pick<SessionInfo, "title" | "startedAt">, players: readonly PlayerFigures[]) {
-  const date = new Date(session.startedAt).toISOString().slice(0, 10);
+export function gradebookRows(className: string, round: Pick<RoundInfo, "title" | "startedAt">, players: readonly PlayerFigures[]) {
+  const date = new Date(round.startedAt).toISOString().slice(0, 10);
   return [...players]
     .sort((a, b) => a.nickname.localeCompare(b.nickname))
     .map((p) => [
       className,
-      session.title,
+      round.title,
       date,
       p.nickname,
       p.userId ? "yes" : "nickname only",

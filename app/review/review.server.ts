@@ -3,7 +3,7 @@ import { and, eq, inArray } from "drizzle-orm";
 import { data } from "react-router";
 import type { Db } from "~/db/client.server";
 import { answers, memberships, roomPlayers, rooms, users } from "~/db/schema";
-import { sessionInfo, type ReviewInput } from "./stats";
+import { roundInfo, type ReviewInput } from "./stats";
 
 const notFound = (what: string) => data({ error: `No such ${what}.` }, { status: 404 });
 
@@ -28,12 +28,12 @@ export async function reviewInput(db: Db, where: { classId: string } | { roomId:
     .from(rooms)
     .where("classId" in where ? eq(rooms.classId, where.classId) : eq(rooms.id, where.roomId));
   const ids = roomRows.map((r) => r.id);
-  if (ids.length === 0) return { sessions: [], players: [], answers: [] };
+  if (ids.length === 0) return { rounds: [], players: [], answers: [] };
   const [players, rows] = await Promise.all([
     db.select({ id: roomPlayers.id, roomId: roomPlayers.roomId, userId: roomPlayers.userId, nickname: roomPlayers.nickname }).from(roomPlayers).where(inArray(roomPlayers.roomId, ids)),
     db.select().from(answers).where(inArray(answers.roomId, ids)),
   ]);
-  return { sessions: roomRows.map(sessionInfo), players, answers: rows };
+  return { rounds: roomRows.map(roundInfo), players, answers: rows };
 }
 
 export const answerCount = async (db: Db, roomId: string) => (await db.$count(answers, eq(answers.roomId, roomId)));

@@ -1,8 +1,8 @@
 import { describe, expect, it } from "vitest";
-import { classReview, mistakeShares, mostImproved, noteHeatmap, reteachList, sessionPlayers, studentProgress, type AnswerRow, type ReviewInput } from "./stats";
+import { classReview, mistakeShares, mostImproved, noteHeatmap, reteachList, roundPlayers, studentProgress, type AnswerRow, type ReviewInput } from "./stats";
 
 /**
- * Two sessions, worked out by hand.
+ * Two rounds, worked out by hand.
  * S1 (home spot only ON): Ana, Ben (accounts) and Guest (nickname only).
  * S2 (home spot only OFF, so "other spot" is full credit): Ana and Ben.
  */
@@ -25,7 +25,7 @@ const row = (roomId: string, playerId: string, promptIndex: number, written: str
 });
 
 const input: ReviewInput = {
-  sessions: [
+  rounds: [
     { id: "S2", title: "Week 2", startedAt: 2000, live: false, position: 5, tuning: "standard", frets: 15, homes: [{ string: 4, fret: 4 }, { string: 4, fret: 4 }, { string: 2, fret: 3 }, { string: 2, fret: 1 }] },
     { id: "S1", title: "Week 1", startedAt: 1000, live: false, position: 5, tuning: "standard", frets: 15, homes: [{ string: 2, fret: 1 }, { string: 2, fret: 3 }, { string: 4, fret: 4 }, { string: 2, fret: 1 }] },
   ],
@@ -66,13 +66,13 @@ const input: ReviewInput = {
 
 const pick = <T extends { nickname: string }>(list: T[]) => list.map((p) => p.nickname);
 
-describe("one session", () => {
+describe("one round", () => {
   it("gives each player points, answers, correct, accuracy, median time and longest streak", () => {
-    const s1 = Object.fromEntries(sessionPlayers(input, "S1").map((p) => [p.nickname, p]));
+    const s1 = Object.fromEntries(roundPlayers(input, "S1").map((p) => [p.nickname, p]));
     expect(s1.Ana).toMatchObject({ key: "u-ana", points: 2000, answered: 4, correct: 2, accuracy: 0.5, medianMs: 1500, longestStreak: 1 });
     expect(s1.Ben).toMatchObject({ points: 4030, answered: 4, correct: 4, accuracy: 1, medianMs: 650, longestStreak: 4 });
     expect(s1.Guest).toMatchObject({ key: "seat:g1", userId: null, answered: 2, correct: 1, medianMs: 2500 });
-    const s2 = Object.fromEntries(sessionPlayers(input, "S2").map((p) => [p.nickname, p]));
+    const s2 = Object.fromEntries(roundPlayers(input, "S2").map((p) => [p.nickname, p]));
     expect(s2.Ana).toMatchObject({ correct: 3, accuracy: 0.75, medianMs: 1000, longestStreak: 2, points: 2600 });
     expect(s2.Ben).toMatchObject({ correct: 2, accuracy: 0.5, medianMs: 800, longestStreak: 2, points: 1900 });
   });
@@ -84,19 +84,19 @@ describe("one session", () => {
     expect(pick(r.leaderboards.speed)).toEqual(["Ben", "Ana"]);
   });
 
-  it("merges two seats of one account in a session (a rejoin from another phone)", () => {
+  it("merges two seats of one account in a round (a rejoin from another phone)", () => {
     const rejoined: ReviewInput = {
       ...input,
       players: [...input.players, { id: "a1b", roomId: "S1", userId: "u-ana", nickname: "Ana" }],
       answers: [...input.answers, row("S1", "a1b", 4, "C5", "home-spot", 900, 2, 950)],
     };
-    const ana = sessionPlayers(rejoined, "S1").filter((p) => p.nickname === "Ana");
+    const ana = roundPlayers(rejoined, "S1").filter((p) => p.nickname === "Ana");
     expect(ana).toHaveLength(1);
     expect(ana[0]).toMatchObject({ answered: 5, correct: 3, longestStreak: 2 });
   });
 });
 
-describe("across sessions", () => {
+describe("across rounds", () => {
   const r = classReview(input);
 
   it("links students by account and leaves nickname-only seats out", () => {
@@ -110,25 +110,25 @@ describe("across sessions", () => {
     expect(pick(r.leaderboards.speed)).toEqual(["Ben", "Ana"]);
   });
 
-  it("lists sessions newest first with their size", () => {
-    expect(r.sessions.map((s) => [s.id, s.players, s.answers])).toEqual([
+  it("lists rounds newest first with their size", () => {
+    expect(r.rounds.map((s) => [s.id, s.players, s.answers])).toEqual([
       ["S2", 2, 8],
       ["S1", 3, 10],
     ]);
   });
 
-  it("most improved: accuracy now minus accuracy in the previous session", () => {
+  it("most improved: accuracy now minus accuracy in the previous round", () => {
     // Ana 75 % − 50 % = +25 points; Ben 50 % − 100 % = −50 points.
-    expect(mostImproved(input, "S2").map((m) => [m.nickname, m.delta, m.previousSessionId])).toEqual([
+    expect(mostImproved(input, "S2").map((m) => [m.nickname, m.delta, m.previousRoundId])).toEqual([
       ["Ana", 0.25, "S1"],
       ["Ben", -0.5, "S1"],
     ]);
     expect(mostImproved(input, "S1")).toEqual([]);
-    // Across sessions it is about the latest session.
+    // Across rounds it is about the latest round.
     expect(r.mostImproved.map((m) => m.nickname)).toEqual(["Ana", "Ben"]);
   });
 
-  it("builds the note heatmap with every answer, each session scored by its own rule", () => {
+  it("builds the note heatmap with every answer, each round scored by its own rule", () => {
     // C5: 7 answers, 6 right (Guest's wide miss); right-pitch times 500,600,700,800,1000,1500 → 750.
     // D5: 5 answers, 3 right (Ana's other spot in S1 is half credit; her half step in S2 is wrong); times 700,900,2000,2500 → 1450.
     // F♯4: 6 answers, 3 right (Ana's other spot in S2 is full credit); times 900,1000,1200 → 1000.
@@ -162,21 +162,21 @@ describe("across sessions", () => {
 });
 
 describe("one student", () => {
-  it("shows progress per session and personal bests", () => {
+  it("shows progress per round and personal bests", () => {
     const ana = studentProgress(input, "u-ana");
-    expect(ana.sessions.map((s) => [s.sessionId, s.accuracy, s.medianMs])).toEqual([
+    expect(ana.rounds.map((s) => [s.roundId, s.accuracy, s.medianMs])).toEqual([
       ["S1", 0.5, 1500],
       ["S2", 0.75, 1000],
     ]);
     expect(ana.bests).toEqual({
-      points: { value: 2600, sessionId: "S2" },
-      streak: { value: 2, sessionId: "S2" },
-      accuracy: { value: 0.75, sessionId: "S2" },
-      speed: { value: 1000, sessionId: "S2" },
+      points: { value: 2600, roundId: "S2" },
+      streak: { value: 2, roundId: "S2" },
+      accuracy: { value: 0.75, roundId: "S2" },
+      speed: { value: 1000, roundId: "S2" },
     });
     const ben = studentProgress(input, "u-ben");
-    expect(ben.bests.speed).toEqual({ value: 650, sessionId: "S1" });
-    expect(ben.bests.points).toEqual({ value: 4030, sessionId: "S1" });
+    expect(ben.bests.speed).toEqual({ value: 650, roundId: "S1" });
+    expect(ben.bests.points).toEqual({ value: 4030, roundId: "S1" });
     expect(ben.heatmap.find((c) => c.written === "F#4")).toMatchObject({ answers: 3, correct: 1 });
   });
 });

@@ -1,6 +1,6 @@
 /**
  * Class review figures, pure: from the stored answer rows of a class's rounds (one round = one
- * session) to leaderboards, the note heatmap, mistake shares, notes to reteach and per-student
+ * room) to leaderboards, the note heatmap, mistake shares, notes to reteach and per-student
  * progress. No I/O, so every rule below is checked in stats.test.ts against hand-made answers.
  *
  * Rules, in one place:
@@ -13,8 +13,8 @@
  * - **Longest streak** = the largest value of the stored `streak` column (the streak after each
  *   answer). A streak only grows on an answer and only breaks to 0, so its peak is always right after
  *   an answer: this equals the reducer's own longestStreak without replaying the log.
- * - **Linking**: a student who played signed in is linked across sessions by account; a
- *   nickname-only seat counts only within its own session and is left out of cross-session figures.
+ * - **Linking**: a student who played signed in is linked across rounds by account; a
+ *   nickname-only seat counts only within its own round and is left out of cross-round figures.
  * - **Ranked** on the accuracy and time boards only with at least MIN_RANKED answers (resp. right-pitch
  *   answers), so one lucky tap does not top the board.
  */
@@ -22,7 +22,7 @@ import type { Spot } from "~/music/fretboard";
 import { MISTAKE_LABELS, type MistakeKind } from "~/music/mistakes";
 import type { RoomConfig } from "~/game/roomConfig";
 import type { Verdict } from "~/game/scoring";
-import { median } from "~/game/standings";
+import { median } from "~/lib/median";
 
 export const MIN_RANKED = 3;
 /** Reteach: a note needs this many answers to be judged at all… */
@@ -59,7 +59,7 @@ export interface PlayerRow {
 }
 
 /** A round of the class, reduced to what the figures need. */
-export interface SessionInfo {
+export interface RoundInfo {
   id: string;
   title: string;
   startedAt: number;
@@ -73,12 +73,12 @@ export interface SessionInfo {
 }
 
 export interface ReviewInput {
-  sessions: SessionInfo[];
+  rounds: RoundInfo[];
   players: PlayerRow[];
   answers: AnswerRow[];
 }
 
-export function sessionInfo(room: { id: string; title: string; position: number; createdAt: Date; endedAt: Date | null; config: RoomConfig }): SessionInfo {
+export function roundInfo(room: { id: string; title: string; position: number; createdAt: Date; endedAt: Date | null; config: RoomConfig }): RoundInfo {
   return {
     id: room.id,
     title: room.title,
@@ -91,13 +91,13 @@ export function sessionInfo(room: { id: string; title: string; position: number;
   };
 }
 
-/** Answer rows with full credit marked, and only those of the given sessions. */
+/** Answer rows with full credit marked, and only those of the given rounds. */
 interface Scored extends AnswerRow {
   correct: boolean;
 }
 
 function scoredRows(input: ReviewInput, rows: readonly AnswerRow[] = input.answers): Scored[] {
-  const known = new Set(input.sessions.map((s) => s.id));
+  const known = new Set(input.rounds.map((s) => s.id));
   return rows.filter((a) => known.has(a.roomId)).map((a) => ({ ...a, correct: a.verdict === "right" }));
 }
 
@@ -139,22 +139,22 @@ const keyOf = (p: PlayerRow) => p.userId ?? `seat:${p.id}`;
 
 /**
  * Figures per player, grouped by account (a student who re-joined from another phone has two seats
- * but is one player) — within the given sessions, and only linked players when `linkedOnly`.
+ * but is one player) — within the given rounds, and only linked players when `linkedOnly`.
  */
-function playersOf(input: ReviewInput, sessionIds: ReadonlySet<string>, linkedOnly: boolean): PlayerFigures[] {
-  const seats = input.players.filter((p) => sessionIds.has(p.roomId) && (!linkedOnly || p.userId !== null));
+function playersOf(input: ReviewInput, roundIds: ReadonlySet<string>, linkedOnly: boolean): PlayerFigures[] {
+  const seats = input.players.filter((p) => roundIds.has(p.roomId) && (!linkedOnly || p.userId !== null));
   const byKey = new Map<string, { userId: string | null; nickname: string; seatIds: Set<string> }>();
   for (const p of seats) {
     const entry = byKey.get(keyOf(p)) ?? { userId: p.userId, nickname: p.nickname, seatIds: new Set<string>() };
     entry.seatIds.add(p.id);
     byKey.set(keyOf(p), entry);
   }
-  const rows = scoredRows(input).filter((a) => sessionIds.has(a.roomId));
+  const rows = scoredRows(input).filter((a) => roundIds.has(a.roomId));
   return [...byKey].map(([key, e]) => ({ key, userId: e.userId, nickname: e.nickname, ...figuresOf(rows.filter((a) => e.seatIds.has(a.playerId))) }));
 }
 
-export function sessionPlayers(input: ReviewInput, sessionId: string): PlayerFigures[] {
-  return playersOf(input, new Set([sessionId]), false);
+export function roundPlayers(input: ReviewInput, roundId: string): PlayerFigures[] {
+  return playersOf(input, new Set([roundId]), false);
 }
 
 // ---- leaderboards --------------------------------------------------------------------------
@@ -184,30 +184,30 @@ export function leaderboards(players: readonly PlayerFigures[]): Leaderboards {
 export interface Improvement {
   userId: string;
   nickname: string;
-  /** Accuracy in the session, in the student's previous session of this class, and the difference. */
+  /** Accuracy in the round, in the student's previous round of this class, and the difference. */
   now: number;
   before: number;
   delta: number;
-  previousSessionId: string;
+  previousRoundId: string;
 }
 
 /**
- * Most improved since the previous session: for every linked student with at least MIN_RANKED answers
- * in `sessionId`, accuracy there minus accuracy in the latest earlier session of the class where they
- * also gave at least MIN_RANKED answers. Largest rise first; students with no such earlier session are left out.
+ * Most improved since the previous round: for every linked student with at least MIN_RANKED answers
+ * in `roundId`, accuracy there minus accuracy in the latest earlier round of the class where they
+ * also gave at least MIN_RANKED answers. Largest rise first; students with no such earlier round are left out.
  */
-export function mostImproved(input: ReviewInput, sessionId: string): Improvement[] {
-  const ordered = [...input.sessions].sort((a, b) => a.startedAt - b.startedAt);
-  const at = ordered.findIndex((s) => s.id === sessionId);
+export function mostImproved(input: ReviewInput, roundId: string): Improvement[] {
+  const ordered = [...input.rounds].sort((a, b) => a.startedAt - b.startedAt);
+  const at = ordered.findIndex((s) => s.id === roundId);
   if (at < 0) return [];
   const earlier = ordered.slice(0, at).reverse();
-  const perSession = new Map(ordered.slice(0, at + 1).map((s) => [s.id, new Map(playersOf(input, new Set([s.id]), true).map((p) => [p.userId!, p]))]));
+  const perRound = new Map(ordered.slice(0, at + 1).map((s) => [s.id, new Map(playersOf(input, new Set([s.id]), true).map((p) => [p.userId!, p]))]));
   const out: Improvement[] = [];
-  for (const p of perSession.get(sessionId)!.values()) {
+  for (const p of perRound.get(roundId)!.values()) {
     if (p.answered < MIN_RANKED) continue;
-    const prev = earlier.map((s) => ({ s, f: perSession.get(s.id)!.get(p.userId!) })).find((x) => x.f && x.f.answered >= MIN_RANKED);
+    const prev = earlier.map((s) => ({ s, f: perRound.get(s.id)!.get(p.userId!) })).find((x) => x.f && x.f.answered >= MIN_RANKED);
     if (!prev) continue;
-    out.push({ userId: p.userId!, nickname: p.nickname, now: p.accuracy, before: prev.f!.accuracy, delta: p.accuracy - prev.f!.accuracy, previousSessionId: prev.s.id });
+    out.push({ userId: p.userId!, nickname: p.nickname, now: p.accuracy, before: prev.f!.accuracy, delta: p.accuracy - prev.f!.accuracy, previousRoundId: prev.s.id });
   }
   return out.sort((a, b) => b.delta - a.delta || a.nickname.localeCompare(b.nickname));
 }
@@ -230,7 +230,7 @@ export interface NoteCell {
 
 /** The note heatmap: accuracy and median time per written pitch, low to high. */
 export function noteHeatmap(input: ReviewInput, rows: readonly AnswerRow[] = input.answers): NoteCell[] {
-  const homes = new Map(input.sessions.map((s) => [s.id, s.homes]));
+  const homes = new Map(input.rounds.map((s) => [s.id, s.homes]));
   const groups = new Map<string, Scored[]>();
   for (const a of scoredRows(input, rows)) groups.set(a.written, [...(groups.get(a.written) ?? []), a]);
   return [...groups]
@@ -257,8 +257,8 @@ export interface PromptResult {
 }
 
 /** Note by note through one round: for each prompt shown (in order), answers given, right, and the kinds given. */
-export function promptResults(input: ReviewInput, sessionId: string, shown: readonly { written: string }[]): PromptResult[] {
-  const rows = scoredRows(input).filter((a) => a.roomId === sessionId);
+export function promptResults(input: ReviewInput, roundId: string, shown: readonly { written: string }[]): PromptResult[] {
+  const rows = scoredRows(input).filter((a) => a.roomId === roundId);
   return shown.map((note, index) => {
     const mine = rows.filter((a) => a.promptIndex === index);
     return { index, written: note.written, answered: mine.length, right: mine.filter((a) => a.correct).length, kinds: kindCounts(mine) };
@@ -305,39 +305,39 @@ export function reteachList(cells: readonly NoteCell[]): Reteach[] {
 
 // ---- the class review ----------------------------------------------------------------------
 
-export interface SessionOverview extends Pick<SessionInfo, "id" | "title" | "startedAt" | "live"> {
+export interface RoundOverview extends Pick<RoundInfo, "id" | "title" | "startedAt" | "live"> {
   players: number;
   answers: number;
   accuracy: number;
 }
 
 export interface ClassReview {
-  sessions: SessionOverview[];
-  /** null: across every session of the class (linked students only); else that one session (everyone). */
-  sessionId: string | null;
+  rounds: RoundOverview[];
+  /** null: across every round of the class (linked students only); else that one round (everyone). */
+  roundId: string | null;
   leaderboards: Leaderboards;
-  /** Since the previous session, for the chosen session or else the latest one. */
+  /** Since the previous round, for the chosen round or else the latest one. */
   mostImproved: Improvement[];
   heatmap: NoteCell[];
   mistakes: MistakeShare[];
   reteach: Reteach[];
 }
 
-export function classReview(input: ReviewInput, sessionId: string | null = null): ClassReview {
-  const sessions = [...input.sessions].sort((a, b) => b.startedAt - a.startedAt);
-  const ids = new Set(sessionId === null ? sessions.map((s) => s.id) : [sessionId]);
+export function classReview(input: ReviewInput, roundId: string | null = null): ClassReview {
+  const rounds = [...input.rounds].sort((a, b) => b.startedAt - a.startedAt);
+  const ids = new Set(roundId === null ? rounds.map((s) => s.id) : [roundId]);
   const scored = scoredRows(input);
-  const overview = sessions.map((s) => {
+  const overview = rounds.map((s) => {
     const rows = scored.filter((a) => a.roomId === s.id);
     return { id: s.id, title: s.title, startedAt: s.startedAt, live: s.live, players: input.players.filter((p) => p.roomId === s.id).length, answers: rows.length, accuracy: figuresOf(rows).accuracy };
   });
   const rows = input.answers.filter((a) => ids.has(a.roomId));
-  const players = playersOf(input, ids, sessionId === null);
+  const players = playersOf(input, ids, roundId === null);
   const heatmap = noteHeatmap(input, rows);
-  const latest = sessionId ?? overview.find((s) => s.answers > 0)?.id;
+  const latest = roundId ?? overview.find((s) => s.answers > 0)?.id;
   return {
-    sessions: overview,
-    sessionId,
+    rounds: overview,
+    roundId,
     leaderboards: leaderboards(players),
     mostImproved: latest ? mostImproved(input, latest) : [],
     heatmap,
@@ -349,45 +349,45 @@ export function classReview(input: ReviewInput, sessionId: string | null = null)
 // ---- one student ---------------------------------------------------------------------------
 
 export interface ProgressPoint extends Figures {
-  sessionId: string;
+  roundId: string;
   title: string;
   startedAt: number;
 }
 
 export interface Best {
   value: number;
-  sessionId: string;
+  roundId: string;
 }
 
 export interface StudentProgress {
-  sessions: ProgressPoint[];
+  rounds: ProgressPoint[];
   bests: { points: Best | null; streak: Best | null; accuracy: Best | null; speed: Best | null };
   heatmap: NoteCell[];
 }
 
 /**
- * A linked student's figures per session they played (oldest first) and their personal bests: most
- * points and longest streak in one session, best accuracy and fastest median (with at least MIN_RANKED
- * answers that session); the earliest session wins a tie, as the one where the best was first reached.
+ * A linked student's figures per round they played (oldest first) and their personal bests: most
+ * points and longest streak in one round, best accuracy and fastest median (with at least MIN_RANKED
+ * answers that round); the earliest round wins a tie, as the one where the best was first reached.
  */
 export function studentProgress(input: ReviewInput, userId: string): StudentProgress {
   const seats = input.players.filter((p) => p.userId === userId);
-  const ordered = [...input.sessions].sort((a, b) => a.startedAt - b.startedAt).filter((s) => seats.some((p) => p.roomId === s.id));
+  const ordered = [...input.rounds].sort((a, b) => a.startedAt - b.startedAt).filter((s) => seats.some((p) => p.roomId === s.id));
   const scored = scoredRows(input);
   const seatIds = new Set(seats.map((p) => p.id));
-  const sessions = ordered.map((s) => ({ sessionId: s.id, title: s.title, startedAt: s.startedAt, ...figuresOf(scored.filter((a) => a.roomId === s.id && seatIds.has(a.playerId))) }));
+  const rounds = ordered.map((s) => ({ roundId: s.id, title: s.title, startedAt: s.startedAt, ...figuresOf(scored.filter((a) => a.roomId === s.id && seatIds.has(a.playerId))) }));
   const best = (list: ProgressPoint[], value: (p: ProgressPoint) => number | null, higher: boolean): Best | null =>
     list.reduce<Best | null>((acc, p) => {
       const v = value(p);
       if (v === null || (acc && (higher ? v <= acc.value : v >= acc.value))) return acc;
-      return { value: v, sessionId: p.sessionId };
+      return { value: v, roundId: p.roundId };
     }, null);
-  const ranked = sessions.filter((p) => p.answered >= MIN_RANKED);
+  const ranked = rounds.filter((p) => p.answered >= MIN_RANKED);
   return {
-    sessions,
+    rounds,
     bests: {
-      points: best(sessions, (p) => p.points, true),
-      streak: best(sessions, (p) => p.longestStreak, true),
+      points: best(rounds, (p) => p.points, true),
+      streak: best(rounds, (p) => p.longestStreak, true),
       accuracy: best(ranked, (p) => p.accuracy, true),
       speed: best(ranked, (p) => p.medianMs, false),
     },

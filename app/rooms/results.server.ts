@@ -1,7 +1,7 @@
 import type { Db } from "~/db/client.server";
 import { MISTAKE_LABELS } from "~/music/mistakes";
 import { reviewInput } from "~/review/review.server";
-import { leaderboards, promptResults, sessionPlayers } from "~/review/stats";
+import { leaderboards, promptResults, roundPlayers } from "~/review/stats";
 import { loadRoomState } from "./log.server";
 
 /**
@@ -14,7 +14,7 @@ export async function roundResults(db: Db, roomId: string) {
   const { state } = loaded;
   const removed = new Set(state.players.filter((p) => p.removed).map((p) => p.id));
   const input = await reviewInput(db, { roomId });
-  const boards = leaderboards(sessionPlayers({ ...input, players: input.players.filter((p) => !removed.has(p.id)) }, roomId));
+  const boards = leaderboards(roundPlayers({ ...input, players: input.players.filter((p) => !removed.has(p.id)) }, roomId));
   const shown = state.run ? state.run.index + 1 : 0;
   return {
     phase: state.phase,

@@ -7,6 +7,7 @@ import type { Db } from "~/db/client.server";
 import { rooms } from "~/db/schema";
 import { newRoomCode } from "~/game/roomCode";
 import { promptsFromPool, roomConfig, tunePrompts, type RoomConfig } from "~/game/roomConfig";
+import { UserError } from "~/lib/userError";
 import type { SpotMap } from "~/music/positions";
 import { classSpotMap } from "~/reading/spotMaps.server";
 import { applySpotMap, MODE_NAMES, parseReadingSet } from "~/reading/spec";
@@ -41,9 +42,9 @@ export function configFromSetup({ set: setup, spec, pool }: ParsedSetup, code: s
     teams: setup.mode === "teams" ? { count: setup.teams, balance: "points" as const } : null,
   };
   if (setup.mode === "tune-walk") {
-    if (!tune) throw new RangeError("That tune doesn't exist.");
+    if (!tune) throw new UserError("That tune doesn't exist.", "tuneId");
     const notes = barRange(tune, setup.fromBar ?? 1, setup.toBar ?? Infinity);
-    if (notes.length === 0) throw new RangeError(`Bars ${setup.fromBar ?? 1}–${setup.toBar ?? "end"} of “${tune.title}” have no notes.`);
+    if (notes.length === 0) throw new UserError(`Bars ${setup.fromBar ?? 1}–${setup.toBar ?? "end"} of “${tune.title}” have no notes.`, "fromBar");
     const prompts = tunePrompts({ ...spec, keyFifths: tune.keyFifths }, notes.map((n) => n.pitch));
     return roomConfig(spec, { ...settings, tuneName: tune.title }, applySpotMap(prompts, spotMap, spec.frets));
   }

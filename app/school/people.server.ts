@@ -24,7 +24,7 @@ import {
   users,
   userSessions,
 } from "~/db/schema";
-import { newRoomCode, normaliseRoomCode } from "~/game/roomCode";
+import { looksLikeRoomCode, newJoinCode, normaliseJoinCode } from "./joinCode";
 import { checkRosterRows, type CheckedRow, type RosterRow } from "./roster";
 import { createInvitation, revokeInvitations } from "./invitations.server";
 
@@ -182,12 +182,13 @@ export type JoinResult = { ok: true; className: string } | { ok: false; error: s
 
 /** A signed-in student joins a class of their own school by its join code. */
 export async function joinByCode(db: Db, user: SessionUser, typed: string): Promise<JoinResult> {
-  const code = normaliseRoomCode(typed);
+  const code = normaliseJoinCode(typed);
   if (!code) return { ok: false, error: "Enter the class join code your teacher gave you." };
   const [cls] = await db
     .select({ id: classes.id, name: classes.name })
     .from(classes)
     .where(and(eq(classes.joinCode, code), eq(classes.orgId, user.orgId)));
+  if (!cls && looksLikeRoomCode(typed)) return { ok: false, error: `${code} looks like the room code of a live round: open Join a round for that. A class join code looks like KMNP-3479.` };
   if (!cls) return { ok: false, error: `No class has the join code ${code}. Check it with your teacher.` };
   const added = await db
     .insert(memberships)
@@ -202,7 +203,7 @@ export async function joinByCode(db: Db, user: SessionUser, typed: string): Prom
 /** A fresh join code, checked against every class (codes are unique across schools). */
 async function freshJoinCode(db: Db) {
   for (;;) {
-    const code = newRoomCode();
+    const code = newJoinCode();
     const [taken] = await db.select({ id: classes.id }).from(classes).where(eq(classes.joinCode, code));
     if (!taken) return code;
   }

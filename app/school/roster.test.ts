@@ -60,20 +60,20 @@ describe("checkRosterRows", () => {
       ],
       ctx,
     );
-    expect(checked.map((r) => r.errors)).toEqual([
-      ["Missing name."],
-      ["That doesn't look like an e-mail address."],
-      ["Keep a name under 60 characters."],
+    expect(checked.map((r) => r.errors.map((e) => `${e.field}: ${e.message}`))).toEqual([
+      ["name: Missing name."],
+      ["email: That doesn't look like an e-mail address."],
+      ["name: Keep a name under 60 characters."],
       [],
-      ["Same name as line 5."],
-      ["Same e-mail as line 5."],
-      ["A student with this name is already in the class."],
-      ["A student with this e-mail is already in the class."],
-      ["Used by another account."],
-      ["Names can't contain text-direction control characters (U+202E)."],
-      ["Names can't contain invisible characters (U+200B)."],
-      ["Same name as line 8.", "A student with this name is already in the class."],
-      ["Same name as line 5."],
+      ["name: Same name as line 5."],
+      ["email: Same e-mail as line 5."],
+      ["name: A student with this name is already in the class."],
+      ["email: A student with this e-mail is already in the class."],
+      ["email: Used by another account."],
+      ["name: Names can't contain text-direction control characters (U+202E)."],
+      ["name: Names can't contain invisible characters (U+200B)."],
+      ["name: Same name as line 8.", "name: A student with this name is already in the class."],
+      ["name: Same name as line 5."],
     ]);
   });
 });

@@ -15,8 +15,14 @@ export interface RosterRow {
   email: string;
 }
 
+/** A problem with a row, on the column it is about (the single-student form shows it beside that field). */
+export interface RowProblem {
+  field: "name" | "email";
+  message: string;
+}
+
 export interface CheckedRow extends RosterRow {
-  errors: string[];
+  errors: RowProblem[];
 }
 
 /** Who is already in the class, and e-mails that belong to accounts this roster may not reuse. */
@@ -74,23 +80,24 @@ export function checkRosterRows(rows: readonly RosterRow[], ctx: RosterContext):
   const seenNames = new Map<string, number>();
   const seenEmails = new Map<string, number>();
   return rows.map((row) => {
-    const errors: string[] = [];
+    const errors: RowProblem[] = [];
+    const problem = (field: RowProblem["field"], message: string) => errors.push({ field, message });
     const clean = cleanName(row.name, { what: "a name", max: NAME_MAX, empty: "Missing name." });
     const name = clean.ok ? clean.name : row.name.normalize("NFC").trim().replace(/\s+/g, " ");
     const email = row.email.trim().toLowerCase();
-    if (!clean.ok) errors.push(clean.message);
+    if (!clean.ok) problem("name", clean.message);
     if (email) {
       const check = emailSchema.safeParse(email);
-      if (!check.success) errors.push(check.error.issues[0]?.message ?? "Bad e-mail address.");
+      if (!check.success) problem("email", check.error.issues[0]?.message ?? "Bad e-mail address.");
     }
     const key = skeleton(name);
     const where = (line: number) => (line > 0 ? `line ${line}` : "an earlier row");
-    if (name && seenNames.has(key)) errors.push(`Same name as ${where(seenNames.get(key)!)}.`);
-    if (email && seenEmails.has(email)) errors.push(`Same e-mail as ${where(seenEmails.get(email)!)}.`);
-    if (name && classNames.has(key)) errors.push("A student with this name is already in the class.");
-    else if (email && classEmails.has(email)) errors.push("A student with this e-mail is already in the class.");
+    if (name && seenNames.has(key)) problem("name", `Same name as ${where(seenNames.get(key)!)}.`);
+    if (email && seenEmails.has(email)) problem("email", `Same e-mail as ${where(seenEmails.get(email)!)}.`);
+    if (name && classNames.has(key)) problem("name", "A student with this name is already in the class.");
+    else if (email && classEmails.has(email)) problem("email", "A student with this e-mail is already in the class.");
     const blocked = email ? ctx.blockedEmails?.get(email) : undefined;
-    if (blocked) errors.push(blocked);
+    if (blocked) problem("email", blocked);
     if (name && !seenNames.has(key)) seenNames.set(key, row.line);
     if (email && !seenEmails.has(email)) seenEmails.set(email, row.line);
     return { line: row.line, name, email, errors };

@@ -1,6 +1,6 @@
 import { expect, shot, signIn, test } from "./fixtures";
 
-test("a teacher reads the class review, picks one session and opens a student's progress", async ({ page }) => {
+test("a teacher reads the class review, picks one round and opens a student's progress", async ({ page }) => {
   await signIn(page, "rafe@larkspur.example");
   await expect(page).toHaveURL(/\/teach$/);
   await page.goto("/teach/classes/demo-class-thu/review");
@@ -12,12 +12,35 @@ test("a teacher reads the class review, picks one session and opens a student's 
   // The heatmap is drawn on staves (engraved) and on the fretboard, with words beside it.
   await expect(page.locator("figure[role=img] svg").first()).toBeVisible();
   await expect(page.getByRole("img", { name: /Note heatmap on the fretboard/ })).toBeVisible();
-  await expect(page.getByRole("table", { name: /Every student/ })).toBeVisible();
+  const everyone = page.getByRole("table", { name: /Every student/ });
+  await expect(everyone).toBeVisible();
   await shot(page, "class-review");
 
-  await page.getByLabel("Session").selectOption({ index: 1 });
-  await expect(page).toHaveURL(/session=demo-round-thu-5/);
-  await expect(page.getByRole("link", { name: /Export CSV \(this session\)/ })).toBeVisible();
+  // Every student pages in the browser…
+  const boards = page.locator("section", { has: page.getByRole("heading", { name: "Leaderboards" }) });
+  await boards.getByLabel("Rows per page").selectOption("5");
+  await expect(everyone.getByRole("rowheader")).toHaveCount(5);
+  await page.getByRole("navigation", { name: "Every student: pages" }).getByRole("button", { name: "Next" }).click();
+  await expect(page.getByRole("navigation", { name: "Every student: pages" })).toContainText("Page 2 of 2");
+  await everyone.getByRole("button", { name: /^Student/ }).click();
+  await expect(everyone.getByRole("columnheader", { name: /^Student/ })).toHaveAttribute("aria-sort", "ascending");
+
+  // …the rounds are sorted and filtered by the server, through links and a form.
+  const rounds = page.getByRole("table", { name: /Rounds of this class/ });
+  await expect(rounds.getByRole("rowheader")).toHaveCount(5);
+  await rounds.getByRole("columnheader", { name: /^Answers/ }).getByRole("link").click();
+  await expect(page).toHaveURL(/sort=answers&dir=asc/);
+  await expect(rounds.getByRole("columnheader", { name: /^Answers/ })).toHaveAttribute("aria-sort", "ascending");
+  const answerCounts = (await rounds.locator("tbody tr td:nth-child(4)").allTextContents()).map(Number);
+  expect(answerCounts).toEqual([...answerCounts].sort((a, b) => a - b));
+  await page.getByPlaceholder("Filter rounds by title").fill("no such round");
+  await page.getByRole("button", { name: "Show" }).click();
+  await expect(rounds).toContainText("No rows match “no such round”.");
+  await page.goto("/teach/classes/demo-class-thu/review");
+
+  await page.getByRole("combobox", { name: /^Round/ }).selectOption({ index: 1 });
+  await expect(page).toHaveURL(/round=demo-round-thu-5/);
+  await expect(page.getByRole("link", { name: /Export CSV \(this round\)/ })).toBeVisible();
 
   const download = page.waitForEvent("download");
   await page.getByRole("link", { name: /Export CSV/ }).click();
@@ -25,7 +48,7 @@ test("a teacher reads the class review, picks one session and opens a student's 
 
   await page.getByRole("table", { name: /Every student/ }).getByRole("link").first().click();
   await expect(page.getByRole("heading", { name: "Personal bests" })).toBeVisible();
-  await expect(page.getByText("Accuracy per session")).toBeVisible();
+  await expect(page.getByText("Accuracy per round")).toBeVisible();
   await expect(page.locator(".recharts-line").first()).toBeVisible();
   await shot(page, "student-progress");
 });

@@ -40,5 +40,12 @@ test("a teacher imports a roster CSV: sees the row errors, confirms, and finds t
   await page.getByPlaceholder("Filter students").fill("");
   await roster.getByRole("button", { name: /^Name/ }).click();
   await expect(roster.getByRole("columnheader", { name: /^Name/ })).toHaveAttribute("aria-sort", "descending");
+  // …and pages: ten students, five to a page.
+  await page.getByLabel("Rows per page").selectOption("5");
+  await expect(roster.getByRole("rowheader")).toHaveCount(5);
+  await expect(roster.getByRole("rowheader").first()).toHaveText("Uma C.");
+  await page.getByRole("button", { name: "Next" }).click();
+  await expect(page.getByText("Page 2 of 2")).toBeVisible();
+  await expect(roster.getByRole("rowheader")).toHaveCount(5);
   await shot(page, "roster-after-import");
 });

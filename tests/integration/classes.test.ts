@@ -283,6 +283,14 @@ describe("invitations through the captured e-mail", () => {
     expect(await html(await student.post("/me/join-class", { code: "sat-yth" }))).toContain("You've joined Saturday Youth Guitar.");
     expect(await html(await student.post("/me/join-class", { code: "SATYTH" }))).toContain("You're already in Saturday Youth Guitar.");
   });
+
+  it("gives a new class a join code that cannot be taken for a room code, found however it is typed", async () => {
+    const { joinCode } = await createClass(db(), DEMO_SCHOOL.id, "Join Code Class", RAFE.id);
+    expect(joinCode).toMatch(/^[A-Z]{4}-[0-9]{4}$/);
+    const student = await signIn(DEMO_SCHOOL.studentWithSignIn.email);
+    expect(await html(await student.post("/me/join-class", { code: joinCode.replace("-", " ").toLowerCase() }))).toContain("You've joined Join Code Class.");
+    expect(await html(await student.post("/me/join-class", { code: "kmn prt" }))).toContain("KMNPRT looks like the room code of a live round");
+  });
 });
 
 describe("API with a personal token", () => {

@@ -2,7 +2,7 @@ import Papa from "papaparse";
 import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createApiToken } from "~/auth/tokens.server";
-import { answers, roomPlayers, rooms } from "~/db/schema";
+import { answers, classes, memberships, roomPlayers, rooms } from "~/db/schema";
 import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
 import { seedDemo } from "../../server/seed";
 import { Client, startTestServer, type TestServer } from "./harness";
@@ -41,19 +41,19 @@ describe("class review: route × role → status", () => {
   const api = { ...page, anonymous: 401 };
   const table: [string, Record<Who, number>][] = [
     ["/teach/classes/demo-class-tue/review", page],
-    ["/teach/classes/demo-class-tue/review?session=demo-round-tue-2", page],
+    ["/teach/classes/demo-class-tue/review?round=demo-round-tue-2", page],
     ["/teach/classes/demo-class-tue/students/demo-student-1", page],
     ["/teach/classes/demo-class-tue/export.csv", page],
-    ["/teach/classes/demo-class-tue/export.csv?session=demo-round-tue-1", page],
+    ["/teach/classes/demo-class-tue/export.csv?round=demo-round-tue-1", page],
     ["/api/v1/classes/demo-class-tue/results", api],
     ["/api/v1/rounds/demo-round-tue-1/results", api],
     ["/teach/classes/demo-class-sat/review", { ...page, rafe: 403, saoirse: 200 }],
     ["/api/v1/rounds/demo-round-sat-1/results", { ...api, rafe: 403, saoirse: 200 }],
     // Wrong pairings are 404s, not other classes' data.
-    ["/teach/classes/demo-class-tue/review?session=demo-round-sat-1", { ...page, rafe: 404, admin: 404 }],
+    ["/teach/classes/demo-class-tue/review?round=demo-round-sat-1", { ...page, rafe: 404, admin: 404 }],
     ["/teach/classes/demo-class-tue/students/demo-student-17", { ...page, rafe: 404, admin: 404 }],
     ["/teach/classes/no-such-class/review", { ...page, rafe: 404, saoirse: 404, admin: 404 }],
-    ["/teach/classes/demo-class-tue/review/live?session=demo-round-sat-1", { ...page, rafe: 403, admin: 404 }],
+    ["/teach/classes/demo-class-tue/review/live?round=demo-round-sat-1", { ...page, rafe: 403, admin: 404 }],
   ];
   for (const [path, expected] of table) {
     for (const who of Object.keys(roles) as Who[]) {
@@ -69,7 +69,7 @@ describe("class review: route × role → status", () => {
 describe("class review pages", () => {
   it("shows leaderboards, notes to reteach, the note heatmap and mistake shares from the demo history", async () => {
     const html = await (await clients.rafe!.get("/teach/classes/demo-class-thu/review")).text();
-    for (const words of ["Leaderboards", "Longest streak", "Most improved since the previous session", "Notes to reteach", "Note heatmap", "What the answers were"]) expect(html).toContain(words);
+    for (const words of ["Leaderboards", "Longest streak", "Most improved since the previous round", "Notes to reteach", "Note heatmap", "What the answers were"]) expect(html).toContain(words);
     // Thursday reads in G major and two students keep missing the F♯.
     expect(html).toMatch(/F♯\d[\s\S]{0,400}not read yet/);
   });
@@ -77,16 +77,58 @@ describe("class review pages", () => {
   it("shows a student's progress and personal bests", async () => {
     const html = await (await clients.rafe!.get("/teach/classes/demo-class-tue/students/demo-student-2")).text();
     expect(html).toContain("Personal bests");
-    expect(html).toContain("Accuracy per session");
+    expect(html).toContain("Accuracy per round");
+  });
+});
+
+describe("the rounds table, paged on the server", () => {
+  const classId = "paging-class";
+  beforeAll(async () => {
+    const { db } = server.services;
+    await db.insert(classes).values({ id: classId, orgId: DEMO_SCHOOL.id, name: "Many Rounds", joinCode: "PAGE-3479" });
+    await db.insert(memberships).values({ classId, userId: DEMO_SCHOOL.teachers[0].id, role: "teacher" });
+    for (let i = 1; i <= 12; i++) {
+      const room = await openTestRoom(db, { prompts: 1 });
+      const title = `Drill ${String(i).padStart(2, "0")}`;
+      await db.update(rooms).set({ classId, title, endedAt: new Date(), createdAt: new Date(Date.UTC(2026, 0, i)) }).where(eq(rooms.id, room.id));
+    }
+  });
+
+  /** The titles in the rounds table (the round picker above it lists every round). */
+  const titles = async (query: string) => {
+    const html = await (await clients.rafe!.get(`/teach/classes/${classId}/review${query}`)).text();
+    const table = html.split("<table").find((t) => t.includes("Rounds of this class"))!.split("</table>")[0]!;
+    return { titles: [...table.matchAll(/review\?round=[^"]*"[^>]*>(Drill \d\d)</g)].map((m) => m[1]), html };
+  };
+
+  it("shows the newest page first and moves by plain links", async () => {
+    const first = await titles("");
+    expect(first.titles).toEqual(["Drill 12", "Drill 11", "Drill 10", "Drill 09", "Drill 08", "Drill 07", "Drill 06", "Drill 05", "Drill 04", "Drill 03"]);
+    expect(first.html).toContain("Rows 1–10 of 12");
+    expect(first.html).toContain(`href="/teach/classes/${classId}/review?page=2"`);
+    expect(first.html).toContain(`href="/teach/classes/${classId}/review?sort=title&amp;dir=asc"`);
+    const second = await titles("?page=2");
+    expect(second.titles).toEqual(["Drill 02", "Drill 01"]);
+    expect(second.html).toContain("Rows 11–12 of 12");
+  });
+
+  it("sorts, sizes and filters in SQL", async () => {
+    expect((await titles("?sort=title&dir=asc&size=5")).titles).toEqual(["Drill 01", "Drill 02", "Drill 03", "Drill 04", "Drill 05"]);
+    const filtered = await titles("?q=drill%201&sort=title&dir=desc");
+    expect(filtered.titles).toEqual(["Drill 12", "Drill 11", "Drill 10"]);
+    expect((await titles("?q=50%25")).titles).toEqual([]);
+    // A page past the end shows the last page; a bad parameter falls back to the default.
+    expect((await titles("?page=9&size=10")).titles).toEqual(["Drill 02", "Drill 01"]);
+    expect((await titles("?sort=secret&size=7")).titles).toHaveLength(10);
   });
 });
 
 describe("JSON API", () => {
-  it("lists a class's sessions with summaries, with a session cookie or a Bearer token", async () => {
+  it("lists a class's rounds with summaries, with a session cookie or a Bearer token", async () => {
     const body = await (await clients.rafe!.get("/api/v1/classes/demo-class-tue/results")).json();
     expect(body.class).toEqual({ id: "demo-class-tue", name: "Tuesday Beginners" });
-    expect(body.sessions).toHaveLength(5);
-    expect(body.sessions[0].players[0]).toMatchObject({ userId: expect.stringMatching(/^demo-student-/), points: expect.any(Number), accuracy: expect.any(Number), longestStreak: expect.any(Number) });
+    expect(body.rounds).toHaveLength(5);
+    expect(body.rounds[0].players[0]).toMatchObject({ userId: expect.stringMatching(/^demo-student-/), points: expect.any(Number), accuracy: expect.any(Number), longestStreak: expect.any(Number) });
     const { token } = await createApiToken(server.services.db, DEMO_SCHOOL.teachers[0].id, "gradebook");
     const viaToken = await fetch(new URL("/api/v1/rounds/demo-round-tue-1/results", server.url), { headers: { Authorization: `Bearer ${token}` } });
     expect(viaToken.status).toBe(200);
@@ -99,7 +141,7 @@ describe("JSON API", () => {
 });
 
 describe("CSV export", () => {
-  it("downloads one row per student per session, with formula-like names neutralised", async () => {
+  it("downloads one row per student per round, with formula-like names neutralised", async () => {
     const { db } = server.services;
     const room = await openTestRoom(db);
     await db.update(rooms).set({ classId: "demo-class-tue", endedAt: new Date() }).where(eq(rooms.id, room.id));
@@ -107,11 +149,11 @@ describe("CSV export", () => {
     const note = room.config.prompts[0]!;
     await db.insert(answers).values({ roomId: room.id, playerId: `${room.id}-evil`, promptIndex: 0, written: note.written, writtenMidi: note.writtenMidi, string: note.home.string, fret: note.home.fret, kind: "home-spot", pitchRight: true, verdict: "right", points: 900, reactionMs: 1200, streak: 1, at: Date.now() });
 
-    const res = await clients.rafe!.get(`/teach/classes/demo-class-tue/export.csv?session=${room.id}`);
+    const res = await clients.rafe!.get(`/teach/classes/demo-class-tue/export.csv?round=${room.id}`);
     expect(res.headers.get("content-type")).toMatch(/^text\/csv/);
     expect(res.headers.get("content-disposition")).toMatch(/attachment; filename="fretcall-Tuesday-Beginners-\d{4}-\d{2}-\d{2}\.csv"/);
     const rows = Papa.parse<string[]>(await res.text(), { skipEmptyLines: true }).data;
-    expect(rows[0]).toEqual(["class", "session", "date", "student", "account", "points", "answers", "correct", "accuracy %", "median time s", "longest streak"]);
+    expect(rows[0]).toEqual(["class", "round", "date", "student", "account", "points", "answers", "correct", "accuracy %", "median time s", "longest streak"]);
     expect(rows[1]).toEqual(["Tuesday Beginners", "Test round", expect.any(String), "'=HYPERLINK(\"http://evil.example\")", "nickname only", "900", "1", "1", "100", "1.2", "1"]);
 
     const all = Papa.parse<string[]>(await (await clients.rafe!.get("/teach/classes/demo-class-tue/export.csv")).text(), { skipEmptyLines: true }).data;
@@ -140,7 +182,7 @@ describe("live review", () => {
     const { db } = server.services;
     const room = await openTestRoom(db);
     await db.update(rooms).set({ classId: "demo-class-tue" }).where(eq(rooms.id, room.id));
-    const res = await clients.rafe!.get(`/teach/classes/demo-class-tue/review/live?session=${room.id}`);
+    const res = await clients.rafe!.get(`/teach/classes/demo-class-tue/review/live?round=${room.id}`);
     expect(res.status).toBe(200);
     expect(res.headers.get("content-type")).toMatch(/^text\/event-stream/);
     const body = res.body!;

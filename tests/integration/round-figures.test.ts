@@ -91,9 +91,9 @@ describe("one round, four reports", () => {
     const teacher = new Client(server.url);
     expect((await teacher.post("/signin", { email: DEMO_SCHOOL.teachers[0].email, password: DEMO_PASSWORD })).status).toBe(302);
     const resultsPage = wordsOf(await (await teacher.get(`/results/${room.id}`)).text());
-    const reviewPage = wordsOf(await (await teacher.get(`/teach/classes/${CLASS}/review?session=${room.id}`)).text());
+    const reviewPage = wordsOf(await (await teacher.get(`/teach/classes/${CLASS}/review?round=${room.id}`)).text());
     const api = (await (await teacher.get(`/api/v1/rounds/${room.id}/results`)).json()) as { players: { nickname: string; points: number; answered: number; correct: number; accuracy: number; medianMs: number | null; longestStreak: number }[] };
-    const csv = Papa.parse<string[]>(await (await teacher.get(`/teach/classes/${CLASS}/export.csv?session=${room.id}`)).text(), { skipEmptyLines: true }).data;
+    const csv = Papa.parse<string[]>(await (await teacher.get(`/teach/classes/${CLASS}/export.csv?round=${room.id}`)).text(), { skipEmptyLines: true }).data;
 
     for (const nick of Object.keys(plan)) {
       const stageSaid = ended.summaries.find((s: Summary) => s.nickname === nick)!;

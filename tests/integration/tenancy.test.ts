@@ -104,6 +104,7 @@ async function accept(to: string) {
   return { client, path };
 }
 
+/** Starts a studio as its admin would: the form, then the link mailed to confirm it. */
 async function signUp(studio: string, person: { name: string; email: string }) {
   return startStudio(server, { studioName: studio, displayName: person.name, email: person.email, password: PASSWORD });
 }
@@ -233,7 +234,7 @@ const MATRIX: Record<string, () => { path: string; expect: Statuses }> = {
   "teach/sets": () => ({ path: "/teach/sets", expect: staffPage() }),
   "teach/sets/:id": () => ({ path: `/teach/sets/${ids.set}`, expect: classPage() }),
   "teach/classes/:classId/review": () => ({ path: `/teach/classes/${ids.class1}/review`, expect: classPage() }),
-  "teach/classes/:classId/review/live": () => ({ path: `/teach/classes/${ids.class1}/review/live?session=${ids.playedRoom}`, expect: classPage() }),
+  "teach/classes/:classId/review/live": () => ({ path: `/teach/classes/${ids.class1}/review/live?round=${ids.playedRoom}`, expect: classPage() }),
   "teach/classes/:classId/students/:userId": () => ({ path: `/teach/classes/${ids.class1}/students/${ids.sIn}`, expect: classPage() }),
   "teach/classes/:classId/export.csv": () => ({ path: `/teach/classes/${ids.class1}/export.csv`, expect: classPage() }),
   "teach/classes/:classId/assignments": () => ({ path: `/teach/classes/${ids.class1}/assignments`, expect: classPage() }),

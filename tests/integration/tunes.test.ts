@@ -180,4 +180,13 @@ describe("a Tune walk over an uploaded tune's bars", () => {
     expect(config.prompts.map((p) => p.written)).toEqual(["F#5", "E3"]);
     expect(config.tuneName).toBe("Walk test");
   });
+
+  it("shows bars with no notes as a message on the form and opens nothing", async () => {
+    const saved = await upload(teacher, "empty-bars.musicxml", SCORE, "Empty bars test");
+    const tuneId = saved.headers.get("location")!.split("/").pop()!;
+    const setup = { intent: "quick", mode: "tune-walk", position: "1", tuning: "standard", frets: "15", keyFifths: "1", accidentals: "key", prompts: "12", seconds: "10", teams: "2", classId: "" };
+    const res = await teacher.post("/host", { ...setup, tuneId, fromBar: "40", toBar: "41" });
+    expect(res.status).toBe(200);
+    expect(await res.text()).toMatch(/From bar[\s\S]{0,600}Bars 40–41 of “Empty bars test” have no notes\./);
+  });
 });

@@ -2,7 +2,7 @@
 import { requireClassTeacher } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
-import { apiSessions } from "~/review/api";
+import { apiRounds } from "~/review/api";
 import { reviewInput } from "~/review/review.server";
 import type { Route } from "./+types/class-results";
 
@@ -11,5 +11,5 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const { db } = services(context);
   const cls = await requireClassTeacher(db, user, params.classId);
   const input = await reviewInput(db, { classId: cls.id });
-  return Response.json({ class: { id: cls.id, name: cls.name }, sessions: apiSessions(input) }, { headers: { "Cache-Control": "private, no-store" } });
+  return Response.json({ class: { id: cls.id, name: cls.name }, rounds: apiRounds(input) }, { headers: { "Cache-Control": "private, no-store" } });
 }

@@ -5,7 +5,7 @@ import { requireStudentReader } from "~/auth/access.server";
 import { requireUser } from "~/auth/guards.server";
 import { services } from "~/context";
 import { practiceRows, recordPracticeAnswers } from "~/practice/answers.server";
-import { noStore, readJsonBody } from "~/practice/json.server";
+import { noStore, readJsonBody } from "~/lib/json.server";
 import type { Route } from "./+types/practice-answers";
 
 export async function loader({ request, context }: Route.LoaderArgs) {

@@ -2,7 +2,7 @@
 //      scored on the server. GET /api/v1/practice/rhythm[?tune=<id>] — your own passes, newest first.
 import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
-import { noStore, readJsonBody } from "~/practice/json.server";
+import { noStore, readJsonBody } from "~/lib/json.server";
 import { recordRhythmPass, rhythmPasses } from "~/practice/rhythmPass.server";
 import type { Route } from "./+types/practice-rhythm";
 

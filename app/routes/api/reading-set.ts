@@ -4,14 +4,14 @@ import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
 import { readingPreset } from "~/reading/presets";
 import { setFor } from "~/reading/sets.server";
-import { summarise } from "~/reading/spec";
+import { describeReadingSet } from "~/reading/spec";
 import type { Route } from "./+types/reading-set";
 
 export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const headers = { "Cache-Control": "private, no-store" };
   const preset = readingPreset(params.id);
-  if (preset) return Response.json({ kind: "ready-made", ...preset, summary: summarise(preset.spec) }, { headers });
+  if (preset) return Response.json({ kind: "ready-made", ...preset, summary: describeReadingSet(preset.spec) }, { headers });
   const { db } = services(context);
   await requireReadingSet(db, user, params.id, "see");
   const set = await setFor(db, user, params.id);

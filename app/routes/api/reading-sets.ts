@@ -3,7 +3,7 @@ import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
 import { READING_PRESETS } from "~/reading/presets";
 import { setsFor } from "~/reading/sets.server";
-import { summarise } from "~/reading/spec";
+import { describeReadingSet } from "~/reading/spec";
 import type { Route } from "./+types/reading-sets";
 
 export async function loader({ request, context }: Route.LoaderArgs) {
@@ -12,7 +12,7 @@ export async function loader({ request, context }: Route.LoaderArgs) {
   return Response.json(
     {
       sets: sets.map((s) => ({ kind: "saved", ...s })),
-      presets: READING_PRESETS.map((p) => ({ kind: "ready-made", ...p, summary: summarise(p.spec) })),
+      presets: READING_PRESETS.map((p) => ({ kind: "ready-made", ...p, summary: describeReadingSet(p.spec) })),
     },
     { headers: { "Cache-Control": "private, no-store" } },
   );

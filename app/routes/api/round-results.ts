@@ -4,7 +4,7 @@ import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
 import { reviewInput } from "~/review/review.server";
 import { noteHeatmap } from "~/review/stats";
-import { apiSessions } from "~/review/api";
+import { apiRounds } from "~/review/api";
 import type { Route } from "./+types/round-results";
 
 export async function loader({ request, params, context }: Route.LoaderArgs) {
@@ -12,9 +12,9 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const { db } = services(context);
   const room = await requireRound(db, user, params.roomId);
   const input = await reviewInput(db, { roomId: room.id });
-  const [session] = apiSessions(input);
+  const [round] = apiRounds(input);
   return Response.json(
-    { ...session!, classId: room.classId, mode: room.mode, notes: noteHeatmap(input) },
+    { ...round!, classId: room.classId, mode: room.mode, notes: noteHeatmap(input) },
     { headers: { "Cache-Control": "private, no-store" } },
   );
 }

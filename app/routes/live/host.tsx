@@ -1,18 +1,19 @@
 import { useState } from "react";
 import { Form, Link, redirect, useNavigation, useSearchParams } from "react-router";
+import { z } from "zod";
 import { mayFileUnderClass, requireReadingSet, requireRound } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { Button, buttonClass, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
-import { RoomConfigError } from "~/game/roomConfig";
+import { parseForm } from "~/lib/forms";
+import { formErrors } from "~/lib/userError";
 import { KEYS } from "~/music/keys";
-import { MusicError } from "~/music/pitch";
 import { TUNINGS } from "~/music/tuning";
 import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
 import { READING_PRESETS } from "~/reading/presets";
 import { hostableSet, setsFor } from "~/reading/sets.server";
-import { parseReadingSet, summarise } from "~/reading/spec";
+import { describeReadingSet, parseReadingSet } from "~/reading/spec";
 import { createRoom, roomSetup, type RoomSource } from "~/rooms/rooms.server";
 import { QUICK_DEFAULTS, quickSetupSchema, setupFromSet, type ParsedSetup } from "~/rooms/setup";
 import { classesFor } from "~/school/classes.server";
@@ -27,7 +28,7 @@ export async function loader({ request, context }: Route.LoaderArgs) {
   const [classList, saved, tuneList] = await Promise.all([classesFor(db, user), setsFor(db, user), tunesFor(db, user.orgId)]);
   const params = new URL(request.url).searchParams;
   const classId = params.get("class");
-  const presets = READING_PRESETS.map((p) => ({ id: p.id, name: p.name, note: `Ready-made · step ${p.step}`, summary: summarise(p.spec), classId: null }));
+  const presets = READING_PRESETS.map((p) => ({ id: p.id, name: p.name, note: `Ready-made · step ${p.step}`, summary: describeReadingSet(p.spec), classId: null }));
   const own = saved.filter((s) => s.spec).map((s) => ({ id: s.id, name: s.name, note: s.className ?? "Whole school", summary: s.summary, classId: s.classId }));
   return {
     classes: classList.map((c) => ({ id: c.id, name: c.name })),
@@ -50,28 +51,35 @@ async function open(db: Db, user: SessionUser, setup: ParsedSetup, source?: Room
     const room = await createRoom(db, user, setup, source);
     return redirect(`/stage/${room.id}`);
   } catch (error) {
-    if (error instanceof RoomConfigError || error instanceof MusicError || error instanceof RangeError) {
-      return { errors: { form: error.message } as Errors };
-    }
-    throw error;
+    return { errors: formErrors(error) as Errors };
   }
 }
+
+const actionSchema = z.discriminatedUnion("intent", [
+  z.object({ intent: z.literal("set"), set: z.string().max(200).default("") }),
+  z.object({ intent: z.literal("again"), roomId: z.string().max(64).default("") }),
+  // The quick set-up's own fields are checked by quickSetupSchema below.
+  z.object({ intent: z.literal("quick") }),
+]);
 
 export async function action({ request, context }: Route.ActionArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
   const form = await request.formData();
-  const intent = form.get("intent");
+  // The quick set-up is the page's main form: a post without an intent is that one.
+  if (!form.has("intent")) form.set("intent", "quick");
+  const intent = parseForm(actionSchema, form);
+  if (!intent.ok) return { errors: { form: "Unknown action." } as Errors };
+  const input = intent.data;
   const classId = String(form.get("classId") ?? "") || undefined;
-  if (intent === "set") {
-    const setId = String(form.get("set") ?? "");
-    await requireReadingSet(db, user, setId, "see");
-    const chosen = await hostableSet(db, user, setId);
+  if (input.intent === "set") {
+    await requireReadingSet(db, user, input.set, "see");
+    const chosen = await hostableSet(db, user, input.set);
     if (!chosen) return { errors: { set: "That reading set doesn't exist or needs an edit first." } as Errors };
     return open(db, user, setupFromSet(chosen.reading, classId), chosen.source);
   }
-  if (intent === "again") {
-    const room = await requireRound(db, user, String(form.get("roomId") ?? ""));
+  if (input.intent === "again") {
+    const room = await requireRound(db, user, input.roomId);
     const again = roomSetup(room);
     if (!again) return { errors: { form: "This round was hosted before its settings were kept; set it up again below." } as Errors };
     return open(db, user, again.setup, again.source);
@@ -153,6 +161,7 @@ export default function Host({ loaderData, actionData }: Route.ComponentProps) {
       </section>
       <h2 className="font-display text-2xl font-semibold">Or a quick setup for a one-off</h2>
       <Form method="post" className="space-y-6" noValidate>
+        <input type="hidden" name="intent" value="quick" />
         <input type="hidden" name="classId" value={classId} />
         {errors.pool ? <Notice tone="error">{errors.pool}</Notice> : null}
         <fieldset>

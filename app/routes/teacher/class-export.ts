@@ -1,11 +1,11 @@
-// GET /teach/classes/:classId/export.csv[?session=<roomId>] — results for a gradebook.
+// GET /teach/classes/:classId/export.csv[?round=<roomId>] — results for a gradebook.
 import { data } from "react-router";
 import { requireClassTeacher } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
 import { gradebookRows, toCsv } from "~/review/csv";
 import { reviewInput } from "~/review/review.server";
-import { sessionPlayers } from "~/review/stats";
+import { roundPlayers } from "~/review/stats";
 import type { Route } from "./+types/class-export";
 
 export async function loader({ request, params, context }: Route.LoaderArgs) {
@@ -13,11 +13,11 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const { db } = services(context);
   const cls = await requireClassTeacher(db, user, params.classId);
   const input = await reviewInput(db, { classId: cls.id });
-  const only = new URL(request.url).searchParams.get("session");
-  const sessions = input.sessions.filter((s) => only === null || s.id === only).sort((a, b) => a.startedAt - b.startedAt);
-  if (only !== null && sessions.length === 0) throw data({ error: "No such round in this class." }, { status: 404 });
-  const rows = sessions.flatMap((s) => gradebookRows(cls.name, s, sessionPlayers(input, s.id)));
-  const name = `${cls.name}${only ? `-${new Date(sessions[0]!.startedAt).toISOString().slice(0, 10)}` : ""}`.replace(/[^\w-]+/g, "-");
+  const only = new URL(request.url).searchParams.get("round");
+  const rounds = input.rounds.filter((s) => only === null || s.id === only).sort((a, b) => a.startedAt - b.startedAt);
+  if (only !== null && rounds.length === 0) throw data({ error: "No such round in this class." }, { status: 404 });
+  const rows = rounds.flatMap((s) => gradebookRows(cls.name, s, roundPlayers(input, s.id)));
+  const name = `${cls.name}${only ? `-${new Date(rounds[0]!.startedAt).toISOString().slice(0, 10)}` : ""}`.replace(/[^\w-]+/g, "-");
   return new Response(toCsv(rows), {
     headers: {
       "Content-Type": "text/csv; charset=utf-8",

@@ -1,4 +1,4 @@
-// GET /teach/classes/:classId/review/live?session=<roomId> — server-sent events while a round runs:
+// GET /teach/classes/:classId/review/live?round=<roomId> — server-sent events while a round runs:
 // "answers" (the new count) whenever answers were added, "ended" once the round is over.
 import { data } from "react-router";
 import { eventStream } from "remix-utils/sse/server";
@@ -16,7 +16,7 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
   await requireClassTeacher(db, user, params.classId);
-  const roomId = new URL(request.url).searchParams.get("session") ?? "";
+  const roomId = new URL(request.url).searchParams.get("round") ?? "";
   const room = await requireRound(db, user, roomId);
   if (room.classId !== params.classId) throw data({ error: "No such round." }, { status: 404 });
 

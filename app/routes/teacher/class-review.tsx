@@ -1,16 +1,18 @@
-// The class review: across every session of a class, or one session picked from the list.
+// The class review: across every round of a class, or one round picked from the list.
 import { useEffect } from "react";
 import { data, Form, Link, useRevalidator, useSubmit } from "react-router";
 import { useEventSource } from "remix-utils/sse/react";
 import { requireClassTeacher } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { DataTable, type Column } from "~/components/DataTable";
+import { readTableQuery } from "~/components/dataTable";
 import { Badge, buttonClass, Card, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
 import { MISTAKE_LABELS } from "~/music/mistakes";
 import { change, day, noteName, pct, secs } from "~/review/format";
 import { HeatmapFretboard, HeatmapStaves, MistakeChart } from "~/review/ReviewParts";
 import { reviewInput } from "~/review/review.server";
+import { ROUND_SORT_KEYS, roundsPage, type RoundRow } from "~/review/rounds.server";
 import { classReview, MIN_RANKED, RETEACH_ACCURACY_BAR, RETEACH_MIN_SAMPLE, type PlayerFigures } from "~/review/stats";
 import type { Route } from "./+types/class-review";
 
@@ -21,20 +23,45 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const { db } = services(context);
   const cls = await requireClassTeacher(db, user, params.classId);
   const input = await reviewInput(db, { classId: cls.id });
-  const sessionId = new URL(request.url).searchParams.get("session") || null;
-  const chosen = sessionId === null ? undefined : input.sessions.find((s) => s.id === sessionId);
-  if (sessionId !== null && !chosen) throw data({ error: "That session is not one of this class's rounds." }, { status: 404 });
-  const latest = [...input.sessions].sort((a, b) => b.startedAt - a.startedAt)[0];
+  const search = new URL(request.url).searchParams;
+  const roundId = search.get("round") || null;
+  const chosen = roundId === null ? undefined : input.rounds.find((s) => s.id === roundId);
+  if (roundId !== null && !chosen) throw data({ error: "That round is not one of this class's." }, { status: 404 });
+  const latest = [...input.rounds].sort((a, b) => b.startedAt - a.startedAt)[0];
   const neck = chosen ?? latest;
-  const live = (chosen ? [chosen] : input.sessions).find((s) => s.live)?.id ?? null;
-  return { cls, review: classReview(input, sessionId), neck: neck && { tuning: neck.tuning, frets: neck.frets, position: neck.position }, live };
+  const live = (chosen ? [chosen] : input.rounds).find((s) => s.live)?.id ?? null;
+  const review = classReview(input, roundId);
+  const roundsQuery = readTableQuery(search, ROUND_SORT_KEYS, { key: "startedAt", direction: "desc" });
+  const page = await roundsPage(db, cls.id, roundsQuery);
+  const accuracy = new Map(review.rounds.map((r) => [r.id, r.accuracy]));
+  const roundRows = page.rows.map((r) => ({ ...r, accuracy: r.answers > 0 ? (accuracy.get(r.id) ?? null) : null }));
+  return { cls, review, neck: neck && { tuning: neck.tuning, frets: neck.frets, position: neck.position }, live, roundRows, roundsPaging: { query: roundsQuery, total: page.total } };
 }
 
 type Row = PlayerFigures;
+type RoundLine = RoundRow & { accuracy: number | null };
 
-export default function ClassReview({ loaderData: { cls, review, neck, live } }: Route.ComponentProps) {
+const roundColumns: Column<RoundLine>[] = [
+  {
+    key: "title",
+    header: "Round",
+    cell: (r) => (
+      <span className="inline-flex flex-wrap items-center gap-2">
+        <Link className="underline" to={`?round=${r.id}`}>{r.title}</Link>
+        {r.live ? <Badge tone="info">live</Badge> : null}
+      </span>
+    ),
+  },
+  { key: "startedAt", header: "Date", cell: (r) => day(r.startedAt) },
+  { key: "players", header: "Players", align: "right" },
+  { key: "answers", header: "Answers", align: "right" },
+  { key: "accuracy", header: "Accuracy", align: "right", sortable: false, cell: (r) => (r.accuracy === null ? "—" : pct(r.accuracy)) },
+  { key: "results", header: "Results", sortable: false, cell: (r) => <Link className="underline" to={`/results/${r.id}`}>Results<span className="sr-only"> of {r.title}</span></Link> },
+];
+
+export default function ClassReview({ loaderData: { cls, review, neck, live, roundRows, roundsPaging } }: Route.ComponentProps) {
   const submit = useSubmit();
-  const one = review.sessionId ? review.sessions.find((s) => s.id === review.sessionId) : undefined;
+  const one = review.roundId ? review.rounds.find((s) => s.id === review.roundId) : undefined;
   const columns: Column<Row>[] = [
     {
       key: "nickname",
@@ -46,11 +73,11 @@ export default function ClassReview({ loaderData: { cls, review, neck, live } }:
     { key: "accuracy", header: "Accuracy", align: "right", cell: (p) => `${pct(p.accuracy)} (${p.correct}/${p.answered})` },
     { key: "medianMs", header: "Median time", align: "right", cell: (p) => secs(p.medianMs) },
   ];
-  const exportHref = `/teach/classes/${cls.id}/export.csv${one ? `?session=${one.id}` : ""}`;
+  const exportHref = `/teach/classes/${cls.id}/export.csv${one ? `?round=${one.id}` : ""}`;
 
   return (
     <div className="space-y-6">
-      <PageTitle lead={one ? `${one.title} · ${day(one.startedAt)}` : `Across all ${review.sessions.length} sessions. Students who played signed in are followed from session to session.`}>
+      <PageTitle lead={one ? `${one.title} · ${day(one.startedAt)}` : `Across all ${review.rounds.length} rounds. Students who played signed in are followed from round to round.`}>
         Class review · {cls.name}
       </PageTitle>
       {live ? <LiveUpdates classId={cls.id} roomId={live} /> : null}
@@ -58,10 +85,10 @@ export default function ClassReview({ loaderData: { cls, review, neck, live } }:
       <div className="flex flex-wrap items-end gap-3">
         <Form method="get" className="flex flex-wrap items-end gap-2" onChange={(e) => submit(e.currentTarget, { preventScrollReset: true })}>
           <label className="font-medium">
-            Session
-            <select name="session" defaultValue={review.sessionId ?? ""} className="mt-1 block min-h-11 rounded-xl border-2 border-ink/20 bg-white px-3 py-2 text-lg">
-              <option value="">All sessions</option>
-              {review.sessions.map((s) => (
+            Round
+            <select name="round" defaultValue={review.roundId ?? ""} className="mt-1 block min-h-11 rounded-xl border-2 border-ink/20 bg-white px-3 py-2 text-lg">
+              <option value="">All rounds</option>
+              {review.rounds.map((s) => (
                 <option key={s.id} value={s.id}>
                   {day(s.startedAt)} · {s.title}
                   {s.live ? " · live" : ""}
@@ -74,7 +101,7 @@ export default function ClassReview({ loaderData: { cls, review, neck, live } }:
           </noscript>
         </Form>
         <a href={exportHref} className={buttonClass("ghost")} download>
-          <span aria-hidden="true">⬇</span> Export CSV{one ? " (this session)" : " (all sessions)"}
+          <span aria-hidden="true">⬇</span> Export CSV{one ? " (this round)" : " (all rounds)"}
         </a>
         {one ? (
           <Link to={`/results/${one.id}`} className="underline">
@@ -83,7 +110,7 @@ export default function ClassReview({ loaderData: { cls, review, neck, live } }:
         ) : null}
       </div>
 
-      {review.sessions.length === 0 ? (
+      {review.rounds.length === 0 ? (
         <Notice tone="info">No rounds yet for this class. Host a round for it and its results will be reviewed here.</Notice>
       ) : (
         <>
@@ -96,9 +123,9 @@ export default function ClassReview({ loaderData: { cls, review, neck, live } }:
               <Board title="Fastest median time" rows={review.leaderboards.speed} value={(p) => secs(p.medianMs)} note={`Right-pitch answers; at least ${MIN_RANKED}.`} />
             </div>
             <Card>
-              <h3 className="mb-2 font-display text-xl font-semibold">Most improved since the previous session</h3>
+              <h3 className="mb-2 font-display text-xl font-semibold">Most improved since the previous round</h3>
               {review.mostImproved.length === 0 ? (
-                <p className="text-ink-soft">Nobody to compare yet: a student needs {MIN_RANKED} answers in this session and in an earlier one.</p>
+                <p className="text-ink-soft">Nobody to compare yet: a student needs {MIN_RANKED} answers in this round and in an earlier one.</p>
               ) : (
                 <ol className="space-y-1">
                   {review.mostImproved.slice(0, 5).map((m) => (
@@ -121,6 +148,11 @@ export default function ClassReview({ loaderData: { cls, review, neck, live } }:
               initialSort={{ key: "points", direction: "desc" }}
               empty="No students have answered yet."
             />
+          </section>
+
+          <section aria-labelledby="rounds" className="space-y-3">
+            <h2 id="rounds" className="font-display text-2xl font-semibold">Rounds</h2>
+            <DataTable rows={roundRows} columns={roundColumns} rowKey={(r) => r.id} caption="Rounds of this class" filterPlaceholder="Filter rounds by title" server={roundsPaging} />
           </section>
 
           <section aria-labelledby="reteach">
@@ -198,7 +230,7 @@ function Board({ title, rows, value, note }: { title: string; rows: PlayerFigure
 /** A running round: reload the figures whenever the server says answers were added. */
 function LiveUpdates({ classId, roomId }: { classId: string; roomId: string }) {
   const revalidator = useRevalidator();
-  const url = `/teach/classes/${classId}/review/live?session=${roomId}`;
+  const url = `/teach/classes/${classId}/review/live?round=${roomId}`;
   const count = useEventSource(url, { event: "answers" });
   const ended = useEventSource(url, { event: "ended" });
   useEffect(() => {

@@ -1,4 +1,4 @@
-// One student of a class: progress over the class's sessions, personal bests and their own note heatmap.
+// One student of a class: progress over the class's rounds, personal bests and their own note heatmap.
 import { Link } from "react-router";
 import { requireClassTeacher } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
@@ -32,7 +32,7 @@ const columns: Column<ProgressPoint>[] = [
 ];
 
 export default function StudentProgressPage({ loaderData: { cls, student, progress, reteach } }: Route.ComponentProps) {
-  const when = (b: Best | null) => (b ? day(progress.sessions.find((s) => s.sessionId === b.sessionId)!.startedAt) : "");
+  const when = (b: Best | null) => (b ? day(progress.rounds.find((s) => s.roundId === b.roundId)!.startedAt) : "");
   const bests = [
     { title: "Most points", best: progress.bests.points, show: (v: number) => `${v}` },
     { title: "Longest streak", best: progress.bests.streak, show: (v: number) => `${v} in a row` },
@@ -42,7 +42,7 @@ export default function StudentProgressPage({ loaderData: { cls, student, progre
   return (
     <div className="space-y-6">
       <PageTitle lead={<Link className="underline" to={`/teach/classes/${cls.id}/review`}>← Class review · {cls.name}</Link>}>{student.displayName}</PageTitle>
-      {progress.sessions.length === 0 ? (
+      {progress.rounds.length === 0 ? (
         <Notice tone="info">{student.displayName} has not played a round of this class signed in yet.</Notice>
       ) : (
         <>
@@ -54,7 +54,7 @@ export default function StudentProgressPage({ loaderData: { cls, student, progre
                   <Card>
                     <h3 className="text-ink-soft">{b.title}</h3>
                     <p className="font-display text-3xl font-semibold">{b.best ? b.show(b.best.value) : "—"}</p>
-                    <p className="text-sm text-ink-soft">{b.best ? when(b.best) : `Needs ${MIN_RANKED} answers in a session.`}</p>
+                    <p className="text-sm text-ink-soft">{b.best ? when(b.best) : `Needs ${MIN_RANKED} answers in a round.`}</p>
                   </Card>
                 </li>
               ))}
@@ -63,10 +63,10 @@ export default function StudentProgressPage({ loaderData: { cls, student, progre
           <section aria-labelledby="progress">
             <Card>
               <h2 id="progress" className="mb-3 font-display text-2xl font-semibold">Progress over time</h2>
-              <ProgressCharts points={progress.sessions} />
+              <ProgressCharts points={progress.rounds} />
             </Card>
           </section>
-          <DataTable rows={progress.sessions} columns={columns} rowKey={(p) => p.sessionId} caption="Sessions played" initialSort={{ key: "startedAt", direction: "desc" }} />
+          <DataTable rows={progress.rounds} columns={columns} rowKey={(p) => p.roundId} caption="Rounds played" initialSort={{ key: "startedAt", direction: "desc" }} />
           <section aria-labelledby="notes" className="space-y-3">
             <h2 id="notes" className="font-display text-2xl font-semibold">Their notes</h2>
             {reteach.length > 0 ? (

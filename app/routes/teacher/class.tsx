@@ -46,6 +46,8 @@ const addSchema = z.object({
   name: z.string().max(1000),
   email: z.string().max(1000).default(""),
 });
+// The file and the ticked rows are read from the form by their own checks below.
+const actionSchema = z.discriminatedUnion("intent", [z.object({ intent: z.literal("preview") }), z.object({ intent: z.literal("import") }), addSchema, userIntent]);
 
 export async function action({ request, params, context }: Route.ActionArgs): Promise<ActionResult | TooMany<ActionResult>> {
   const user = await requireUserWithRole(request, context, ["teacher"]);
@@ -56,7 +58,9 @@ export async function action({ request, params, context }: Route.ActionArgs): Pr
     return { error: `The file is too large (at most ${CSV_MAX_BYTES / 1000} KB).` };
   }
   const form = await request.formData();
-  const intent = form.get("intent");
+  const parsed = parseForm(actionSchema, form);
+  if (!parsed.ok) return form.get("intent") === "add" ? { errors: parsed.errors } : { error: "Unknown action." };
+  const input = parsed.data;
   // Invitations go out after the answer (app/mail/queue.server.ts); a failed one can be resent.
   const sent = (invites: Parameters<typeof mailInvitations>[2], what: string, inUse: AddressInUse[] = []) => {
     mailQueue.later(() => mailInvitations(mailer, env.PUBLIC_URL, invites, "student", cls.name, cls.orgId));
@@ -69,7 +73,7 @@ export async function action({ request, params, context }: Route.ActionArgs): Pr
     return refused ? tooMany(refused, { error: refused.message }) : undefined;
   };
 
-  if (intent === "preview") {
+  if (input.intent === "preview") {
     const file = form.get("file");
     if (!(file instanceof File) || file.size === 0) return { error: "Choose a CSV file to upload." };
     if (file.size > CSV_MAX_BYTES) return { error: `The file is too large (at most ${CSV_MAX_BYTES / 1000} KB).` };
@@ -78,7 +82,7 @@ export async function action({ request, params, context }: Route.ActionArgs): Pr
     return { preview: (await checkRowsForClass(db, cls, parsed.rows)).checked };
   }
 
-  if (intent === "import") {
+  if (input.intent === "import") {
     const rows = [];
     for (const value of form.getAll("row")) {
       const row = rosterRowSchema.safeParse(safeJson(value));
@@ -95,33 +99,25 @@ export async function action({ request, params, context }: Route.ActionArgs): Pr
     return sent(result.invites, `Imported ${result.added} student${result.added === 1 ? "" : "s"}.`, result.inUse);
   }
 
-  if (intent === "add") {
-    const parsed = parseForm(addSchema, form);
-    if (!parsed.ok) return { errors: parsed.errors };
-    const over = await overInvitationLimit(parsed.data.email.trim() ? 1 : 0);
+  if (input.intent === "add") {
+    const over = await overInvitationLimit(input.email.trim() ? 1 : 0);
     if (over) return over;
-    const result = await addStudents(db, cls, user.id, [{ line: 0, ...parsed.data }]);
+    const result = await addStudents(db, cls, user.id, [{ line: 0, name: input.name, email: input.email }]);
     if (!result.ok) {
       const problems = result.rows[0]?.errors ?? [];
-      return {
-        errors: {
-          name: problems.filter((p) => !/e-mail/i.test(p)).join(" ") || undefined,
-          email: problems.filter((p) => /e-mail/i.test(p)).join(" ") || undefined,
-        },
-      };
+      const on = (field: string) => problems.filter((p) => p.field === field).map((p) => p.message).join(" ") || undefined;
+      return { errors: { name: on("name"), email: on("email") } };
     }
-    return sent(result.invites, `Added ${parsed.data.name.trim()}.`, result.inUse);
+    return sent(result.invites, `Added ${input.name.trim()}.`, result.inUse);
   }
 
-  const parsed = parseForm(userIntent, form);
-  if (!parsed.ok) return { error: "Unknown action." };
-  if (parsed.data.intent === "remove") {
-    const done = await removeFromClass(db, cls.id, parsed.data.userId);
+  if (input.intent === "remove") {
+    const done = await removeFromClass(db, cls.id, input.userId);
     return done ? { notice: "Removed from the class. Their account and other classes are unchanged." } : { error: "That student isn't in this class." };
   }
   const over = await overInvitationLimit(1);
   if (over) return over;
-  const invite = await resendStudentInvite(db, cls.id, parsed.data.userId, user.id);
+  const invite = await resendStudentInvite(db, cls.id, input.userId, user.id);
   if (!invite) return { error: "Only students with an e-mail who haven't set a password yet can be sent an invitation." };
   return sent([invite], `A new invitation is on its way to ${invite.email}; the previous link no longer works.`);
 }
@@ -316,9 +312,9 @@ function ImportPreview({ rows, busy }: { rows: CheckedRow[]; busy: boolean }) {
                       ) : (
                         <ul className="text-brick">
                           {r.errors.map((e) => (
-                            <li key={e}>
+                            <li key={e.message}>
                               <span aria-hidden="true">✗ </span>
-                              {e}
+                              {e.message}
                             </li>
                           ))}
                         </ul>

@@ -2,6 +2,7 @@
 // the note pool on the staff and the neck, computed in the browser by the isomorphic engine.
 import { useMemo, useRef, useState } from "react";
 import { data, Form, Link, redirect, useNavigation } from "react-router";
+import { z } from "zod";
 import { mayFileUnderClass, readingSetAccess, requireReadingSet } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { PoolPreview } from "~/components/PoolPreview";
@@ -37,6 +38,9 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   return { id: set.id, name: set.name, classId: set.classId, spec: set.spec ?? readingPreset("ready-naturals-5")!.spec, classes: classList, canDelete };
 }
 
+// The set's own fields are checked by readingSetFormSchema.
+const intentSchema = z.enum(["delete", "save"]);
+
 export async function action({ request, params, context }: Route.ActionArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
@@ -44,7 +48,11 @@ export async function action({ request, params, context }: Route.ActionArgs) {
   const existing = params.id === "new" ? undefined : await setFor(db, user, params.id);
   if (params.id !== "new" && !existing) throw data({ error: "No such reading set." }, { status: 404 });
   const form = await request.formData();
-  if (existing && form.get("intent") === "delete") {
+  // The editor is the page's main form: a post without an intent saves.
+  if (!form.has("intent")) form.set("intent", "save");
+  const intent = intentSchema.safeParse(form.get("intent"));
+  if (!intent.success) return { errors: { form: "Unknown action." } as FieldErrors };
+  if (existing && intent.data === "delete") {
     await deleteSet(db, existing.id);
     return redirect(`/teach/sets?done=${encodeURIComponent(`Deleted “${existing.name}”.`)}`);
   }

@@ -1,13 +1,15 @@
 // The teacher's reading sets: their own and the school's, the ready-made progression, and copying a set into a class.
 import { data, Form, Link, redirect } from "react-router";
+import { z } from "zod";
 import { mayFileUnderClass, readingSetAccess, requireReadingSet } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { DataTable, type Column } from "~/components/DataTable";
 import { Badge, Button, buttonClass, Card, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
+import { parseForm } from "~/lib/forms";
 import { READING_PRESETS } from "~/reading/presets";
 import { createSet, deleteSet, hostableSet, setFor, setsFor, type SavedSet } from "~/reading/sets.server";
-import { summarise } from "~/reading/spec";
+import { describeReadingSet } from "~/reading/spec";
 import { classesFor } from "~/school/classes.server";
 import type { Route } from "./+types/reading-sets";
 
@@ -21,25 +23,32 @@ export async function loader({ request, context }: Route.LoaderArgs) {
     // Delete is offered only where the access rules allow it (docs/decisions/0005-access-rules.md).
     sets: await Promise.all(sets.map(async (s) => ({ ...s, canEdit: (await readingSetAccess(db, user, s.id, "edit")) === "ok" }))),
     classes: classList.map((c) => ({ id: c.id, name: c.name })),
-    presets: READING_PRESETS.map((p) => ({ ...p, summary: summarise(p.spec) })),
+    presets: READING_PRESETS.map((p) => ({ ...p, summary: describeReadingSet(p.spec) })),
     done: new URL(request.url).searchParams.get("done"),
   };
 }
 
+const actionSchema = z.discriminatedUnion("intent", [
+  z.object({ intent: z.literal("delete"), id: z.string().max(64).default("") }),
+  z.object({ intent: z.literal("copy"), id: z.string().max(64).default(""), classId: z.string().max(64).default("") }),
+]);
+
 export async function action({ request, context }: Route.ActionArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const form = await request.formData();
-  const id = String(form.get("id") ?? "");
-  if (form.get("intent") === "delete") {
+  const parsed = parseForm(actionSchema, await request.formData());
+  if (!parsed.ok) return { error: "Choose delete or copy." };
+  const input = parsed.data;
+  const id = input.id;
+  if (input.intent === "delete") {
     await requireReadingSet(db, user, id, "edit");
     const set = await setFor(db, user, id);
     if (!set) throw data({ error: "No such reading set." }, { status: 404 });
     await deleteSet(db, set.id);
     return redirect(`/teach/sets?done=${encodeURIComponent(`Deleted “${set.name}”.`)}`);
   }
-  if (form.get("intent") === "copy") {
-    const classId = String(form.get("classId") ?? "") || null;
+  if (input.intent === "copy") {
+    const classId = input.classId || null;
     await requireReadingSet(db, user, id, "see");
     const from = await hostableSet(db, user, id);
     if (!from) return { error: "That reading set doesn't exist or needs an edit first." };
@@ -47,7 +56,6 @@ export async function action({ request, context }: Route.ActionArgs) {
     const copy = await createSet(db, user, { name: from.source.name, classId, spec: from.reading.set });
     return redirect(`/teach/sets/${copy}`);
   }
-  return { error: "Choose delete or copy." };
 }
 
 export default function ReadingSets({ loaderData, actionData }: Route.ComponentProps) {

@@ -10,6 +10,7 @@ import { parseSpotMapQuery } from "~/components/neckQuery";
 import { chartFrets, SpotChart } from "~/components/SpotChart";
 import { Badge, Button, Card, NeedsJavaScript, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
+import { parseForm } from "~/lib/forms";
 import type { Spot } from "~/music/fretboard";
 import { spotsForSounding, soundingMidi } from "~/music/fretboard";
 import { displayPitch, parsePitch } from "~/music/pitch";
@@ -48,20 +49,28 @@ const spotsSchema = z.array(
   z.object({ writtenMidi: z.number().int(), written: z.string().max(8), string: z.number().int(), fret: z.number().int() }),
 );
 
+const actionSchema = z.discriminatedUnion("intent", [
+  z.object({ intent: z.literal("reset") }),
+  // The spots come as JSON text, read by spotsSchema below.
+  z.object({ intent: z.literal("save"), spots: z.string().max(200_000).default("") }),
+]);
+
 export async function action({ request, params, context }: Route.ActionArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
   const klass = await requireClassTeacher(db, user, params.classId);
   const q = mapQuery(request);
-  const form = await request.formData();
+  const intent = parseForm(actionSchema, await request.formData());
+  if (!intent.ok) return { problems: [{ code: "not-a-map", message: "Choose save or reset." }] as SpotMapProblem[] };
+  const input = intent.data;
   const back = (done: string) => redirect(`${new URL(request.url).pathname}?position=${q.map.position}&tuning=${q.tuning.id}&done=${encodeURIComponent(done)}`);
-  if (form.get("intent") === "reset") {
+  if (input.intent === "reset") {
     await resetClassSpotMap(db, klass.id, q.map.position, q.tuning.id);
     return back("The class reads with the default map again.");
   }
   let spots: unknown;
   try {
-    spots = JSON.parse(String(form.get("spots") ?? ""));
+    spots = JSON.parse(input.spots);
   } catch {
     spots = undefined;
   }

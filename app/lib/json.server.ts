@@ -1,4 +1,4 @@
-// Reading a JSON request body for the practice API: size-capped, with a clear error instead of a crash.
+// Reading a JSON request body for the API: size-capped, with a clear error instead of a crash.
 const MAX_BODY_BYTES = 128 * 1024;
 
 export type JsonBody = { ok: true; value: unknown } | { ok: false; response: Response };
@@ -10,7 +10,7 @@ export async function readJsonBody(request: Request): Promise<JsonBody> {
     return refuse(415, "Send the body as JSON, with Content-Type: application/json.");
   }
   const text = await request.text();
-  if (new TextEncoder().encode(text).length > MAX_BODY_BYTES) return refuse(413, `The body is larger than ${MAX_BODY_BYTES / 1024} KiB; send fewer answers at a time.`);
+  if (new TextEncoder().encode(text).length > MAX_BODY_BYTES) return refuse(413, `The body is larger than ${MAX_BODY_BYTES / 1024} KiB; send less at a time.`);
   try {
     return { ok: true, value: JSON.parse(text) };
   } catch {
