@@ -64,10 +64,35 @@ export function clientAddressOf(req: IncomingMessage, trust: (address: string, h
   return chain[hop]!;
 }
 
+/** Starts Fretcall: its services, the HTTP app, the WebSocket hub, and a close() that stops them all in order. */
 export async function startServer(overrides: Record<string, string | undefined> = {}): Promise<RunningServer> {
   const env: Env = loadEnv({ ...process.env, ...overrides });
-  const production = env.NODE_ENV === "production";
+  const parts = await openParts(env);
+  const app = express();
+  const trust = guardRequests(app, env, parts.services);
+  const closeVite = await mountApp(app, env, parts.services);
+  const server = createServer(app);
+  const sockets = openSockets(server, parts, trust);
+  await new Promise<void>((done) => server.listen(env.PORT, env.HOST, done));
+  const port = (server.address() as AddressInfo).port;
 
+  let closing: Promise<void> | undefined;
+  const close = () =>
+    (closing ??= (async () => {
+      const stopped = new Promise<void>((done) => server.close(() => done()));
+      await parts.hub.close();
+      sockets.close();
+      server.closeAllConnections();
+      await stopped;
+      await closeVite();
+      await parts.close();
+    })());
+
+  return { url: `http://localhost:${port}`, port, services: parts.services, hub: parts.hub, server, close };
+}
+
+/** The database, mail, upload reader, services and hub, ready before the first request. */
+async function openParts(env: Env) {
   const db = await openDb(env.DATABASE_URL, env.DATABASE_AUTH_TOKEN);
   await migrateDb(db);
   const catcher = env.mailCapture ? await startMailCatcher(env.MAIL_DIR) : undefined;
@@ -78,11 +103,24 @@ export async function startServer(overrides: Record<string, string | undefined> 
   const practiceMail = startMailSchedule(db, mailer, env.PUBLIC_URL);
   const hub = new Hub(db, env.SESSION_SECRET, services.sessions, { url: env.DATABASE_URL, authToken: env.DATABASE_AUTH_TOKEN });
   await hub.ready();
+  const close = async () => {
+    await practiceMail.stop();
+    await scores.close();
+    services.mailer.close();
+    await catcher?.close();
+    await closeDb(db);
+  };
+  return { db, services, hub, close };
+}
 
-  const app = express();
+type Trust = (address: string, hop: number) => boolean;
+
+/** Logging, client address, security headers, compression, the same-origin check and /healthz; returns the proxy trust rule. */
+function guardRequests(app: express.Express, env: Env, services: Services): Trust {
+  const production = env.NODE_ENV === "production";
   app.disable("x-powered-by");
   app.set("trust proxy", env.trustProxy);
-  const trust = app.get("trust proxy fn") as (address: string, hop: number) => boolean;
+  const trust = app.get("trust proxy fn") as Trust;
   const overHttps = new URL(env.PUBLIC_URL).protocol === "https:";
   app.use(requestLog(services.log));
   app.use((req, res, next) => {
@@ -130,13 +168,18 @@ export async function startServer(overrides: Record<string, string | undefined> 
   });
   app.get("/healthz", async (_req, res) => {
     try {
-      await db.$client.execute("SELECT 1");
+      await services.db.$client.execute("SELECT 1");
       res.json({ status: "ok", uptimeSeconds: Math.round(process.uptime()) });
     } catch (error) {
       res.status(503).json({ status: "error", error: String(error) });
     }
   });
+  return trust;
+}
 
+/** The React Router app behind the body limits: the built one in production, through Vite's middleware in development. */
+async function mountApp(app: express.Express, env: Env, services: Services) {
+  const production = env.NODE_ENV === "production";
   let closeVite = async () => {};
   if (production) {
     app.use("/assets", express.static("build/client/assets", { immutable: true, maxAge: "1y" }));
@@ -159,8 +202,11 @@ export async function startServer(overrides: Record<string, string | undefined> 
       }
     });
   }
+  return closeVite;
+}
 
-  const server = createServer(app);
+/** The WebSocket server on the same port, its upgrades checked for origin and rate, handed to the hub. */
+function openSockets(server: Server, { services, hub }: Awaited<ReturnType<typeof openParts>>, trust: Trust) {
   // Frames up to 64 KiB reach the protocol parser, which refuses anything over MAX_MESSAGE_BYTES
   // with its own documented close code; larger frames are cut off by ws itself (1009).
   const sockets = attachSockets(server, {
@@ -170,26 +216,7 @@ export async function startServer(overrides: Record<string, string | undefined> 
   });
   hub.attach(sockets.wss);
   sockets.wss.on("connection", (ws, req) => rememberSocket(ws, services.limits, clientAddressOf(req, trust)));
-  await new Promise<void>((done) => server.listen(env.PORT, env.HOST, done));
-  const port = (server.address() as AddressInfo).port;
-
-  let closing: Promise<void> | undefined;
-  const close = () =>
-    (closing ??= (async () => {
-      const stopped = new Promise<void>((done) => server.close(() => done()));
-      await hub.close();
-      sockets.close();
-      server.closeAllConnections();
-      await stopped;
-      await closeVite();
-      await practiceMail.stop();
-      await scores.close();
-      services.mailer.close();
-      await catcher?.close();
-      await closeDb(db);
-    })());
-
-  return { url: `http://localhost:${port}`, port, services, hub, server, close };
+  return sockets;
 }
 
 // Run directly (npm run dev / npm start), not when imported by tests.
