@@ -82,6 +82,11 @@ test("a teacher signs another browser out from Settings and changes the password
   await laptop.getByLabel("Password", { exact: true }).fill("first long password");
   await laptop.getByLabel("Password again").fill("first long password");
   await laptop.getByRole("button", { name: "Create studio" }).click();
+  await expect(laptop.getByText("Open the link in it within 24 hours")).toBeVisible();
+  const mail = (await readMail()).find((m) => m.to.includes(email));
+  const link = new URL(mail!.text.match(/https?:\/\/\S+\/signup\?studio=\S+/)![0]);
+  await laptop.goto(link.pathname + link.search);
+  await laptop.getByRole("button", { name: "Create my studio" }).click();
   await expect(laptop).toHaveURL(/\/admin$/);
 
   // The same account on a second browser (the test's own page).

@@ -3,18 +3,14 @@
 import type { Browser, Page } from "@playwright/test";
 import { expect, signIn, test } from "./fixtures";
 
-/**
- * A browser context with JavaScript off. Chromium sends `Origin: null` on a same-origin form post
- * while the site's Referrer-Policy is no-referrer, and the same-origin check refuses that until it
- * reads Sec-Fetch-Site; this context sends the page's own origin, as the check is meant to accept.
- */
-const noScript = (browser: Browser, baseURL: string) => browser.newContext({ javaScriptEnabled: false, extraHTTPHeaders: { Origin: baseURL } });
+/** A browser context with JavaScript off: forms post exactly as Chromium sends them, headers untouched. */
+const noScript = (browser: Browser) => browser.newContext({ javaScriptEnabled: false });
 
 /** Playwright's text matching skips what is inside <noscript>, so the notice is found by its place. */
 const noScriptNotice = (page: Page) => page.locator("noscript [role=status]");
 
-test("without JavaScript a teacher opens a room and a student joins it by room code", async ({ browser, baseURL }) => {
-  const teacher = await (await noScript(browser, baseURL!)).newPage();
+test("without JavaScript a teacher opens a room and a student joins it by room code", async ({ browser }) => {
+  const teacher = await (await noScript(browser)).newPage();
   await signIn(teacher, "rafe@larkspur.example");
   await expect(teacher).toHaveURL(/\/teach$/);
 
@@ -31,7 +27,7 @@ test("without JavaScript a teacher opens a room and a student joins it by room c
   const code = (await teacher.getByLabel(/^Room code/).first().getAttribute("aria-label"))!.replace(/Room code |\s/g, "");
   expect(code).toMatch(/^[A-Z0-9]{6}$/);
 
-  const student = await (await noScript(browser, baseURL!)).newPage();
+  const student = await (await noScript(browser)).newPage();
   await student.goto("/join");
   await student.getByLabel("Room code").fill("nope12");
   await student.getByRole("button", { name: "Join" }).click();
@@ -43,8 +39,8 @@ test("without JavaScript a teacher opens a room and a student joins it by room c
   await expect(noScriptNotice(student)).toHaveText(/Playing a live round needs JavaScript\./);
 });
 
-test("without JavaScript a teacher saves a reading set", async ({ browser, baseURL }) => {
-  const teacher = await (await noScript(browser, baseURL!)).newPage();
+test("without JavaScript a teacher saves a reading set", async ({ browser }) => {
+  const teacher = await (await noScript(browser)).newPage();
   await signIn(teacher, "rafe@larkspur.example");
   await expect(teacher).toHaveURL(/\/teach$/);
   await teacher.goto("/teach/sets");
