@@ -117,7 +117,9 @@ export async function startSession(storage: SessionStorage, request: Request, us
   const session = await storage.getSession();
   session.set("userId", userId);
   session.set("device", deviceLabel(request.headers.get("User-Agent")));
-  return redirect(to, { headers: { "Set-Cookie": await storage.commitSession(session) } });
+  // Behind a trusted proxy the request's own scheme counts too (Express sets it from X-Forwarded-Proto).
+  const overHttps = new URL(request.url).protocol === "https:";
+  return redirect(to, { headers: { "Set-Cookie": await storage.commitSession(session, overHttps ? { secure: true } : {}) } });
 }
 
 /** Ends the request's session on the server and clears the cookie. */

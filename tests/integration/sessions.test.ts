@@ -94,6 +94,19 @@ describe("the session cookie", () => {
     expect(cookie).toMatch(/Max-Age=2592000/);
   });
 
+  it("is Secure when a trusted proxy says the request came over https, though PUBLIC_URL is http", async () => {
+    const client = new Client(server.url);
+    const res = await client.request("/signin", {
+      method: "POST",
+      // What a browser sends through a TLS proxy: the https origin, and the proxy's word on the scheme.
+      headers: { "X-Forwarded-Proto": "https", Origin: server.url.replace("http:", "https:") },
+      body: new URLSearchParams({ email: DEMO_SCHOOL.admin.email, password: DEMO_PASSWORD }),
+    });
+    expect(res.status).toBe(302);
+    const cookie = res.headers.getSetCookie().find((c) => c.startsWith(`${SESSION_COOKIE}=`))!;
+    expect(cookie).toMatch(/; Secure/i);
+  });
+
   it("is Secure when PUBLIC_URL is https, and lives as long as SESSION_MAX_DAYS and SESSION_IDLE_DAYS say", async () => {
     const https = await startTestServer({ PUBLIC_URL: "https://fretcall.school.example", SESSION_MAX_DAYS: "2", SESSION_IDLE_DAYS: "0.5" });
     try {
