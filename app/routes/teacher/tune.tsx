@@ -1,9 +1,11 @@
 import { data, Form, Link, redirect } from "react-router";
+import { z } from "zod";
 import { requireTune, tuneAccess } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { Staff } from "~/components/Staff";
 import { Button, buttonClass, Card, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
+import { parseForm } from "~/lib/forms";
 import { defaultSpotMap, homeSpotFor } from "~/music/positions";
 import { displayPitch, parsePitch, pitchMidi } from "~/music/pitch";
 import { resolveTuning } from "~/music/tuning";
@@ -57,17 +59,23 @@ function leftOutWords({ leftOut: l }: StoredScore): string[] {
   ];
 }
 
+const actionSchema = z.discriminatedUnion("intent", [
+  z.object({ intent: z.literal("part"), partId: z.string().max(200).default("") }),
+  z.object({ intent: z.literal("delete") }),
+]);
+
 export async function action({ request, params, context }: Route.ActionArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
-  const form = await request.formData();
+  const parsed = parseForm(actionSchema, await request.formData());
   const { db, readScore } = services(context);
   await requireTune(db, user, params.tuneId, "edit");
-  if (form.get("intent") === "part") {
-    const chosen = await choosePart(db, readScore, user.orgId, params.tuneId, String(form.get("partId") ?? ""));
+  if (!parsed.ok) throw data({ error: "Unknown action." }, { status: 400 });
+  const input = parsed.data;
+  if (input.intent === "part") {
+    const chosen = await choosePart(db, readScore, user.orgId, params.tuneId, input.partId);
     if (!chosen.ok) return { error: `${chosen.error} The tune was left as it was.` };
     return redirect(`/teach/tunes/${params.tuneId}`);
   }
-  if (form.get("intent") !== "delete") throw data({ error: "Unknown action." }, { status: 400 });
   if (!(await deleteTune(db, user.orgId, params.tuneId))) return { error: "This tune was already deleted." };
   return redirect("/teach/tunes");
 }
