@@ -30,12 +30,17 @@ import { SqlWriter } from "./sql-writer";
 import { seatRefusal } from "./seat-limits";
 
 /** An `error` to one socket: what it sent was refused, and nothing changed. */
+/** A socket that has not said `hello` (or `join`) by then is closed with CLOSE_CODES.helloTimeout. */
+export const HELLO_TIMEOUT_MS = 10_000;
+
 const refuse = (conn: Conn, code: ErrorCode, message: string) => send(conn, JSON.stringify({ type: "error", code, message } satisfies ServerMessage));
 
 export class Hub implements RoomHost {
   readonly store: RoomStore;
   private readonly sql: SqlWriter;
   closing = false;
+  /** Tests shorten it. */
+  helloTimeoutMs = HELLO_TIMEOUT_MS;
   private readonly live = new Map<string, Promise<LiveRoom | undefined>>();
 
   constructor(
@@ -80,7 +85,15 @@ export class Hub implements RoomHost {
             refuse(conn, ERROR_CODES.badMessage, "The server could not handle that message.");
           });
       });
-      ws.on("close", () => this.leave(conn));
+      // A socket that never enters a room holds a connection (and its address's share) for nothing.
+      const silent = setTimeout(() => {
+        if (!conn.room && ws.readyState === ws.OPEN) ws.close(CLOSE_CODES.helloTimeout, "no hello");
+      }, this.helloTimeoutMs);
+      silent.unref();
+      ws.on("close", () => {
+        clearTimeout(silent);
+        this.leave(conn);
+      });
       ws.on("error", () => ws.terminate());
     });
   }

@@ -68,6 +68,7 @@ export const CLOSE_CODES = {
   tooLarge: 4004,
   rateLimited: 4005,
   replaced: 4006,
+  helloTimeout: 4007,
 } as const;
 export type CloseCode = (typeof CLOSE_CODES)[keyof typeof CLOSE_CODES];
 
