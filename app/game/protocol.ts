@@ -31,7 +31,7 @@ export type Phase = (typeof PHASES)[number];
 export const PAUSABLE = ["prompt", "reveal", "standings"] as const;
 export type Pausable = (typeof PAUSABLE)[number];
 
-export const HOST_ACTIONS = ["start", "pause", "resume", "skip", "next", "end", "lock", "unlock"] as const;
+export const HOST_ACTIONS = ["start", "pause", "resume", "skip", "next", "end", "lock", "unlock", "clear-offline"] as const;
 export type HostAction = (typeof HOST_ACTIONS)[number];
 
 export const ERROR_CODES = {

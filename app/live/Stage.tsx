@@ -96,7 +96,15 @@ export function Stage(props: StageProps) {
             </p>
           </div>
           <div className="space-y-4">
-            <h2 className="font-display text-5xl font-semibold">Players ({players.length})</h2>
+            <div className="flex flex-wrap items-center gap-3">
+              <h2 className="font-display text-5xl font-semibold">Players ({players.length})</h2>
+              {/* Seats of phones that left: they would hold places in the room and crowd the standings. */}
+              {players.some((p) => !p.online) ? (
+                <button className={buttonClass("ghost", "ml-auto")} onClick={() => host("clear-offline")}>
+                  Clear offline players ({players.filter((p) => !p.online).length})
+                </button>
+              ) : null}
+            </div>
             <ul className="flex flex-wrap gap-3" aria-live="polite">
               <AnimatePresence>
                 {players.map((p) => (
