@@ -49,6 +49,8 @@ export type Env = Omit<z.infer<typeof schema>, "MAIL_CAPTURE" | "TRUST_PROXY"> &
   trustProxy: false | number | string;
   SESSION_SECRET: string;
   PUBLIC_URL: string;
+  /** PUBLIC_URL was set, not defaulted: only then does the stage project it as the join address. */
+  publicUrlSet: boolean;
   /** Mail goes to the local catcher instead of SMTP_URL. */
   mailCapture: boolean;
 };
@@ -68,5 +70,6 @@ export function loadEnv(source: Record<string, string | undefined> = process.env
     // Development and tests get a fixed secret so sessions survive restarts; production must set one.
     SESSION_SECRET: env.SESSION_SECRET ?? "development-only-secret-not-for-production-use",
     PUBLIC_URL: env.PUBLIC_URL ?? `http://localhost:${env.PORT}`,
+    publicUrlSet: env.PUBLIC_URL !== undefined,
   };
 }

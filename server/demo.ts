@@ -1,9 +1,11 @@
 // `npm run demo`: the production build with the invented demo school and mail captured locally.
 import { randomBytes } from "node:crypto";
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from "node:fs";
+import { networkInterfaces } from "node:os";
 import { closeDb, migrateDb, openDb } from "~/db/client.server";
 import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
 import { loadEnv } from "~/env.server";
+import { joinAddress, joinAddressNote } from "~/lib/joinAddress";
 import { startServer } from "./index";
 import { demoSignIns, ensureDemo } from "./seed";
 
@@ -27,6 +29,9 @@ await closeDb(db);
 const running = await startServer(overrides);
 console.log(`\nFretcall demo: ${DEMO_SCHOOL.name}${kept ? " (as the last run left it; npm run seed starts it afresh)" : ""}\nOpen ${running.url}\n\nSign in with (password for all: ${DEMO_PASSWORD}):`);
 for (const [role, email] of demoSignIns()) console.log(`  ${role.padEnd(8)} ${email}`);
+// What a stage opened at that address will project for the phones.
+const join = joinAddress({ publicUrl: env.publicUrlSet ? env.PUBLIC_URL : undefined, requestUrl: running.url, interfaces: networkInterfaces() });
+console.log(`\nPhones join at ${join.origin}/join. ${joinAddressNote(join)}`);
 console.log(`\nE-mail is captured, not sent: the admin's Outbox page shows it. Stop with Ctrl+C.`);
 for (const signal of ["SIGTERM", "SIGINT"] as const) {
   process.once(signal, () => running.close().then(() => process.exit(0)));

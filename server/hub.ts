@@ -29,6 +29,9 @@ import { LiveRoom, send, type Conn, type RoomHost } from "./live-room";
 import { SqlWriter } from "./sql-writer";
 import { seatRefusal } from "./seat-limits";
 
+/** A socket that has not said `hello` (or `join`) by then is closed with CLOSE_CODES.helloTimeout. */
+export const HELLO_TIMEOUT_MS = 10_000;
+
 /** An `error` to one socket: what it sent was refused, and nothing changed. */
 const refuse = (conn: Conn, code: ErrorCode, message: string) => send(conn, JSON.stringify({ type: "error", code, message } satisfies ServerMessage));
 
@@ -36,6 +39,8 @@ export class Hub implements RoomHost {
   readonly store: RoomStore;
   private readonly sql: SqlWriter;
   closing = false;
+  /** Tests shorten it. */
+  helloTimeoutMs = HELLO_TIMEOUT_MS;
   private readonly live = new Map<string, Promise<LiveRoom | undefined>>();
 
   constructor(
@@ -60,6 +65,7 @@ export class Hub implements RoomHost {
         room: null,
         role: null,
         playerId: null,
+        seated: false,
         listening: false,
         // Messages wait for the session look-up, so a signed-in student's join is linked to the account.
         queue: this.userIdOf(req).then((id) => void (conn.userId = id)),
@@ -80,7 +86,15 @@ export class Hub implements RoomHost {
             refuse(conn, ERROR_CODES.badMessage, "The server could not handle that message.");
           });
       });
-      ws.on("close", () => this.leave(conn));
+      // A socket that never enters a room holds a connection (and its address's share) for nothing.
+      const silent = setTimeout(() => {
+        if (!conn.room && ws.readyState === ws.OPEN) ws.close(CLOSE_CODES.helloTimeout, "no hello");
+      }, this.helloTimeoutMs);
+      silent.unref();
+      ws.on("close", () => {
+        clearTimeout(silent);
+        this.leave(conn);
+      });
       ws.on("error", () => ws.terminate());
     });
   }
@@ -175,6 +189,7 @@ export class Hub implements RoomHost {
   /** The socket holds the seat at once; room messages reach it from the event that welcomes it on. */
   private seat(conn: Conn, room: LiveRoom, playerId: string) {
     conn.playerId = playerId;
+    conn.seated = true;
     room.pads.set(playerId, conn);
     room.inOrder(() => void (conn.listening = conn.room === room));
   }
@@ -183,9 +198,8 @@ export class Hub implements RoomHost {
   private async join(conn: Conn, code: string, typed: string) {
     const room = await this.room(code);
     if (!room) return refuse(conn, ERROR_CODES.roomNotFound, "No open room has that code. Check the code on the class screen.");
-    if (conn.playerId && room.pads.get(conn.playerId) === conn) {
-      return refuse(conn, ERROR_CODES.badMessage, "This phone has already joined the room.");
-    }
+    // Checked on the socket's whole life, not its present seat: hello in between (which leaves the seat) must not free it to join again.
+    if (conn.seated) return refuse(conn, ERROR_CODES.badMessage, "This connection already has a seat: say hello with its seat token.");
     // A signed-in student of the room's school plays under their own name, linked to their account (in
     // another school's room, as a guest); a name that is not a valid nickname (too long, odd characters)
     // must not lock them out, so the typed one is used then.
@@ -200,6 +214,7 @@ export class Hub implements RoomHost {
     // A refused join leaves no seat behind (the pad still gets the refusal, delivered in order).
     if (!room.state.players.some((p) => p.id === playerId)) {
       conn.playerId = null;
+      conn.seated = false;
       room.inOrder(() => {
         if (room.pads.get(playerId) === conn) room.pads.delete(playerId);
       });

@@ -81,7 +81,7 @@ export async function startServer(overrides: Record<string, string | undefined> 
     (closing ??= (async () => {
       const stopped = new Promise<void>((done) => server.close(() => done()));
       await parts.hub.close();
-      sockets.close();
+      await sockets.close();
       server.closeAllConnections();
       await stopped;
       await closeVite();

@@ -20,6 +20,8 @@ export interface Conn {
   room: LiveRoom | null;
   role: "host" | "player" | null;
   playerId: string | null;
+  /** The socket has held a seat: it may never join for another (one socket, one seat). */
+  seated: boolean;
   /** Set once the socket's welcome is on its way: room messages before that would arrive ahead of it. */
   listening: boolean;
   /** One socket's messages are handled one at a time, in the order they came. */

@@ -23,7 +23,7 @@ const open = (url: string, autoPong = true) =>
   });
 
 afterEach(async () => {
-  host.close();
+  await host.close();
   await new Promise((r) => server.close(r));
 });
 

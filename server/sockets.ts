@@ -10,15 +10,26 @@ export const HEARTBEAT_MS = 15_000;
 const HEARTBEAT_SLICES = 16;
 /** Close code sent to every socket when the server stops (RFC 6455 §7.4.1 "going away"). */
 export const CLOSE_GOING_AWAY = 1001;
+/** How long stopping waits for sockets to answer their 1001 before it cuts them off. */
+export const CLOSE_GRACE_MS = 2_000;
 
 export interface SocketHost {
   wss: WebSocketServer;
-  close(): void;
+  /** Resolves once every socket is gone: closed by its peer, or cut off after the grace period. */
+  close(): Promise<void>;
+}
+
+/** Answers an upgrade that will not become a WebSocket, and ends the connection once that is written. */
+function refuseUpgrade(socket: Duplex, status: string, headers: string[] = [], body = "") {
+  const bytes = Buffer.from(body);
+  const head = [`HTTP/1.1 ${status}`, ...headers, "Content-Type: text/plain; charset=utf-8", `Content-Length: ${bytes.length}`, "Connection: close"];
+  // Destroyed, not just ended: a peer that never closes its side must not hold a stopping server open.
+  socket.end(`${head.join("\r\n")}\r\n\r\n${body}`, () => socket.destroy());
 }
 
 /**
  * The WebSocket server on /ws: we handle the upgrade ourselves (noServer) so other upgrade
- * paths are refused, and a ping every heartbeat ends peers that stopped answering.
+ * paths are refused (404, connection closed), and a ping every heartbeat ends peers that stopped answering.
  */
 export function attachSockets(
   server: Server,
@@ -28,6 +39,7 @@ export function attachSockets(
     admit?: (req: IncomingMessage) => Promise<{ retryAfter: number; message: string } | undefined>;
     maxPayload: number;
     heartbeatMs?: number;
+    closeGraceMs?: number;
   },
 ): SocketHost {
   const wss = new WebSocketServer({ noServer: true, maxPayload: opts.maxPayload });
@@ -35,24 +47,19 @@ export function attachSockets(
   const slices = Array.from({ length: HEARTBEAT_SLICES }, () => new Set<WebSocket>());
   let joined = 0;
   let tick = 0;
+  // Upgrades still waiting for their admission check: stopping cuts them off too.
+  const pending = new Set<Duplex>();
 
   server.on("upgrade", (req: IncomingMessage, socket: Duplex, head: Buffer) => {
     const path = (req.url ?? "").split("?")[0];
-    if (path !== "/ws") return; // other upgrades (Vite's HMR in development) belong to their owners
-    if (!opts.allowOrigin(req)) {
-      socket.end("HTTP/1.1 403 Forbidden\r\nConnection: close\r\n\r\n");
-      return;
-    }
+    // Nothing else upgrades on this server (Vite's HMR in development has a port of its own).
+    if (path !== "/ws") return refuseUpgrade(socket, "404 Not Found", [], "WebSocket connections are made on /ws.");
+    if (!opts.allowOrigin(req)) return refuseUpgrade(socket, "403 Forbidden");
+    pending.add(socket);
     void (async () => {
       const refused = await opts.admit?.(req);
-      if (refused) {
-        const body = Buffer.from(refused.message);
-        socket.end(
-          `HTTP/1.1 429 Too Many Requests\r\nRetry-After: ${refused.retryAfter}\r\nContent-Type: text/plain; charset=utf-8\r\n` +
-            `Content-Length: ${body.length}\r\nConnection: close\r\n\r\n${body}`,
-        );
-        return;
-      }
+      pending.delete(socket);
+      if (refused) return refuseUpgrade(socket, "429 Too Many Requests", [`Retry-After: ${refused.retryAfter}`], refused.message);
       if (socket.destroyed) return;
       wss.handleUpgrade(req, socket, head, (ws) => wss.emit("connection", ws, req));
     })();
@@ -83,10 +90,16 @@ export function attachSockets(
 
   return {
     wss,
-    close() {
+    async close() {
       clearInterval(timer);
+      for (const socket of pending) socket.destroy();
       for (const ws of wss.clients) ws.close(CLOSE_GOING_AWAY, "server is stopping");
-      wss.close();
+      const closed = new Promise<void>((done) => wss.close(() => done()));
+      const grace = new Promise<void>((done) => setTimeout(done, opts.closeGraceMs ?? CLOSE_GRACE_MS).unref());
+      await Promise.race([closed, grace]);
+      // A peer that ignores the close frame would otherwise keep the server open for ws's own 30 s.
+      for (const ws of wss.clients) ws.terminate();
+      await closed;
     },
   };
 }

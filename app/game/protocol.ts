@@ -31,7 +31,7 @@ export type Phase = (typeof PHASES)[number];
 export const PAUSABLE = ["prompt", "reveal", "standings"] as const;
 export type Pausable = (typeof PAUSABLE)[number];
 
-export const HOST_ACTIONS = ["start", "pause", "resume", "skip", "next", "end", "lock", "unlock"] as const;
+export const HOST_ACTIONS = ["start", "pause", "resume", "skip", "next", "end", "lock", "unlock", "clear-offline"] as const;
 export type HostAction = (typeof HOST_ACTIONS)[number];
 
 export const ERROR_CODES = {
@@ -68,6 +68,7 @@ export const CLOSE_CODES = {
   tooLarge: 4004,
   rateLimited: 4005,
   replaced: 4006,
+  helloTimeout: 4007,
 } as const;
 export type CloseCode = (typeof CLOSE_CODES)[keyof typeof CLOSE_CODES];
 

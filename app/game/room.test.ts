@@ -143,6 +143,20 @@ describe("lobby", () => {
     expect(errorOf(room.join("a3"))).toBe(ERROR_CODES.roomFull);
   });
 
+  it("counts an offline seat toward the room's capacity only if it ever answered", () => {
+    const room = new Room(config({ maxPlayers: 2 }));
+    room.join("a1");
+    room.join("a2");
+    room.host("start");
+    room.tap("a1", { string: 6, fret: 0 }, room.state.run!.showAt + 100);
+    room.do({ type: "offline", playerId: "a1" });
+    room.do({ type: "offline", playerId: "a2" });
+    expect(errorOf(room.join("a3"))).toBeUndefined();
+    expect(errorOf(room.join("a4"))).toBe(ERROR_CODES.roomFull);
+    room.host("clear-offline");
+    expect(room.state.players.filter((p) => !p.removed).map((p) => p.id)).toEqual(["a3"]);
+  });
+
   it("cannot start without players", () => {
     const room = new Room(config());
     expect(errorOf(room.host("start"))).toBe(ERROR_CODES.noPlayers);
@@ -262,11 +276,11 @@ describe("phase transitions", () => {
     ended: (r) => r.host("end"),
   };
   const legal: Record<Phase, HostAction[]> = {
-    lobby: ["start", "lock", "unlock", "end"],
-    prompt: ["pause", "skip", "lock", "unlock", "end"],
-    reveal: ["pause", "next", "lock", "unlock", "end"],
-    standings: ["pause", "next", "lock", "unlock", "end"],
-    paused: ["resume", "lock", "unlock", "end"],
+    lobby: ["start", "lock", "unlock", "clear-offline", "end"],
+    prompt: ["pause", "skip", "lock", "unlock", "clear-offline", "end"],
+    reveal: ["pause", "next", "lock", "unlock", "clear-offline", "end"],
+    standings: ["pause", "next", "lock", "unlock", "clear-offline", "end"],
+    paused: ["resume", "lock", "unlock", "clear-offline", "end"],
     ended: [],
   };
   const cases = (Object.keys(legal) as Phase[]).flatMap((phase) => HOST_ACTIONS.map((action) => [phase, action, legal[phase].includes(action)] as const));

@@ -248,7 +248,7 @@ function join(ctx: Ctx, e: Extract<RoomEvent, { type: "join" }>): boolean {
   if (s.players.some((p) => p.id === e.playerId)) return setOnline(ctx, e.playerId, true);
   if (s.phase === "ended") return refuse(ctx, to, ERROR_CODES.roomEnded, "This room has ended.");
   if (s.locked) return refuse(ctx, to, ERROR_CODES.roomLocked, "The teacher has locked this room.");
-  if (active(s).length >= s.config.maxPlayers) return refuse(ctx, to, ERROR_CODES.roomFull, `This room is full (${s.config.maxPlayers} players).`);
+  if (seatsTaken(s) >= s.config.maxPlayers) return refuse(ctx, to, ERROR_CODES.roomFull, `This room is full (${s.config.maxPlayers} players).`);
   const clean = cleanNickname(e.nickname);
   if (!clean.ok) return refuse(ctx, to, ERROR_CODES.badNickname, clean.message);
   const nickname = uniqueNickname(clean.nickname, active(s).map((p) => p.nickname));
@@ -257,6 +257,15 @@ function join(ctx: Ctx, e: Extract<RoomEvent, { type: "join" }>): boolean {
   ctx.writes.push({ kind: "store-seat", playerId: e.playerId, nickname });
   catchUp(ctx, e.playerId);
   return true;
+}
+
+/**
+ * Seats that count toward maxPlayers: a seat that went offline without ever answering holds no
+ * place, so pages that joined and left (or a script's ghosts) never lock a real student out.
+ */
+function seatsTaken(s: RoomState): number {
+  const answered = new Set(s.answers.map((a) => a.playerId));
+  return active(s).filter((p) => p.online || answered.has(p.id)).length;
 }
 
 function setOnline(ctx: Ctx, playerId: string, online: boolean): boolean {
@@ -332,6 +341,11 @@ function host(ctx: Ctx, action: HostAction, priorPoints: Record<string, number>)
     case "lock":
     case "unlock":
       s.locked = action === "lock";
+      ctx.send(EVERYONE, roster(s));
+      return true;
+    case "clear-offline":
+      // As if each were removed; they have no socket to close.
+      for (const p of active(s)) if (!p.online) own(ctx, p).removed = true;
       ctx.send(EVERYONE, roster(s));
       return true;
   }

@@ -24,6 +24,10 @@ export interface StageProps {
   title: string;
   hostKey: string;
   joinUrl: string;
+  /** Which address the join link and QR code hold, in words. */
+  joinNote: string;
+  /** False when the only address is localhost, which no phone can reach. */
+  joinReachable: boolean;
   qr: string;
   tuning: string;
   frets: number;
@@ -87,9 +91,20 @@ export function Stage(props: StageProps) {
             <p className="mt-2 text-2xl">with the room code</p>
             <p className="font-display text-[min(14vw,8rem)] leading-none font-semibold tracking-widest">{formatRoomCode(props.code)}</p>
             <div className="mx-auto mt-4 w-[min(18rem,30vh)]" aria-label="QR code with the join link" role="img" dangerouslySetInnerHTML={{ __html: props.qr }} />
+            <p className={`mx-auto mt-2 max-w-[22rem] ${props.joinReachable ? "text-ink-soft" : "rounded-xl bg-brick/10 p-2 text-lg"}`} data-testid="join-note">
+              {props.joinNote}
+            </p>
           </div>
           <div className="space-y-4">
-            <h2 className="font-display text-5xl font-semibold">Players ({players.length})</h2>
+            <div className="flex flex-wrap items-center gap-3">
+              <h2 className="font-display text-5xl font-semibold">Players ({players.length})</h2>
+              {/* Seats of phones that left: they would hold places in the room and crowd the standings. */}
+              {players.some((p) => !p.online) ? (
+                <button className={buttonClass("ghost", "ml-auto")} onClick={() => host("clear-offline")}>
+                  Clear offline players ({players.filter((p) => !p.online).length})
+                </button>
+              ) : null}
+            </div>
             <ul className="flex flex-wrap gap-3" aria-live="polite">
               <AnimatePresence>
                 {players.map((p) => (

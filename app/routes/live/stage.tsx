@@ -1,8 +1,10 @@
+import { networkInterfaces } from "node:os";
 import QRCode from "qrcode";
 import { requireRound } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
 import { snapshot } from "~/game/room";
+import { joinAddress, joinAddressNote } from "~/lib/joinAddress";
 import { Stage } from "~/live/Stage";
 import { loadRoomState } from "~/rooms/log.server";
 import { hostKeyFor } from "~/rooms/rooms.server";
@@ -20,8 +22,9 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const { db, env } = services(context);
   const room = await requireRound(db, user, params.roomId);
   const config = room.config;
-  // The address the teacher reached us on is the one the class's phones can reach too.
-  const joinUrl = `${new URL(request.url).origin}/join?code=${room.code}`;
+  // Phones cannot reach a stage opened at localhost, so the join link may name another address.
+  const address = joinAddress({ publicUrl: env.publicUrlSet ? env.PUBLIC_URL : undefined, requestUrl: request.url, interfaces: networkInterfaces() });
+  const joinUrl = `${address.origin}/join?code=${room.code}`;
   // An ended room has no live socket to connect to: its last screen comes from its log.
   const ended = room.endedAt ? await loadRoomState(db, room.id) : undefined;
   return {
@@ -30,6 +33,8 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
     title: room.title,
     hostKey: hostKeyFor(env.SESSION_SECRET, room.id),
     joinUrl,
+    joinNote: joinAddressNote(address),
+    joinReachable: address.via !== "localhost-only",
     qr: await QRCode.toString(joinUrl, { type: "svg", margin: 1, color: { dark: "#1f2a36", light: "#f7efe1" } }),
     tuning: config.tuning,
     frets: config.frets,
