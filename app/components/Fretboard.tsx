@@ -90,7 +90,8 @@ export function Fretboard({
     size,
     leftHanded,
     viewportWidth,
-    window: wholeNeck ? undefined : zoom,
+    // The hand's one-fret stretches either side of the position hold home spots too, so they fit on screen as well.
+    window: wholeNeck || !zoom ? undefined : { first: Math.max(0, zoom.first - 1), last: Math.min(frets, zoom.last + 1) },
     fretLabels,
   });
   const metrics = SIZE_METRICS[size];
@@ -335,6 +336,7 @@ function FretLabels({ layout, frets, zoom }: { layout: Layout; frets: number; zo
         return (
           <text
             key={fret}
+            data-fret-label={fret}
             x={c.x + c.width / 2}
             y={layout.fretLabelY}
             fontWeight={inZoom ? 700 : 400}

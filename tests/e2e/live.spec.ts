@@ -23,8 +23,8 @@ async function hostRound(page: Page, mode: "Sprint" | "Full neck" | "Tune walk" 
   return code;
 }
 
-async function joinOnPhone(browser: Browser, code: string, nickname: string) {
-  const context = await browser.newContext(PHONE);
+async function joinOnPhone(browser: Browser, code: string, nickname: string, viewport = PHONE.viewport) {
+  const context = await browser.newContext({ ...PHONE, viewport });
   const page = await context.newPage();
   await page.goto("/join");
   await page.getByLabel("Room code").fill(code.toLowerCase());
@@ -232,4 +232,28 @@ test("a reloaded stage shows the screen it had, phase by phase", async ({ page: 
   await expect(stage.getByText("Final standings")).toBeVisible();
   await expect(stage.getByRole("link", { name: "See note-by-note results" })).toBeVisible();
   await expect(stage.getByRole("alert")).toHaveCount(0);
+});
+
+test("a 360 px phone in portrait shows the whole of fifth position with its stretches, fret numbers and full targets", async ({ page: stage, browser }) => {
+  test.setTimeout(120_000);
+  const code = await hostRound(stage, "Sprint", 5);
+  const pad = await joinOnPhone(browser, code, "Dee", { width: 360, height: 640 });
+  // Home spots reach one fret either side of the position (B on string 3, fret 4 in fifth position).
+  for (const fret of [4, 9]) {
+    for (let string = 1; string <= 6; string++) {
+      const box = (await pad.getByRole("button", { name: `string ${string}, fret ${fret}`, exact: true }).boundingBox())!;
+      expect(box.width, `string ${string}, fret ${fret}`).toBeGreaterThanOrEqual(44);
+      expect(box.height).toBeGreaterThanOrEqual(44);
+      expect(box.x).toBeGreaterThanOrEqual(0);
+      expect(box.x + box.width).toBeLessThanOrEqual(360);
+      expect(box.y + box.height).toBeLessThanOrEqual(640);
+    }
+  }
+  for (let fret = 4; fret <= 9; fret++) {
+    const label = (await pad.locator(`[data-fret-label="${fret}"]`).boundingBox())!;
+    expect(label.x).toBeGreaterThanOrEqual(0);
+    expect(label.x + label.width).toBeLessThanOrEqual(360);
+    expect(label.y + label.height).toBeLessThanOrEqual(640);
+  }
+  await shot(pad, "pad-360-position");
 });
