@@ -252,7 +252,8 @@ function join(ctx: Ctx, e: Extract<RoomEvent, { type: "join" }>): boolean {
   const clean = cleanNickname(e.nickname);
   if (!clean.ok) return refuse(ctx, to, ERROR_CODES.badNickname, clean.message);
   const nickname = uniqueNickname(clean.nickname, active(s).map((p) => p.nickname));
-  const team = s.config.teams !== null && s.phase !== "lobby" ? smallestTeam(s, s.config.teams.count) : null;
+  // A team from the lobby on, so each player knows theirs before the start (which deals the teams again, balanced).
+  const team = s.config.teams !== null ? smallestTeam(s, s.config.teams.count) : null;
   s.players.push({ id: e.playerId, nickname, seatToken: e.seatToken, online: true, removed: false, team, points: 0, streak: 0, longestStreak: 0 });
   ctx.writes.push({ kind: "store-seat", playerId: e.playerId, nickname });
   catchUp(ctx, e.playerId);

@@ -16,7 +16,7 @@ import { soundingMidi } from "~/music/fretboard";
 import { MISTAKE_LABELS } from "~/music/mistakes";
 import { displayPitch, parsePitch, pitchMidi } from "~/music/pitch";
 import { resolveTuning } from "~/music/tuning";
-import { Countdown, Icon, MISTAKE_ICONS, Offline, SecondsLeft, StandingsBoard, usePreviousOrder } from "./parts";
+import { Countdown, FindEvery, Icon, MISTAKE_ICONS, Offline, SecondsLeft, StandingsBoard, TeamName, usePreviousOrder } from "./parts";
 import { screenOf, useRoomSocket } from "./useRoomSocket";
 export interface StageProps {
   roomId: string;
@@ -90,31 +90,23 @@ export function Stage(props: StageProps) {
           </div>
           <div className="space-y-4">
             <h2 className="font-display text-5xl font-semibold">Players ({players.length})</h2>
-            <ul className="flex flex-wrap gap-3" aria-live="polite">
-              <AnimatePresence>
-                {players.map((p) => (
-                  <motion.li
-                    key={p.playerId}
-                    layout
-                    initial={{ opacity: 0, scale: 0.8 }}
-                    animate={{ opacity: 1, scale: 1 }}
-                    exit={{ opacity: 0 }}
-                    className="flex items-center gap-2 rounded-full bg-white py-2 pr-2 pl-5 text-3xl shadow-sm"
-                  >
-                    {p.nickname}
-                    {p.online ? null : <Offline />}
-                    <button
-                      type="button"
-                      onClick={() => confirm(`Remove ${p.nickname} from the room?`) && remove(p.playerId)}
-                      className="ml-1 flex h-11 w-11 items-center justify-center rounded-full text-xl text-ink-soft hover:bg-brick/15"
-                      aria-label={`Remove ${p.nickname}`}
-                    >
-                      ✕
-                    </button>
-                  </motion.li>
-                ))}
-              </AnimatePresence>
-            </ul>
+            {/* In a Teams round the lobby shows who is on which team, each under its name and mark. */}
+            {teamsOf(players).map(({ team, members }) => (
+              <div key={team ?? "all"} className="space-y-2">
+                {team === null ? null : (
+                  <h3 className="font-display text-3xl font-semibold">
+                    <TeamName team={team} /> ({members.length})
+                  </h3>
+                )}
+                <ul className="flex flex-wrap gap-3" aria-live="polite">
+                  <AnimatePresence>
+                    {members.map((p) => (
+                      <PlayerChip key={p.playerId} player={p} onRemove={remove} />
+                    ))}
+                  </AnimatePresence>
+                </ul>
+              </div>
+            ))}
             {players.length === 0 ? <p className="text-3xl text-ink-soft">Waiting for the class to join…</p> : null}
             <div className="rounded-2xl bg-white/70 p-4">
               <SoundControl />
@@ -154,6 +146,11 @@ export function Stage(props: StageProps) {
             </aside>
             {reveal ? <AnswerCounts counts={reveal.counts} /> : null}
           </div>
+          {state.prompt.spotsToFind ? (
+            <p className="font-display text-4xl">
+              <FindEvery spots={state.prompt.spotsToFind} />
+            </p>
+          ) : null}
           {state.progress ? (
             <div>
               <p className="font-display text-4xl">
@@ -191,6 +188,37 @@ export function Stage(props: StageProps) {
         </section>
       ) : null}
     </div>
+  );
+}
+
+type RosterPlayer = NonNullable<ReturnType<typeof useRoomSocket>["state"]["roster"]>["players"][number];
+
+/** Players by team, teams in order; one group with no heading when the round has no teams. */
+function teamsOf(players: RosterPlayer[]): { team: number | null; members: RosterPlayer[] }[] {
+  const teams = [...new Set(players.map((p) => p.team))].sort((a, b) => (a ?? -1) - (b ?? -1));
+  return (teams.length ? teams : [null]).map((team) => ({ team, members: players.filter((p) => p.team === team) }));
+}
+
+function PlayerChip({ player, onRemove }: { player: RosterPlayer; onRemove: (playerId: string) => void }) {
+  return (
+    <motion.li
+      layout
+      initial={{ opacity: 0, scale: 0.8 }}
+      animate={{ opacity: 1, scale: 1 }}
+      exit={{ opacity: 0 }}
+      className="flex items-center gap-2 rounded-full bg-white py-2 pr-2 pl-5 text-3xl shadow-sm"
+    >
+      {player.nickname}
+      {player.online ? null : <Offline />}
+      <button
+        type="button"
+        onClick={() => confirm(`Remove ${player.nickname} from the room?`) && onRemove(player.playerId)}
+        className="ml-1 flex h-11 w-11 items-center justify-center rounded-full text-xl text-ink-soft hover:bg-brick/15"
+        aria-label={`Remove ${player.nickname}`}
+      >
+        ✕
+      </button>
+    </motion.li>
   );
 }
 

@@ -112,7 +112,11 @@ test("a Full neck round: the class covers every spot of a pitch together", async
   const pads = await Promise.all(["Dee", "Eli"].map((n) => joinOnPhone(browser, code, n)));
   await stage.getByRole("button", { name: "▶ Start" }).click();
   const note = await currentNote(stage);
-  for (const pad of pads) await expect(pad.getByText("Find the note on the class screen")).toBeVisible();
+  // From the first prompt, both screens set Full neck's own task, not a home spot.
+  const task = `Find every spot of this note: ${note.spots.length} on this neck`;
+  await expect(stage.getByText(task)).toBeVisible();
+  for (const pad of pads) await expect(pad.getByText(task)).toBeVisible();
+  for (const pad of pads) await expect(pad.getByText("home spot")).toHaveCount(0);
   // Each phone takes every other spot; the pads scroll to reach frets outside the position.
   for (const [i, spot] of note.spots.entries()) await tapSpot(pads[i % 2]!, spot);
   await expect(stage.getByText(`Spots found: ${note.spots.length} of ${note.spots.length}`)).toBeVisible();
@@ -154,7 +158,18 @@ test("a Tune walk round plays a melody's first bar and names the tune at the end
 test("a Teams round splits the class into even teams and ranks the teams", async ({ page: stage, browser }) => {
   test.setTimeout(180_000);
   const code = await hostRound(stage, "Teams", 3, async (page) => page.getByLabel("Teams (Teams mode)").fill("2"));
-  const pads = await Promise.all(["Hal", "Ivo", "Jun", "Kai"].map((n) => joinOnPhone(browser, code, n)));
+  const names = ["Hal", "Ivo", "Jun", "Kai"];
+  const pads = await Promise.all(names.map((n) => joinOnPhone(browser, code, n)));
+  // Already in the lobby each phone names its team, and the stage lists the same player under that team.
+  await expect(stage.getByRole("heading", { name: "Team Nut (2)" })).toBeVisible();
+  await expect(stage.getByRole("heading", { name: "Team Saddle (2)" })).toBeVisible();
+  for (const [i, pad] of pads.entries()) {
+    const team = (await pad.getByText(/^Team (Nut|Saddle)$/).textContent())!;
+    const group = stage.locator("div").filter({ has: stage.getByRole("heading", { name: `${team} (2)` }) }).last();
+    await expect(group.getByRole("listitem").filter({ hasText: names[i]! })).toBeVisible();
+  }
+  await shot(stage, "stage-teams-lobby");
+  await shot(pads[0]!, "pad-team");
   expect(await playHomeSpots(stage, pads)).toBe(3);
   await expect(stage.getByRole("heading", { name: "Teams", exact: true })).toBeVisible();
   // Two teams of two: each row names its size.
