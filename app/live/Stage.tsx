@@ -42,6 +42,7 @@ export function Stage(props: StageProps) {
   const frozenAt = state.pausedAt === null ? null : toLocal(state.pausedAt);
   const reveal = screen === "reveal" ? state.reveal : null;
   const previousOrder = usePreviousOrder(state.standings);
+  const offline = new Set(players.filter((p) => !p.online).map((p) => p.playerId));
 
   // The reveal sounds the note the class just read; the teacher's clicks on this page are the gesture that allows it.
   const revealed = state.reveal?.written;
@@ -141,6 +142,7 @@ export function Stage(props: StageProps) {
                 </span>{" "}
                 <span className="text-3xl">answered</span>
               </p>
+              <OfflineCount count={reveal ? reveal.offline : (state.answered?.offline ?? 0)} />
               {screen === "prompt" ? <SecondsLeft showAt={toLocal(state.prompt.showAt)} deadline={toLocal(state.prompt.deadline)} frozenAt={frozenAt} /> : null}
               {reveal ? <HomeSpotWords reveal={reveal} /> : null}
             </aside>
@@ -172,12 +174,12 @@ export function Stage(props: StageProps) {
         </section>
       ) : null}
 
-      {screen === "standings" && state.standings ? <StandingsBoard standings={state.standings} previousOrder={previousOrder} big /> : null}
+      {screen === "standings" && state.standings ? <StandingsBoard standings={state.standings} previousOrder={previousOrder} offline={offline} big /> : null}
 
       {screen === "ended" && state.ended ? (
         <section className="space-y-6">
           <h2 className="font-display text-5xl font-semibold">Round complete{state.ended.tuneName ? ` — the tune was “${state.ended.tuneName}”` : ""}</h2>
-          {state.standings ? <StandingsBoard standings={state.standings} previousOrder={previousOrder} big /> : null}
+          {state.standings ? <StandingsBoard standings={state.standings} previousOrder={previousOrder} offline={offline} big /> : null}
           <p className="flex items-center gap-3 text-2xl">
             <Icon name="rest" className="h-9 w-9 text-teal" />
             Everyone: take a break to rest your hands.
@@ -249,6 +251,16 @@ function AnswerCounts({ counts }: { counts: RevealMessage["counts"] }) {
         </motion.li>
       ))}
     </ul>
+  );
+}
+
+/** Offline players are neither answers nor missed answers: the count says so in words, beside its own icon. */
+function OfflineCount({ count }: { count: number }) {
+  if (count === 0) return null;
+  return (
+    <p className="flex items-center gap-2 text-3xl text-ink-soft">
+      <span aria-hidden="true">⚠</span> {count} offline
+    </p>
   );
 }
 

@@ -99,7 +99,20 @@ export function usePreviousOrder(standings: ServerMessageOf<"standings"> | null)
  * Standings by points with the longest streaks beside them. Given the order of the last standings, rows first
  * stand as they were, then glide to their new places, so the class sees who moved up.
  */
-export function StandingsBoard({ standings, big = false, highlight, previousOrder }: { standings: ServerMessageOf<"standings">; big?: boolean; highlight?: string; previousOrder?: string[] }) {
+export function StandingsBoard({
+  standings,
+  big = false,
+  highlight,
+  previousOrder,
+  offline,
+}: {
+  standings: ServerMessageOf<"standings">;
+  big?: boolean;
+  highlight?: string;
+  previousOrder?: string[];
+  /** Players now offline, marked in the rows. */
+  offline?: Set<string>;
+}) {
   const reduce = useReducedMotion();
   const [settled, setSettled] = useState(!previousOrder);
   useEffect(() => {
@@ -130,6 +143,7 @@ export function StandingsBoard({ standings, big = false, highlight, previousOrde
               <span className="min-w-0 flex-1 truncate">
                 {r.nickname}
                 {r.playerId === highlight ? <span className="ml-2 text-base font-medium">(you)</span> : null}
+                {offline?.has(r.playerId) ? <span className="ml-2"><Offline /></span> : null}
               </span>
               <span className={`font-display font-semibold tabular-nums ${big ? "text-6xl" : ""}`}>{r.points}</span>
             </motion.li>
