@@ -272,3 +272,27 @@ test("a 360 px phone in portrait shows the whole of fifth position with its stre
   }
   await shot(pad, "pad-360-position");
 });
+
+test("the reveal reads from the back of the room at 1366×768: large counts on the neck, legend in view, offline counted apart", async ({ page: stage, browser }) => {
+  test.setTimeout(120_000);
+  await stage.setViewportSize({ width: 1366, height: 768 });
+  const code = await hostRound(stage, "Sprint", 5);
+  const pads = await Promise.all(["Lu", "Mo", "Ny"].map((n) => joinOnPhone(browser, code, n)));
+  await stage.getByRole("button", { name: "▶ Start" }).click();
+  const note = await currentNote(stage);
+  for (const pad of pads) await expect(pad.getByText("Find the note on the class screen")).toBeVisible();
+  // One phone drops out: the stage counts it apart from those still to answer.
+  await pads[2]!.context().close();
+  await expect(stage.getByText("1 offline")).toBeVisible();
+  await tapSpot(pads[0]!, note.home);
+  await tapSpot(pads[1]!, note.home);
+  await expect(stage.getByText("2/3")).toBeVisible();
+  // The count of answers on the home spot sits in a badge beside its mark, in lettering for the back row.
+  const badge = stage.locator('[data-heat-count="2"]');
+  await expect(badge).toBeVisible();
+  expect(Number.parseFloat(await badge.evaluate((el) => getComputedStyle(el).fontSize))).toBeGreaterThanOrEqual(20);
+  const legend = (await stage.locator("[data-legend]").boundingBox())!;
+  expect(legend.y + legend.height).toBeLessThanOrEqual(768);
+  await expect(stage.getByText("⚠ 1 offline")).toBeVisible();
+  await stage.screenshot({ path: "tests/.tmp/screenshots/stage-reveal-1366.png" });
+});
