@@ -90,7 +90,8 @@ export function Fretboard({
     size,
     leftHanded,
     viewportWidth,
-    window: wholeNeck ? undefined : zoom,
+    // The hand's one-fret stretches either side of the position hold home spots too, so they fit on screen as well.
+    window: wholeNeck || !zoom ? undefined : { first: Math.max(0, zoom.first - 1), last: Math.min(frets, zoom.last + 1) },
     fretLabels,
   });
   const metrics = SIZE_METRICS[size];
@@ -156,8 +157,12 @@ export function Fretboard({
 
   // String names stay outside the scrolling neck, on the nut's side, so they are in view at any position.
   const names = stringLabels ? <StringLabels layout={layout} tuning={tuning} font={metrics.font} /> : null;
+  const big = size === "stage";
+  const key = legend ? <Legend kinds={[...new Set(highlights.filter((h) => !h.label).map((h) => h.kind))]} heat={heat.length > 0} big={big} /> : null;
   return (
     <div className={`min-w-0 ${className}`}>
+      {/* A projected neck runs to the bottom of the screen: its key goes on top, where the room sees it without scrolling. */}
+      {big ? key : null}
       <div className="flex items-start">
         {leftHanded ? null : names}
         <div
@@ -186,6 +191,7 @@ export function Fretboard({
                 count={h.count}
                 share={heatShare(h.count, maxHeat)}
                 shifted={byKey.has(spotKey(h))}
+                font={metrics.font}
               />
             ))}
             {highlights.map((h) => (
@@ -232,9 +238,7 @@ export function Fretboard({
         <p className="mt-1 text-sm text-ink-soft">Scroll sideways for the rest of the neck.</p>
       ) : null}
       {disabled ? <p className="mt-1 text-sm text-ink-soft">Locked</p> : null}
-      {legend ? (
-        <Legend kinds={[...new Set(highlights.filter((h) => !h.label).map((h) => h.kind))]} heat={heat.length > 0} />
-      ) : null}
+      {size === "stage" ? null : key}
     </div>
   );
 }
@@ -335,6 +339,7 @@ function FretLabels({ layout, frets, zoom }: { layout: Layout; frets: number; zo
         return (
           <text
             key={fret}
+            data-fret-label={fret}
             x={c.x + c.width / 2}
             y={layout.fretLabelY}
             fontWeight={inZoom ? 700 : 400}
@@ -412,23 +417,25 @@ function Marker({ cell, highlight }: { cell: Rect; highlight: Highlight }) {
   );
 }
 
-function HeatMark({ cell, count, share, shifted }: { cell: Rect; count: number; share: number; shifted: boolean }) {
+function HeatMark({ cell, count, share, shifted, font }: { cell: Rect; count: number; share: number; shifted: boolean; font: number }) {
   const cx = cell.x + cell.width / 2;
   const cy = cell.y + cell.height / 2;
   const r = Math.min(cell.width, cell.height) * (0.25 + 0.25 * share);
-  // With a marker on the same spot, the count moves to the cell's corner so both stay readable.
-  const tx = shifted ? cell.x + cell.width - 10 : cx;
-  const ty = shifted ? cell.y + 10 : cy;
+  // With a marker on the same spot, the count moves to a badge in the cell's corner, in the board's own
+  // lettering size so the stage's counts read from the back of the room.
+  const badge = font * 0.8;
+  const tx = shifted ? cell.x + cell.width - badge : cx;
+  const ty = shifted ? cell.y + badge : cy;
   return (
     <g aria-hidden="true" pointerEvents="none">
       <circle cx={cx} cy={cy} r={r} className="fill-brass" opacity={0.3 + 0.45 * share} />
-      {shifted ? <circle cx={tx} cy={ty} r={9} className="fill-brass" /> : null}
+      {shifted ? <circle cx={tx} cy={ty} r={badge} className="fill-brass stroke-paper" strokeWidth={2} /> : null}
       <text
+        data-heat-count={count}
         x={tx}
         y={ty}
         textAnchor="middle"
         dominantBaseline="central"
-        fontSize={shifted ? 11 : undefined}
         fontWeight={700}
         className={shifted ? "fill-rosewood" : "fill-paper"}
       >
@@ -438,13 +445,13 @@ function HeatMark({ cell, count, share, shifted }: { cell: Rect; count: number; 
   );
 }
 
-function Legend({ kinds, heat }: { kinds: SpotKind[]; heat: boolean }) {
+function Legend({ kinds, heat, big }: { kinds: SpotKind[]; heat: boolean; big: boolean }) {
   if (kinds.length === 0 && !heat) return null;
   return (
-    <ul aria-hidden="true" className="mt-2 flex flex-wrap gap-x-4 gap-y-1 text-sm">
+    <ul aria-hidden="true" data-legend className={`flex flex-wrap gap-x-4 gap-y-1 ${big ? "mb-2 text-2xl" : "mt-2 text-sm"}`}>
       {kinds.map((k) => (
         <li key={k} className="flex items-center gap-1.5">
-          <svg width="20" height="20" viewBox="-10 -10 20 20" aria-hidden="true">
+          <svg width="1.2em" height="1.2em" viewBox="-10 -10 20 20" aria-hidden="true">
             <circle r={9} className={KINDS[k].fill} />
             <IconPath icon={KINDS[k].icon} r={9} />
           </svg>
@@ -453,7 +460,7 @@ function Legend({ kinds, heat }: { kinds: SpotKind[]; heat: boolean }) {
       ))}
       {heat ? (
         <li className="flex items-center gap-1.5">
-          <svg width="20" height="20" viewBox="-10 -10 20 20" aria-hidden="true">
+          <svg width="1.2em" height="1.2em" viewBox="-10 -10 20 20" aria-hidden="true">
             <circle r={9} className="fill-brass" opacity={0.6} />
           </svg>
           brass circle: how many answered there

@@ -40,6 +40,16 @@ describe("fretboardLayout", () => {
     expect(l.width).toBeGreaterThan(500);
   });
 
+  it("keeps every cell of a window a full target on a narrow phone, trimming the margins to show it whole", () => {
+    // Fifth position with its stretches (frets 4–9) on a 19-fret neck, in the 294 px a 360 px phone leaves beside the string names.
+    const l = fretboardLayout({ ...base, frets: 19, viewportWidth: 294, window: { first: 4, last: 9 } });
+    for (let fret = 4; fret <= 9; fret++) expect(l.cell({ string: 1, fret }).width).toBeGreaterThan(SIZE_METRICS.pad.minCell - 1e-9);
+    const four = l.cell({ string: 1, fret: 4 });
+    const nine = l.cell({ string: 1, fret: 9 });
+    expect(four.x - l.scrollLeft).toBeGreaterThanOrEqual(0);
+    expect(nine.x + nine.width - l.scrollLeft).toBeLessThanOrEqual(294);
+  });
+
   it("stops zooming at three targets per fret on a wide screen, and still centres the window", () => {
     const l = fretboardLayout({ ...base, viewportWidth: 1400, window: { first: 5, last: 8 } });
     const five = l.cell({ string: 1, fret: 5 });

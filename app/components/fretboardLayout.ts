@@ -1,5 +1,5 @@
 // Fretboard geometry in screen pixels, drawn to scale; pure so it can be tested without a browser.
-import { fretDistance, type Spot } from "~/music/fretboard";
+import type { Spot } from "~/music/fretboard";
 
 export type FretboardSize = "page" | "pad" | "stage";
 
@@ -59,8 +59,8 @@ export function fretboardLayout(o: LayoutOptions): FretboardLayout {
   const openWidth = m.minCell * 1.1;
   const nut = gutter + openWidth;
 
-  // The narrowest cell is the last one; the scale length is at least what keeps it tappable.
-  const minScale = m.minCell / cellShare(o.frets);
+  // Without a window the neck is to scale throughout: the narrowest cell, the last, sets the least scale length.
+  const minScale = o.window ? 0 : m.minCell / cellShare(o.frets);
   // The board runs a little past the last fret, as a real one does.
   const tailShare = 0.6 * cellShare(o.frets);
   const first = Math.max(0, Math.min(o.window?.first ?? 0, o.frets));
@@ -74,9 +74,29 @@ export function fretboardLayout(o: LayoutOptions): FretboardLayout {
       : (o.viewportWidth - 2 * margin) / (2 ** (-(first - 1) / 12) - 2 ** (-last / 12));
   // On a wide screen a short window would blow the frets up to absurd widths; three targets wide is plenty.
   const maxScale = (3 * m.minCell) / cellShare(Math.max(1, first));
-  const scale = Math.max(minScale, Math.min(fitScale, maxScale));
+  let scale = Math.max(minScale, Math.min(fitScale, maxScale));
+  if (o.window) {
+    // No cell is drawn narrower than a target, which widens a window's far frets; shrink the scale until it fits again.
+    const room = first === 0 ? o.viewportWidth - nut - margin : o.viewportWidth - 2 * margin;
+    const windowWidth = (s: number) => {
+      let sum = 0;
+      for (let n = Math.max(1, first); n <= last; n++) sum += Math.max(m.minCell, s * cellShare(n));
+      return sum;
+    };
+    if (windowWidth(scale) > room) {
+      let lo = 0;
+      for (let i = 0; i < 40; i++) {
+        const mid = (lo + scale) / 2;
+        if (windowWidth(mid) > room) scale = mid;
+        else lo = mid;
+      }
+      scale = lo;
+    }
+  }
 
-  const plain = Array.from({ length: o.frets + 1 }, (_, n) => nut + fretDistance(n, scale));
+  // To scale, except that no cell gets narrower than a target: past a zoomed window the frets stop closing up.
+  const plain = [nut];
+  for (let n = 1; n <= o.frets; n++) plain.push(plain[n - 1]! + Math.max(m.minCell, scale * cellShare(n)));
   const boardEnd = plain[o.frets]! + scale * tailShare;
   const width = Math.floor(boardEnd + EDGE);
   const mirror = (x: number) => (o.leftHanded ? width - x : x);
@@ -95,8 +115,12 @@ export function fretboardLayout(o: LayoutOptions): FretboardLayout {
     ]),
   ];
 
-  const plainStart = first === 0 ? 0 : plain[first - 1]! - margin;
-  const plainEnd = plain[last]! + margin;
+  const cellsStart = first === 0 ? 0 : plain[first - 1]!;
+  // Half a cell of margin either side, less when only that keeps the whole window on screen.
+  const roomLeft = o.viewportWidth - (plain[last]! - cellsStart);
+  const slack = roomLeft >= 0 ? Math.min(margin, roomLeft / 2) : margin;
+  const plainStart = first === 0 ? 0 : cellsStart - slack;
+  const plainEnd = plain[last]! + slack;
   // A window that fits is centred; one that doesn't is shown from its nut side, where the hand's first fret is.
   const spare = o.viewportWidth - (plainEnd - plainStart);
   const wanted = o.leftHanded

@@ -151,7 +151,7 @@ export const serverMessageSchema = z.discriminatedUnion("type", [
     answerMs: z.int().positive(),
     spotsToFind: count.nullable(),
   }),
-  msg("answered", { promptId: id, count, of: count }),
+  msg("answered", { promptId: id, count, of: count, offline: count }),
   z.discriminatedUnion("accepted", [
     msg("answer-ack", {
       promptId: id,
@@ -176,6 +176,7 @@ export const serverMessageSchema = z.discriminatedUnion("type", [
     counts: z.record(z.enum([...MISTAKE_KINDS, "no-answer"]), count),
     answered: count,
     of: count,
+    offline: count,
   }),
   msg("standings", { phase, final: z.boolean(), points: z.array(standingRow), streaks: z.array(streakRow), teams: z.array(teamRow) }),
   msg("paused", { phase: z.literal("paused"), pausedFrom: z.enum(PAUSABLE), at: time }),

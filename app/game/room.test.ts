@@ -192,7 +192,7 @@ describe("prompt and answers", () => {
     const ack = room.sent("answer-ack")[0]!;
     expect(ack.to).toEqual({ to: "player", playerId: "ana" });
     expect(ack.message).toMatchObject({ accepted: true, points: 950, total: 950, streak: 1, reactionMs: 1_000, diagnosis: { kind: "home-spot", pitchRight: true } });
-    expect(room.sent("answered")[0]).toMatchObject({ to: { to: "stage" }, message: { count: 1, of: 2 } });
+    expect(room.sent("answered")[0]).toMatchObject({ to: { to: "stage" }, message: { count: 1, of: 2, offline: 0 } });
   });
 
   it.each<[string, (r: Room) => Effect[], string]>([
@@ -224,15 +224,17 @@ describe("prompt and answers", () => {
   it("closes as soon as every online player has answered, offline players aside", () => {
     const room = started({}, ["ana", "ben", "cy"]);
     room.do({ type: "offline", playerId: "cy" });
+    // The stage hears at once that one player is offline, counted apart from those still to answer.
+    expect(room.sent("answered").at(-1)!.message).toMatchObject({ count: 0, of: 3, offline: 1 });
     room.tap("ana", home(room.note()), room.shown(300));
     expect(room.state.phase).toBe("prompt");
     room.tap("ben", wrongSpot(room.note()), room.shown(400));
     expect(room.state.phase).toBe("reveal");
     const reveal = room.sent("reveal")[0]!.message;
-    expect(reveal).toMatchObject({ answered: 2, of: 3, home: home(room.note()) });
+    expect(reveal).toMatchObject({ answered: 2, of: 3, offline: 1, home: home(room.note()) });
     if (reveal.type !== "reveal") throw new Error("expected a reveal");
     expect(reveal.counts["home-spot"]).toBe(1);
-    expect(reveal.counts["no-answer"]).toBe(1);
+    expect(reveal.counts["no-answer"]).toBe(0);
     expect(reveal.heat).toHaveLength(2);
     expect(reveal.otherSpots.some((s) => same(s, home(room.note())))).toBe(false);
   });

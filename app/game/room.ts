@@ -85,7 +85,8 @@ export interface PromptRun {
   found: Spot[];
   out: string[];
   /** Set when the prompt closes, so a reveal rebuilt later shows the same counts. */
-  closed: { of: number; unanswered: number } | null;
+  /** Counted as the prompt closes: unanswered includes the offline players who gave no answer. */
+  closed: { of: number; unanswered: number; offline: number } | null;
 }
 
 export interface RoomState {
@@ -252,7 +253,8 @@ function join(ctx: Ctx, e: Extract<RoomEvent, { type: "join" }>): boolean {
   const clean = cleanNickname(e.nickname);
   if (!clean.ok) return refuse(ctx, to, ERROR_CODES.badNickname, clean.message);
   const nickname = uniqueNickname(clean.nickname, active(s).map((p) => p.nickname));
-  const team = s.config.teams !== null && s.phase !== "lobby" ? smallestTeam(s, s.config.teams.count) : null;
+  // A team from the lobby on, so each player knows theirs before the start (which deals the teams again, balanced).
+  const team = s.config.teams !== null ? smallestTeam(s, s.config.teams.count) : null;
   s.players.push({ id: e.playerId, nickname, seatToken: e.seatToken, online: true, removed: false, team, points: 0, streak: 0, longestStreak: 0 });
   ctx.writes.push({ kind: "store-seat", playerId: e.playerId, nickname });
   catchUp(ctx, e.playerId);
@@ -272,6 +274,8 @@ function setOnline(ctx: Ctx, playerId: string, online: boolean): boolean {
   const found = findPlayer(ctx.s, playerId);
   if (!found) return refuse(ctx, player(playerId), ERROR_CODES.unknownPlayer, "That seat is no longer in this room. Join again.");
   own(ctx, found).online = online;
+  // The stage counts offline players apart from those still to answer.
+  if (ctx.s.phase === "prompt") ctx.send(STAGE, answeredMessage(ctx.s));
   if (online) catchUp(ctx, playerId);
   else {
     ctx.send(EVERYONE, roster(ctx.s));
@@ -525,7 +529,7 @@ function closePrompt(ctx: Ctx, skipped: boolean): void {
   const answered = answeredIds(s);
   const missing = active(s).filter((p) => !answered.has(p.id));
   if (!skipped && !fullNeck(s)) for (const p of missing) if (p.online) own(ctx, p).streak = 0;
-  run.closed = { of: active(s).length, unanswered: missing.length };
+  run.closed = { of: active(s).length, unanswered: missing.length, offline: missing.filter((p) => !p.online).length };
   s.phase = "reveal";
   s.phaseSince = ctx.env.now;
   ctx.send(EVERYONE, revealMessage(s));
@@ -577,7 +581,12 @@ function ackMessage(a: Answer, p: Player): ServerMessageOf<"answer-ack"> {
   };
 }
 
-const answeredMessage = (s: RoomState): ServerMessageOf<"answered"> => ({ type: "answered", promptId: s.run!.promptId, count: answeredIds(s).size, of: active(s).length });
+const answeredMessage = (s: RoomState): ServerMessageOf<"answered"> => {
+  const answered = answeredIds(s);
+  // Offline players who haven't answered are counted apart: the teacher waits for the others, not for them.
+  const offline = active(s).filter((p) => !p.online && !answered.has(p.id)).length;
+  return { type: "answered", promptId: s.run!.promptId, count: answered.size, of: active(s).length, offline };
+};
 
 const pausedMessage = (s: RoomState): ServerMessageOf<"paused"> => ({ type: "paused", phase: "paused", pausedFrom: s.paused!.from, at: s.paused!.at });
 
@@ -591,7 +600,7 @@ function revealMessage(s: RoomState): ServerMessageOf<"reveal"> {
   const taps = promptAnswers(s);
   const counts = Object.fromEntries([...Object.keys(MISTAKE_LABELS), "no-answer"].map((k) => [k, 0])) as Record<MistakeKind | "no-answer", number>;
   for (const a of taps) counts[a.diagnosis.kind] += 1;
-  counts["no-answer"] = run.closed!.unanswered;
+  counts["no-answer"] = run.closed!.unanswered - run.closed!.offline;
   const heat = new Map<string, { string: number; fret: number; count: number }>();
   for (const a of taps) {
     const key = `${a.spot.string}:${a.spot.fret}`;
@@ -608,6 +617,7 @@ function revealMessage(s: RoomState): ServerMessageOf<"reveal"> {
     counts,
     answered: new Set(taps.map((a) => a.playerId)).size,
     of: run.closed!.of,
+    offline: run.closed!.offline,
   };
 }
 

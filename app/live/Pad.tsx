@@ -15,7 +15,7 @@ import { formatRoomCode } from "~/game/roomCode";
 import type { Spot } from "~/music/fretboard";
 import { MISTAKE_LABELS } from "~/music/mistakes";
 import { resolveTuning } from "~/music/tuning";
-import { Icon, MISTAKE_ICONS, StandingsBoard, useMedia, useNow } from "./parts";
+import { FindEvery, Icon, MISTAKE_ICONS, StandingsBoard, TeamName, useMedia, useNow } from "./parts";
 import { screenOf, useRoomSocket, type LiveView } from "./useRoomSocket";
 
 export interface PadProps {
@@ -34,6 +34,8 @@ export function Pad(props: PadProps) {
   const short = useMedia("(max-height: 500px)");
   const [tapped, setTapped] = useState<{ promptId: string; spot: Spot } | null>(null);
   const me = state.welcome?.you ?? null;
+  // The start deals the teams again, and the roster says so; the welcome's team is the one at joining.
+  const team = state.roster?.players.find((p) => p.playerId === me?.playerId)?.team ?? me?.team ?? null;
   const screen = screenOf(state);
   const prompt = state.prompt;
   const now = useNow(state.phase === "prompt" ? 100 : 0);
@@ -68,6 +70,7 @@ export function Pad(props: PadProps) {
     <div className="mx-auto flex max-w-3xl flex-col gap-3">
       <div className="flex items-center gap-3 text-lg">
         <span className="min-w-0 truncate font-display text-xl font-semibold">{me.nickname}</span>
+        {team === null ? null : <TeamName team={team} className="shrink-0 rounded-full bg-ink px-3 text-paper" />}
         {ended || state.connection === "open" ? null : (
           <span role="status" className="rounded-full bg-sky/20 px-3">
             ⟳ reconnecting…
@@ -91,7 +94,7 @@ export function Pad(props: PadProps) {
             onTap={tap}
             disabled={locked}
             size={short ? "page" : "pad"}
-            label={`Your neck${leftHanded ? ", left-handed" : ""}, position ${props.position}; tap the home spot`}
+            label={`Your neck${leftHanded ? ", left-handed" : ""}, position ${props.position}; ${fullNeck ? "tap every spot of the note" : "tap the home spot"}`}
           />
           {screen === "standings" && state.standings ? <StandingsBoard standings={state.standings} highlight={me.playerId} /> : null}
         </>
@@ -163,7 +166,8 @@ function Status({ state, open, waiting }: { state: LiveView; open: boolean; wait
   if (screen === "reveal") return <Banner tone="info">Time! The home spot is marked ✓ on your neck.</Banner>;
   if (screen === "standings") return <Banner tone="info">Standings are on the class screen.</Banner>;
   if (screen === "prompt" && waiting) return <Banner tone="info">Get ready… look up at the class screen</Banner>;
-  if (screen === "prompt" && open) return <Banner tone="go">Find the note on the class screen and tap its home spot</Banner>;
+  if (screen === "prompt" && open)
+    return <Banner tone="go">{state.prompt?.spotsToFind ? <FindEvery spots={state.prompt.spotsToFind} /> : "Find the note on the class screen and tap its home spot"}</Banner>;
   return <Banner tone="info">You're in. Watch the class screen.</Banner>;
 }
 

@@ -16,7 +16,7 @@ import { soundingMidi } from "~/music/fretboard";
 import { MISTAKE_LABELS } from "~/music/mistakes";
 import { displayPitch, parsePitch, pitchMidi } from "~/music/pitch";
 import { resolveTuning } from "~/music/tuning";
-import { Countdown, Icon, MISTAKE_ICONS, Offline, SecondsLeft, StandingsBoard, usePreviousOrder } from "./parts";
+import { Countdown, FindEvery, Icon, MISTAKE_ICONS, Offline, SecondsLeft, StandingsBoard, TeamName, usePreviousOrder } from "./parts";
 import { screenOf, useRoomSocket } from "./useRoomSocket";
 export interface StageProps {
   roomId: string;
@@ -46,6 +46,7 @@ export function Stage(props: StageProps) {
   const frozenAt = state.pausedAt === null ? null : toLocal(state.pausedAt);
   const reveal = screen === "reveal" ? state.reveal : null;
   const previousOrder = usePreviousOrder(state.standings);
+  const offline = new Set(players.filter((p) => !p.online).map((p) => p.playerId));
 
   // The reveal sounds the note the class just read; the teacher's clicks on this page are the gesture that allows it.
   const revealed = state.reveal?.written;
@@ -105,31 +106,23 @@ export function Stage(props: StageProps) {
                 </button>
               ) : null}
             </div>
-            <ul className="flex flex-wrap gap-3" aria-live="polite">
-              <AnimatePresence>
-                {players.map((p) => (
-                  <motion.li
-                    key={p.playerId}
-                    layout
-                    initial={{ opacity: 0, scale: 0.8 }}
-                    animate={{ opacity: 1, scale: 1 }}
-                    exit={{ opacity: 0 }}
-                    className="flex items-center gap-2 rounded-full bg-white py-2 pr-2 pl-5 text-3xl shadow-sm"
-                  >
-                    {p.nickname}
-                    {p.online ? null : <Offline />}
-                    <button
-                      type="button"
-                      onClick={() => confirm(`Remove ${p.nickname} from the room?`) && remove(p.playerId)}
-                      className="ml-1 flex h-11 w-11 items-center justify-center rounded-full text-xl text-ink-soft hover:bg-brick/15"
-                      aria-label={`Remove ${p.nickname}`}
-                    >
-                      ✕
-                    </button>
-                  </motion.li>
-                ))}
-              </AnimatePresence>
-            </ul>
+            {/* In a Teams round the lobby shows who is on which team, each under its name and mark. */}
+            {teamsOf(players).map(({ team, members }) => (
+              <div key={team ?? "all"} className="space-y-2">
+                {team === null ? null : (
+                  <h3 className="font-display text-3xl font-semibold">
+                    <TeamName team={team} /> ({members.length})
+                  </h3>
+                )}
+                <ul className="flex flex-wrap gap-3" aria-live="polite">
+                  <AnimatePresence>
+                    {members.map((p) => (
+                      <PlayerChip key={p.playerId} player={p} onRemove={remove} />
+                    ))}
+                  </AnimatePresence>
+                </ul>
+              </div>
+            ))}
             {players.length === 0 ? <p className="text-3xl text-ink-soft">Waiting for the class to join…</p> : null}
             <div className="rounded-2xl bg-white/70 p-4">
               <SoundControl />
@@ -164,11 +157,17 @@ export function Stage(props: StageProps) {
                 </span>{" "}
                 <span className="text-3xl">answered</span>
               </p>
+              <OfflineCount count={reveal ? reveal.offline : (state.answered?.offline ?? 0)} />
               {screen === "prompt" ? <SecondsLeft showAt={toLocal(state.prompt.showAt)} deadline={toLocal(state.prompt.deadline)} frozenAt={frozenAt} /> : null}
               {reveal ? <HomeSpotWords reveal={reveal} /> : null}
             </aside>
             {reveal ? <AnswerCounts counts={reveal.counts} /> : null}
           </div>
+          {state.prompt.spotsToFind ? (
+            <p className="font-display text-4xl">
+              <FindEvery spots={state.prompt.spotsToFind} />
+            </p>
+          ) : null}
           {state.progress ? (
             <div>
               <p className="font-display text-4xl">
@@ -190,12 +189,12 @@ export function Stage(props: StageProps) {
         </section>
       ) : null}
 
-      {screen === "standings" && state.standings ? <StandingsBoard standings={state.standings} previousOrder={previousOrder} big /> : null}
+      {screen === "standings" && state.standings ? <StandingsBoard standings={state.standings} previousOrder={previousOrder} offline={offline} big /> : null}
 
       {screen === "ended" && state.ended ? (
         <section className="space-y-6">
           <h2 className="font-display text-5xl font-semibold">Round complete{state.ended.tuneName ? ` — the tune was “${state.ended.tuneName}”` : ""}</h2>
-          {state.standings ? <StandingsBoard standings={state.standings} previousOrder={previousOrder} big /> : null}
+          {state.standings ? <StandingsBoard standings={state.standings} previousOrder={previousOrder} offline={offline} big /> : null}
           <p className="flex items-center gap-3 text-2xl">
             <Icon name="rest" className="h-9 w-9 text-teal" />
             Everyone: take a break to rest your hands.
@@ -206,6 +205,37 @@ export function Stage(props: StageProps) {
         </section>
       ) : null}
     </div>
+  );
+}
+
+type RosterPlayer = NonNullable<ReturnType<typeof useRoomSocket>["state"]["roster"]>["players"][number];
+
+/** Players by team, teams in order; one group with no heading when the round has no teams. */
+function teamsOf(players: RosterPlayer[]): { team: number | null; members: RosterPlayer[] }[] {
+  const teams = [...new Set(players.map((p) => p.team))].sort((a, b) => (a ?? -1) - (b ?? -1));
+  return (teams.length ? teams : [null]).map((team) => ({ team, members: players.filter((p) => p.team === team) }));
+}
+
+function PlayerChip({ player, onRemove }: { player: RosterPlayer; onRemove: (playerId: string) => void }) {
+  return (
+    <motion.li
+      layout
+      initial={{ opacity: 0, scale: 0.8 }}
+      animate={{ opacity: 1, scale: 1 }}
+      exit={{ opacity: 0 }}
+      className="flex items-center gap-2 rounded-full bg-white py-2 pr-2 pl-5 text-3xl shadow-sm"
+    >
+      {player.nickname}
+      {player.online ? null : <Offline />}
+      <button
+        type="button"
+        onClick={() => confirm(`Remove ${player.nickname} from the room?`) && onRemove(player.playerId)}
+        className="ml-1 flex h-11 w-11 items-center justify-center rounded-full text-xl text-ink-soft hover:bg-brick/15"
+        aria-label={`Remove ${player.nickname}`}
+      >
+        ✕
+      </button>
+    </motion.li>
   );
 }
 
@@ -236,6 +266,16 @@ function AnswerCounts({ counts }: { counts: RevealMessage["counts"] }) {
         </motion.li>
       ))}
     </ul>
+  );
+}
+
+/** Offline players are neither answers nor missed answers: the count says so in words, beside its own icon. */
+function OfflineCount({ count }: { count: number }) {
+  if (count === 0) return null;
+  return (
+    <p className="flex items-center gap-2 text-3xl text-ink-soft">
+      <span aria-hidden="true">⚠</span> {count} offline
+    </p>
   );
 }
 

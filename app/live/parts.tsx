@@ -1,6 +1,7 @@
 import { motion, useReducedMotion } from "framer-motion";
 import { useEffect, useState, useSyncExternalStore } from "react";
 import type { ServerMessageOf } from "~/game/protocol";
+import { TEAM_NAMES } from "~/game/standings";
 
 // The stage and the pad take the icons from here with the rest of their parts.
 export { MISTAKE_ICONS } from "~/music/mistakes";
@@ -98,7 +99,20 @@ export function usePreviousOrder(standings: ServerMessageOf<"standings"> | null)
  * Standings by points with the longest streaks beside them. Given the order of the last standings, rows first
  * stand as they were, then glide to their new places, so the class sees who moved up.
  */
-export function StandingsBoard({ standings, big = false, highlight, previousOrder }: { standings: ServerMessageOf<"standings">; big?: boolean; highlight?: string; previousOrder?: string[] }) {
+export function StandingsBoard({
+  standings,
+  big = false,
+  highlight,
+  previousOrder,
+  offline,
+}: {
+  standings: ServerMessageOf<"standings">;
+  big?: boolean;
+  highlight?: string;
+  previousOrder?: string[];
+  /** Players now offline, marked in the rows. */
+  offline?: Set<string>;
+}) {
   const reduce = useReducedMotion();
   const [settled, setSettled] = useState(!previousOrder);
   useEffect(() => {
@@ -129,6 +143,7 @@ export function StandingsBoard({ standings, big = false, highlight, previousOrde
               <span className="min-w-0 flex-1 truncate">
                 {r.nickname}
                 {r.playerId === highlight ? <span className="ml-2 text-base font-medium">(you)</span> : null}
+                {offline?.has(r.playerId) ? <span className="ml-2"><Offline /></span> : null}
               </span>
               <span className={`font-display font-semibold tabular-nums ${big ? "text-6xl" : ""}`}>{r.points}</span>
             </motion.li>
@@ -167,5 +182,44 @@ export function StandingsBoard({ standings, big = false, highlight, previousOrde
         </ol>
       </div>
     </section>
+  );
+}
+
+/** Full neck's own task, said the same way on stage and pad: every spot of the pitch, not its home spot. */
+export function FindEvery({ spots }: { spots: number }) {
+  return (
+    <span>
+      Find every spot of this note: <strong className="tabular-nums">{spots}</strong> on this neck
+    </span>
+  );
+}
+
+/** One shape per team, in the order of TEAM_NAMES, so a team is told by its mark and name, never by a colour. */
+const TEAM_MARKS = [
+  "M4 12a8 8 0 1 0 16 0a8 8 0 1 0-16 0",
+  "M12 4l8 15H4z",
+  "M5 5h14v14H5z",
+  "M12 3l9 9-9 9-9-9z",
+  "M3 12a9 9 0 1 0 18 0a9 9 0 1 0-18 0M8.5 12a3.5 3.5 0 1 0 7 0a3.5 3.5 0 1 0-7 0",
+  "M12 3l2.6 6 6.4.5-4.9 4.2 1.5 6.3L12 16.6 6.4 20l1.5-6.3L3 9.5l6.4-.5z",
+  "M7.5 4h9l4.5 8-4.5 8h-9L3 12z",
+  "M3 9h18v6H3z",
+] as const;
+
+export function TeamMark({ team, className = "h-[1em] w-[1em]" }: { team: number; className?: string }) {
+  return (
+    <svg viewBox="0 0 24 24" aria-hidden="true" className={`inline-block shrink-0 ${className}`} fill="currentColor" fillRule="evenodd">
+      <path d={TEAM_MARKS[team % TEAM_MARKS.length]} />
+    </svg>
+  );
+}
+
+/** "Team Saddle" with its mark; the words are the label, the mark is there to be spotted across a room. */
+export function TeamName({ team, className = "" }: { team: number; className?: string }) {
+  return (
+    <span className={`inline-flex items-center gap-2 ${className}`}>
+      <TeamMark team={team} />
+      Team {TEAM_NAMES[team] ?? team + 1}
+    </span>
   );
 }

@@ -23,8 +23,8 @@ async function hostRound(page: Page, mode: "Sprint" | "Full neck" | "Tune walk" 
   return code;
 }
 
-async function joinOnPhone(browser: Browser, code: string, nickname: string) {
-  const context = await browser.newContext(PHONE);
+async function joinOnPhone(browser: Browser, code: string, nickname: string, viewport = PHONE.viewport) {
+  const context = await browser.newContext({ ...PHONE, viewport });
   const page = await context.newPage();
   await page.goto("/join");
   await page.getByLabel("Room code").fill(code.toLowerCase());
@@ -112,7 +112,11 @@ test("a Full neck round: the class covers every spot of a pitch together", async
   const pads = await Promise.all(["Dee", "Eli"].map((n) => joinOnPhone(browser, code, n)));
   await stage.getByRole("button", { name: "▶ Start" }).click();
   const note = await currentNote(stage);
-  for (const pad of pads) await expect(pad.getByText("Find the note on the class screen")).toBeVisible();
+  // From the first prompt, both screens set Full neck's own task, not a home spot.
+  const task = `Find every spot of this note: ${note.spots.length} on this neck`;
+  await expect(stage.getByText(task)).toBeVisible();
+  for (const pad of pads) await expect(pad.getByText(task)).toBeVisible();
+  for (const pad of pads) await expect(pad.getByText("home spot")).toHaveCount(0);
   // Each phone takes every other spot; the pads scroll to reach frets outside the position.
   for (const [i, spot] of note.spots.entries()) await tapSpot(pads[i % 2]!, spot);
   await expect(stage.getByText(`Spots found: ${note.spots.length} of ${note.spots.length}`)).toBeVisible();
@@ -154,7 +158,18 @@ test("a Tune walk round plays a melody's first bar and names the tune at the end
 test("a Teams round splits the class into even teams and ranks the teams", async ({ page: stage, browser }) => {
   test.setTimeout(180_000);
   const code = await hostRound(stage, "Teams", 3, async (page) => page.getByLabel("Teams (Teams mode)").fill("2"));
-  const pads = await Promise.all(["Hal", "Ivo", "Jun", "Kai"].map((n) => joinOnPhone(browser, code, n)));
+  const names = ["Hal", "Ivo", "Jun", "Kai"];
+  const pads = await Promise.all(names.map((n) => joinOnPhone(browser, code, n)));
+  // Already in the lobby each phone names its team, and the stage lists the same player under that team.
+  await expect(stage.getByRole("heading", { name: "Team Nut (2)" })).toBeVisible();
+  await expect(stage.getByRole("heading", { name: "Team Saddle (2)" })).toBeVisible();
+  for (const [i, pad] of pads.entries()) {
+    const team = (await pad.getByText(/^Team (Nut|Saddle)$/).textContent())!;
+    const group = stage.locator("div").filter({ has: stage.getByRole("heading", { name: `${team} (2)` }) }).last();
+    await expect(group.getByRole("listitem").filter({ hasText: names[i]! })).toBeVisible();
+  }
+  await shot(stage, "stage-teams-lobby");
+  await shot(pads[0]!, "pad-team");
   expect(await playHomeSpots(stage, pads)).toBe(3);
   await expect(stage.getByRole("heading", { name: "Teams", exact: true })).toBeVisible();
   // Two teams of two: each row names its size.
@@ -232,4 +247,52 @@ test("a reloaded stage shows the screen it had, phase by phase", async ({ page: 
   await expect(stage.getByText("Final standings")).toBeVisible();
   await expect(stage.getByRole("link", { name: "See note-by-note results" })).toBeVisible();
   await expect(stage.getByRole("alert")).toHaveCount(0);
+});
+
+test("a 360 px phone in portrait shows the whole of fifth position with its stretches, fret numbers and full targets", async ({ page: stage, browser }) => {
+  test.setTimeout(120_000);
+  const code = await hostRound(stage, "Sprint", 5);
+  const pad = await joinOnPhone(browser, code, "Dee", { width: 360, height: 640 });
+  // Home spots reach one fret either side of the position (B on string 3, fret 4 in fifth position).
+  for (const fret of [4, 9]) {
+    for (let string = 1; string <= 6; string++) {
+      const box = (await pad.getByRole("button", { name: `string ${string}, fret ${fret}`, exact: true }).boundingBox())!;
+      expect(box.width, `string ${string}, fret ${fret}`).toBeGreaterThanOrEqual(44);
+      expect(box.height).toBeGreaterThanOrEqual(44);
+      expect(box.x).toBeGreaterThanOrEqual(0);
+      expect(box.x + box.width).toBeLessThanOrEqual(360);
+      expect(box.y + box.height).toBeLessThanOrEqual(640);
+    }
+  }
+  for (let fret = 4; fret <= 9; fret++) {
+    const label = (await pad.locator(`[data-fret-label="${fret}"]`).boundingBox())!;
+    expect(label.x).toBeGreaterThanOrEqual(0);
+    expect(label.x + label.width).toBeLessThanOrEqual(360);
+    expect(label.y + label.height).toBeLessThanOrEqual(640);
+  }
+  await shot(pad, "pad-360-position");
+});
+
+test("the reveal reads from the back of the room at 1366×768: large counts on the neck, legend in view, offline counted apart", async ({ page: stage, browser }) => {
+  test.setTimeout(120_000);
+  await stage.setViewportSize({ width: 1366, height: 768 });
+  const code = await hostRound(stage, "Sprint", 5);
+  const pads = await Promise.all(["Lu", "Mo", "Ny"].map((n) => joinOnPhone(browser, code, n)));
+  await stage.getByRole("button", { name: "▶ Start" }).click();
+  const note = await currentNote(stage);
+  for (const pad of pads) await expect(pad.getByText("Find the note on the class screen")).toBeVisible();
+  // One phone drops out: the stage counts it apart from those still to answer.
+  await pads[2]!.context().close();
+  await expect(stage.getByText("1 offline")).toBeVisible();
+  await tapSpot(pads[0]!, note.home);
+  await tapSpot(pads[1]!, note.home);
+  await expect(stage.getByText("2/3")).toBeVisible();
+  // The count of answers on the home spot sits in a badge beside its mark, in lettering for the back row.
+  const badge = stage.locator('[data-heat-count="2"]');
+  await expect(badge).toBeVisible();
+  expect(Number.parseFloat(await badge.evaluate((el) => getComputedStyle(el).fontSize))).toBeGreaterThanOrEqual(20);
+  const legend = (await stage.locator("[data-legend]").boundingBox())!;
+  expect(legend.y + legend.height).toBeLessThanOrEqual(768);
+  await expect(stage.getByText("⚠ 1 offline")).toBeVisible();
+  await stage.screenshot({ path: "tests/.tmp/screenshots/stage-reveal-1366.png" });
 });
