@@ -1,3 +1,4 @@
+import { useEffect } from "react";
 import { isRouteErrorResponse, Links, Meta, Outlet, Scripts, ScrollRestoration, useRouteLoaderData } from "react-router";
 import type { Route } from "./+types/root";
 import "./app.css";
@@ -5,6 +6,8 @@ import { getOptionalUser } from "./auth/guards.server";
 import { AppShell } from "./components/AppShell";
 import { nonceContext, services } from "./context";
 import { retryAfterHeaders } from "./auth/rate-limit.server";
+import { DEFAULT_NAMING } from "./music/naming";
+import { schoolNaming } from "./school/naming.server";
 
 export const meta: Route.MetaFunction = () => [
   { title: "Fretcall — read the note, find the fret" },
@@ -16,12 +19,18 @@ export async function loader({ request, context }: Route.LoaderArgs) {
   return {
     nonce: context.get(nonceContext),
     user: user ? { displayName: user.displayName, role: user.role } : null,
+    // Server-rendered note names follow the school's naming; a device's own choice applies after hydration.
+    naming: user ? await schoolNaming(services(context).db, user.orgId) : DEFAULT_NAMING,
     showOutbox: services(context).env.mailCapture,
   };
 }
 
 export function Layout({ children }: { children: React.ReactNode }) {
   const data = useRouteLoaderData<typeof loader>("root");
+  // The layout's effect runs after every child's: a signal that the whole page is hydrated, for tests and bench/pageload.ts.
+  useEffect(() => {
+    document.documentElement.dataset.hydrated = "";
+  }, []);
   return (
     <html lang="en">
       <head>

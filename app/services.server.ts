@@ -1,6 +1,7 @@
 import { createAuthenticator } from "~/auth/authenticator.server";
 import { createLimits } from "~/auth/rate-limit.server";
 import { createSessionStorage } from "~/auth/session.server";
+import { memoryShared, type Shared } from "~/cluster/shared.server";
 import type { Db } from "~/db/client.server";
 import type { Env } from "~/env.server";
 import { createLogger } from "~/log.server";
@@ -8,9 +9,12 @@ import type { Mailer } from "~/mail/mailer.server";
 import { createMailQueue } from "~/mail/queue.server";
 import type { ReadScore } from "~/music/musicxml";
 
-/** Everything a loader or action may reach, created once by the server and handed over per request. */
-export function createServices(env: Env, db: Db, mailer: Mailer, readScore: ReadScore) {
-  const limits = createLimits();
+/**
+ * Everything a loader or action may reach, created once by the server and handed over per request.
+ * `shared` is what the nodes of a cluster share (Redis); one process keeps it in memory.
+ */
+export function createServices(env: Env, db: Db, mailer: Mailer, readScore: ReadScore, shared: Shared = memoryShared()) {
+  const limits = createLimits(shared.limiter);
   const log = createLogger(env.LOG_LEVEL);
   return {
     env,
@@ -27,9 +31,13 @@ export function createServices(env: Env, db: Db, mailer: Mailer, readScore: Read
       secure: new URL(env.PUBLIC_URL).protocol === "https:",
       maxDays: env.SESSION_MAX_DAYS,
       idleDays: env.SESSION_IDLE_DAYS,
+      cardMaxDays: env.CARD_SESSION_DAYS,
+      cardIdleDays: env.CARD_SESSION_IDLE_DAYS,
     }),
     authenticator: createAuthenticator(db, limits.signIn),
     limits,
+    /** News that a round changed, from whichever node stored it (the live class review listens). */
+    rounds: shared.rounds,
   };
 }
 

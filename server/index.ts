@@ -6,10 +6,13 @@ import { createServer, type IncomingHttpHeaders, type IncomingMessage, type Serv
 import type { AddressInfo } from "node:net";
 import { resolve } from "node:path";
 import { pathToFileURL } from "node:url";
+import { memoryShared } from "~/cluster/shared.server";
 import { closeDb, migrateDb, openDb } from "~/db/client.server";
-import { loadEnv, type Env } from "~/env.server";
+import { loadEnv, nodeAddressOf, type Env } from "~/env.server";
+import { createLogger } from "~/log.server";
+import { openRoomByCode } from "~/rooms/rooms.server";
 import { createMailer } from "~/mail/mailer.server";
-import { startMailSchedule } from "~/practice/mail.server";
+import { SCHEDULE_EVERY_MS, startMailSchedule } from "~/practice/mail.server";
 import { createServices, type Services } from "~/services.server";
 import type { createAppHandler } from "./app";
 import { limitBodies } from "./body-limit";
@@ -19,6 +22,9 @@ import { startMailCatcher } from "./mail-catcher";
 import { ScoreReader } from "./score-reader";
 import { Hub } from "./hub";
 import { attachSockets } from "./sockets";
+import { divertToOwner } from "./cluster/forward";
+import { closeRedis, connectRedis } from "./cluster/redis";
+import { openShared } from "./cluster/shared";
 
 export interface RunningServer {
   url: string;
@@ -75,6 +81,8 @@ export async function startServer(overrides: Record<string, string | undefined> 
   const sockets = openSockets(server, parts, trust);
   await new Promise<void>((done) => server.listen(env.PORT, env.HOST, done));
   const port = (server.address() as AddressInfo).port;
+  // Known only now when PORT is 0 (tests); no room is claimed before the first socket.
+  if (parts.self) parts.self.address = nodeAddressOf(env, port);
 
   let closing: Promise<void> | undefined;
   const close = () =>
@@ -94,23 +102,33 @@ export async function startServer(overrides: Record<string, string | undefined> 
 /** The database, mail, upload reader, services and hub, ready before the first request. */
 async function openParts(env: Env) {
   const db = await openDb(env.DATABASE_URL, env.DATABASE_AUTH_TOKEN);
-  await migrateDb(db);
+  // Cluster mode: rate limits, round news and locks in Redis (docs/decisions/0009-several-nodes.md).
+  const shared = env.REDIS_URL ? await openShared(env.REDIS_URL, createLogger(env.LOG_LEVEL)) : memoryShared();
+  // Nodes starting together migrate one at a time; the others then find nothing left to apply.
+  await shared.locks.inTurn("migrate", () => migrateDb(db));
   const catcher = env.mailCapture ? await startMailCatcher(env.MAIL_DIR) : undefined;
   const mailer = createMailer(catcher?.url ?? env.SMTP_URL!, env.MAIL_FROM);
   const scores = new ScoreReader();
-  const services = createServices(env, db, mailer, scores.read);
+  const services = createServices(env, db, mailer, scores.read, shared);
   // Assignment notices, reminders and weekly digests (app/practice/mail.server.ts).
-  const practiceMail = startMailSchedule(db, mailer, env.PUBLIC_URL);
-  const hub = new Hub(db, env.SESSION_SECRET, services.sessions, { url: env.DATABASE_URL, authToken: env.DATABASE_AUTH_TOKEN });
+  const practiceMail = startMailSchedule(db, mailer, env.PUBLIC_URL, SCHEDULE_EVERY_MS, shared.locks);
+  // Cluster mode: rooms are held under Redis leases (server/cluster/leases.ts).
+  const self = env.REDIS_URL ? { nodeId: env.NODE_ID, address: env.NODE_ADDRESS ?? "" } : undefined;
+  const redis = env.REDIS_URL ? connectRedis(env.REDIS_URL, "leases", services.log) : undefined;
+  const cluster = redis && self && { redis, self, log: services.log };
+  const hub = new Hub(db, env.SESSION_SECRET, services.sessions, { url: env.DATABASE_URL, authToken: env.DATABASE_AUTH_TOKEN }, cluster, services.rounds);
   await hub.ready();
+  hub.startIdleSweep(env.ROOM_IDLE_HOURS * 3_600_000, shared.locks);
   const close = async () => {
     await practiceMail.stop();
     await scores.close();
+    if (redis) await closeRedis(redis);
+    await shared.close();
     services.mailer.close();
     await catcher?.close();
     await closeDb(db);
   };
-  return { db, services, hub, close };
+  return { db, services, hub, self, close };
 }
 
 type Trust = (address: string, hop: number) => boolean;
@@ -212,6 +230,7 @@ function openSockets(server: Server, { services, hub }: Awaited<ReturnType<typeo
   const sockets = attachSockets(server, {
     allowOrigin: (req) => sameOrigin(req.headers),
     admit: (req) => admitSocket(services.limits, clientAddressOf(req, trust)),
+    divert: hub.leases && divertToOwner(hub.leases, async (code) => (await openRoomByCode(services.db, code))?.id),
     maxPayload: 64 * 1024,
   });
   hub.attach(sockets.wss);

@@ -7,39 +7,102 @@ import { nanoid } from "nanoid";
 import WebSocket from "ws";
 import type { Db } from "~/db/client.server";
 import { rooms } from "~/db/schema";
-import { PROTOCOL_VERSION, type ServerMessage } from "~/game/protocol";
+import { CLOSE_CODES, PROTOCOL_VERSION, type ServerMessage } from "~/game/protocol";
 import { newRoomCode } from "~/game/roomCode";
 import { drawnPrompts, roomConfig, type RoomConfig } from "~/game/roomConfig";
 import { DEMO_SCHOOL } from "~/demo/school";
 import type { ReadingSpec } from "~/music/pools";
 import { hostKeyFor } from "~/rooms/rooms.server";
 
+/** Close codes after which the real page stops trying (docs/protocol.md), and our own normal close. */
+const FINAL_CLOSES = new Set<number>([1000, ...Object.values(CLOSE_CODES)]);
+/** How long a reconnecting script keeps trying, and how often. */
+const RECONNECT_FOR_MS = 30_000;
+const RECONNECT_EVERY_MS = 200;
+
+interface Target {
+  url: string;
+  origin: string;
+  headers: Record<string, string>;
+  localAddress?: string;
+}
+
+function connect({ url, origin, headers, localAddress }: Target): Promise<WebSocket> {
+  const ws = new WebSocket(url, { origin, headers, localAddress });
+  return new Promise((resolve, reject) => {
+    ws.once("open", () => resolve(ws));
+    ws.once("error", reject);
+    ws.once("unexpected-response", (_req, res) => reject(new Error(`upgrade refused: ${res.statusCode}`)));
+  });
+}
+
 /** A scripted stage or pad: records every server message and waits for the ones the script expects. */
 export class ScriptedSocket {
   readonly messages: ServerMessage[] = [];
   closed: { code: number; reason: string } | null = null;
+  /** Every close the socket saw, reconnected or not (codes in order). */
+  readonly closes: number[] = [];
+  /** Times the socket came back by itself (see stayConnected). */
+  reconnects = 0;
   private waiters: { match: (m: ServerMessage) => boolean; resolve: (m: ServerMessage) => void }[] = [];
   private closeWaiters: ((c: { code: number }) => void)[] = [];
+  private hello: (() => unknown) | null = null;
+  private stopping = false;
 
-  private constructor(readonly ws: WebSocket) {
+  private constructor(
+    public ws: WebSocket,
+    private readonly target: Target,
+  ) {
+    this.listen(ws);
+  }
+
+  private listen(ws: WebSocket) {
     ws.on("message", (data) => {
       const m = JSON.parse(String(data)) as ServerMessage;
       this.messages.push(m);
       this.waiters = this.waiters.filter((w) => (w.match(m) ? (w.resolve(m), false) : true));
     });
     ws.on("close", (code, reason) => {
+      this.closes.push(code);
+      if (this.hello && !this.stopping && !FINAL_CLOSES.has(code)) return void this.comeBack();
       this.closed = { code, reason: String(reason) };
       for (const w of this.closeWaiters) w({ code });
     });
   }
 
-  static open(base: string, origin = base, headers: Record<string, string> = {}): Promise<ScriptedSocket> {
-    const ws = new WebSocket(`${base.replace(/^http/, "ws")}/ws`, { origin, headers });
-    return new Promise((resolve, reject) => {
-      ws.once("open", () => resolve(new ScriptedSocket(ws)));
-      ws.once("error", reject);
-      ws.once("unexpected-response", (_req, res) => reject(new Error(`upgrade refused: ${res.statusCode}`)));
-    });
+  /**
+   * `localAddress`: the loopback address to connect from, so many classes need not share one address's limits.
+   * `room`: the code the real pages put in the URL, which a load balancer routes on.
+   */
+  static async open(base: string, origin = base, headers: Record<string, string> = {}, localAddress?: string, room?: string): Promise<ScriptedSocket> {
+    const target = { url: `${base.replace(/^http/, "ws")}/ws${room ? `?room=${room}` : ""}`, origin, headers, localAddress };
+    return new ScriptedSocket(await connect(target), target);
+  }
+
+  /**
+   * Reconnects by itself as the real page does, after any close that is not final (a node that died
+   * or gave up the room, 1006 or 1012), saying `hello()` again: a pad's seat token, the stage's host key.
+   */
+  stayConnected(hello: () => unknown) {
+    this.hello = hello;
+  }
+
+  private async comeBack() {
+    const until = Date.now() + RECONNECT_FOR_MS;
+    while (!this.stopping && Date.now() < until) {
+      await new Promise((r) => setTimeout(r, RECONNECT_EVERY_MS));
+      try {
+        this.ws = await connect(this.target);
+      } catch {
+        continue;
+      }
+      this.listen(this.ws);
+      this.reconnects += 1;
+      this.send(this.hello!());
+      return;
+    }
+    this.closed = { code: 1006, reason: "could not reconnect" };
+    for (const w of this.closeWaiters) w(this.closed);
   }
 
   send(message: unknown) {
@@ -80,6 +143,7 @@ export class ScriptedSocket {
   }
 
   close() {
+    this.stopping = true;
     this.ws.close();
   }
 }
@@ -120,26 +184,43 @@ export async function openTestRoom(db: Db, overrides: TestSettings = {}) {
   return { id, code, config };
 }
 
-export async function openStage(url: string, secret: string, room: { id: string; code: string }) {
-  const stage = await ScriptedSocket.open(url);
-  stage.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "host", room: room.code, hostKey: hostKeyFor(secret, room.id) });
+/** `reconnect`: the stage comes back by itself after a close that is not final, as the real one does. */
+export async function openStage(url: string, secret: string, room: { id: string; code: string }, localAddress?: string, { reconnect = false } = {}) {
+  const stage = await ScriptedSocket.open(url, url, {}, localAddress, room.code);
+  const hello = { type: "hello", protocol: PROTOCOL_VERSION, role: "host", room: room.code, hostKey: hostKeyFor(secret, room.id) };
+  stage.send(hello);
   await stage.next("welcome");
+  if (reconnect) stage.stayConnected(() => hello);
   return stage;
 }
 
-export async function joinPlayer(url: string, code: string, nickname: string) {
-  const pad = await ScriptedSocket.open(url);
+/** `reconnect`: the pad comes back by itself with its seat token, as the real one does. */
+export async function joinPlayer(url: string, code: string, nickname: string, localAddress?: string, { reconnect = false } = {}) {
+  const pad = await ScriptedSocket.open(url, url, {}, localAddress, code);
   pad.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: code });
   await pad.next("welcome");
   pad.send({ type: "join", room: code, nickname });
   const welcome = await pad.next("welcome", (m) => m.you !== null);
-  return { pad, you: welcome.you! };
+  const you = welcome.you!;
+  if (reconnect) pad.stayConnected(() => ({ type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: code, seatToken: you.seatToken }));
+  return { pad, you };
 }
 
 /** Waits until the prompt is open on the server's clock (the pad would show it then). */
 export async function untilShown(showAt: number) {
   const wait = showAt - Date.now() + 5;
   if (wait > 0) await new Promise((r) => setTimeout(r, wait));
+}
+
+/** The stage starts the round and the pad taps the first note's home spot: resolves once the stage shows its reveal. */
+export async function answerFirstPrompt(stage: ScriptedSocket, pad: ScriptedSocket, room: { config: RoomConfig }) {
+  stage.send({ type: "host", action: "start" });
+  const prompt = await pad.next("prompt");
+  await untilShown(prompt.showAt);
+  pad.send({ type: "answer", promptId: prompt.promptId, spot: spotOf(room.config.prompts[0]!.home), tapAt: Date.now() });
+  const ack = await pad.next("answer-ack");
+  if (!ack.accepted) throw new Error(`the home spot was refused: ${ack.message}`);
+  await stage.next("reveal");
 }
 
 /** Only what a pad sends: the protocol refuses extra fields. */

@@ -2,7 +2,7 @@ import { createServer, type Server } from "node:http";
 import type { AddressInfo } from "node:net";
 import { afterEach, describe, expect, it } from "vitest";
 import { WebSocket } from "ws";
-import { attachSockets, type SocketHost } from "./sockets";
+import { attachSockets, socketRoomOf, type SocketHost } from "./sockets";
 
 const HEARTBEAT = 320;
 let server: Server;
@@ -54,5 +54,27 @@ describe("heartbeat", () => {
     const largestMoment = Math.max(...[...new Set(firsts)].map((m) => firsts.filter((x) => x === m).length));
     expect(largestMoment).toBeLessThanOrEqual(4);
     for (const ws of sockets) ws.close();
+  });
+});
+
+describe("socket paths", () => {
+  it.each([
+    ["/ws", null],
+    ["/ws?room=KMNPRT", "KMNPRT"],
+    ["/ws?room=kmn-prt", "KMNPRT"],
+    ["/ws/KMNPRT", "KMNPRT"],
+    ["/ws/kmnprt?x=1", "KMNPRT"],
+    ["/ws/", null],
+    ["/ws/KMNPRT/more", undefined],
+    ["/wsx", undefined],
+    ["/play/KMNPRT", undefined],
+  ])("%s names room %s", (url, room) => {
+    expect(socketRoomOf(url)).toBe(room);
+  });
+
+  it("upgrades on /ws, /ws?room= and /ws/<code>, and refuses other paths", async () => {
+    const url = await start();
+    for (const path of ["", "?room=KMNPRT", "/KMNPRT"]) (await open(url + path)).close();
+    await expect(open(url.replace(/\/ws$/, "/play/KMNPRT"))).rejects.toThrow(/404/);
   });
 });

@@ -1,6 +1,7 @@
 import type { IncomingMessage, Server } from "node:http";
 import type { Duplex } from "node:stream";
 import { WebSocketServer, type WebSocket } from "ws";
+import { normaliseRoomCode } from "~/game/roomCode";
 
 export const HEARTBEAT_MS = 15_000;
 /**
@@ -19,6 +20,26 @@ export interface SocketHost {
   close(): Promise<void>;
 }
 
+/**
+ * The room code a WebSocket URL names: `/ws?room=<CODE>` or `/ws/<CODE>`; null for a bare `/ws`
+ * (older pages, which name the room only in their hello); undefined when the path is not a socket path
+ * at all. The code in the URL is what a load balancer routes on (server/cluster/nginx.ts); the hello
+ * still decides which room the socket joins.
+ */
+export function socketRoomOf(url: string): string | null | undefined {
+  let parsed: URL;
+  try {
+    parsed = new URL(url, "http://socket.invalid");
+  } catch {
+    return undefined;
+  }
+  const inPath = /^\/ws(?:\/([^/]+))?\/?$/.exec(parsed.pathname);
+  if (!inPath) return undefined;
+  // Room codes are plain letters and digits: nothing to percent-decode.
+  const code = inPath[1] ?? parsed.searchParams.get("room");
+  return code ? normaliseRoomCode(code) : null;
+}
+
 /** Answers an upgrade that will not become a WebSocket, and ends the connection once that is written. */
 function refuseUpgrade(socket: Duplex, status: string, headers: string[] = [], body = "") {
   const bytes = Buffer.from(body);
@@ -28,7 +49,7 @@ function refuseUpgrade(socket: Duplex, status: string, headers: string[] = [], b
 }
 
 /**
- * The WebSocket server on /ws: we handle the upgrade ourselves (noServer) so other upgrade
+ * The WebSocket server on /ws (and /ws/<code>): we handle the upgrade ourselves (noServer) so other upgrade
  * paths are refused (404, connection closed), and a ping every heartbeat ends peers that stopped answering.
  */
 export function attachSockets(
@@ -37,6 +58,8 @@ export function attachSockets(
     allowOrigin: (req: IncomingMessage) => boolean;
     /** Counts the connection against its address's limit; a refusal is answered 429. */
     admit?: (req: IncomingMessage) => Promise<{ retryAfter: number; message: string } | undefined>;
+    /** Cluster mode: hands the upgrade to the room's owner (server/cluster/forward.ts); true when it did. */
+    divert?: (req: IncomingMessage, socket: Duplex, head: Buffer) => Promise<boolean>;
     maxPayload: number;
     heartbeatMs?: number;
     closeGraceMs?: number;
@@ -47,16 +70,22 @@ export function attachSockets(
   const slices = Array.from({ length: HEARTBEAT_SLICES }, () => new Set<WebSocket>());
   let joined = 0;
   let tick = 0;
-  // Upgrades still waiting for their admission check: stopping cuts them off too.
+  // Upgrades still waiting for their admission check or piped to another node: stopping cuts them off too.
   const pending = new Set<Duplex>();
 
   server.on("upgrade", (req: IncomingMessage, socket: Duplex, head: Buffer) => {
-    const path = (req.url ?? "").split("?")[0];
     // Nothing else upgrades on this server (Vite's HMR in development has a port of its own).
-    if (path !== "/ws") return refuseUpgrade(socket, "404 Not Found", [], "WebSocket connections are made on /ws.");
+    if (socketRoomOf(req.url ?? "") === undefined) return refuseUpgrade(socket, "404 Not Found", [], "WebSocket connections are made on /ws.");
     if (!opts.allowOrigin(req)) return refuseUpgrade(socket, "403 Forbidden");
     pending.add(socket);
     void (async () => {
+      // Piped to the room's owner, which counts it against the address's limit; kept in `pending`
+      // while it lasts, so stopping cuts it off too.
+      if (await opts.divert?.(req, socket, head).catch(() => false)) {
+        if (socket.destroyed) pending.delete(socket);
+        else socket.once("close", () => pending.delete(socket));
+        return;
+      }
       const refused = await opts.admit?.(req);
       pending.delete(socket);
       if (refused) return refuseUpgrade(socket, "429 Too Many Requests", [`Retry-After: ${refused.retryAfter}`], refused.message);

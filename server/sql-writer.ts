@@ -22,8 +22,9 @@ function stopThread(worker: Worker) {
   return exited;
 }
 
-export type WriterRequest = { type: "batch"; id: number; statements: InStatement[] } | { type: "close" };
-export type WriterReply = { type: "ready" } | { type: "done"; id: number; error: string | null };
+/** `returning`: the reply carries the last statement's rows (as arrays of values). */
+export type WriterRequest = { type: "batch"; id: number; statements: InStatement[]; returning?: boolean } | { type: "close" };
+export type WriterReply = { type: "ready" } | { type: "done"; id: number; error: string | null; rows?: unknown[][] };
 
 interface Target {
   url: string;
@@ -41,7 +42,7 @@ export class SqlWriter {
   private checkpointer: Worker | null = null;
   private closing = false;
   private nextId = 0;
-  private readonly waiting = new Map<number, (error: Error | null) => void>();
+  private readonly waiting = new Map<number, (error: Error | null, rows?: unknown[][]) => void>();
   /** Settles when the first writer thread (and the checkpointer) have the database open, or one failed to. */
   readonly ready: Promise<void>;
 
@@ -56,10 +57,19 @@ export class SqlWriter {
 
   /** Resolves once committed; rejects with the database's error (nothing of the batch is kept then). */
   run(statements: InStatement[]): Promise<void> {
+    return this.post(statements, false).then(() => {});
+  }
+
+  /** The same, for a batch whose last statement returns rows (… RETURNING): resolves with them. */
+  query(statements: InStatement[]): Promise<unknown[][]> {
+    return this.post(statements, true);
+  }
+
+  private post(statements: InStatement[], returning: boolean): Promise<unknown[][]> {
     const id = ++this.nextId;
     return new Promise((resolve, reject) => {
-      this.waiting.set(id, (error) => (error ? reject(error) : resolve()));
-      this.thread().postMessage({ type: "batch", id, statements } satisfies WriterRequest);
+      this.waiting.set(id, (error, rows) => (error ? reject(error) : resolve(rows ?? [])));
+      this.thread().postMessage({ type: "batch", id, statements, returning } satisfies WriterRequest);
     });
   }
 
@@ -70,7 +80,7 @@ export class SqlWriter {
       if (reply.type !== "done") return;
       const done = this.waiting.get(reply.id);
       this.waiting.delete(reply.id);
-      done?.(reply.error === null ? null : new Error(reply.error));
+      done?.(reply.error === null ? null : new Error(reply.error), reply.rows);
     });
     const lost = (why: string) => {
       if (this.worker !== worker) return;

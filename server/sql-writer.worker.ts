@@ -28,8 +28,9 @@ port.on("message", (m: WriterRequest) => {
     let reply: WriterReply;
     try {
       // "write" = BEGIN IMMEDIATE … COMMIT.
-      await db.$client.batch(m.statements as InStatement[], "write");
-      reply = { type: "done", id: m.id, error: null };
+      const results = await db.$client.batch(m.statements as InStatement[], "write");
+      const rows = m.returning ? results.at(-1)?.rows.map((row) => Array.from(row)) : undefined;
+      reply = { type: "done", id: m.id, error: null, rows };
     } catch (error) {
       reply = { type: "done", id: m.id, error: error instanceof Error ? error.message : String(error) };
     }

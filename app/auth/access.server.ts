@@ -7,7 +7,7 @@
 import { and, eq, inArray } from "drizzle-orm";
 import { data } from "react-router";
 import type { Db } from "~/db/client.server";
-import { classes, memberships, readingSets, rooms, tunes, users } from "~/db/schema";
+import { classes, memberships, readingSets, rooms, tunes, users, type Role } from "~/db/schema";
 import { readingPreset } from "~/reading/presets";
 import { builtinTune } from "~/tunes/builtin";
 import type { SessionUser } from "./users.server";
@@ -32,6 +32,13 @@ function enforce(access: Access, what: keyof typeof FORBIDDEN) {
   if (access === "missing") throw data({ error: `No such ${what}.` }, { status: 404, headers });
   throw data({ error: FORBIDDEN[what] }, { status: 403, statusText: "Forbidden", headers });
 }
+
+/**
+ * Who may teach: teachers, and admins too — a new studio's admin is its first teacher, so they can be
+ * given classes and host rounds. Every "is this account a teacher" check asks this.
+ */
+export const TEACHING_ROLES = ["teacher", "admin"] as const satisfies readonly Role[];
+export const mayTeach = (role: Role) => (TEACHING_ROLES as readonly Role[]).includes(role);
 
 async function teaches(db: Db, userId: string, classId: string) {
   const [row] = await db
@@ -59,7 +66,10 @@ async function classWithAccess(db: Db, user: SessionUser, classId: string) {
   return { cls, access: verdict(Boolean(cls), allowed) };
 }
 
-/** Teaching a class — its roster, review, exports, assignments, home-spot maps, rounds and sets for it: its teachers (every one of them) and the school's admins. */
+/**
+ * Teaching a class — its roster, review, exports, assignments, home-spot maps, rounds and sets for it, and its
+ * students' sign-in cards and the devices those cards signed in: its teachers (every one of them) and the school's admins.
+ */
 export async function canTeachClass(db: Db, user: SessionUser, classId: string): Promise<Access> {
   return (await classWithAccess(db, user, classId)).access;
 }

@@ -1,6 +1,7 @@
 import { data, redirect, type RouterContextProvider } from "react-router";
 import { services } from "~/context";
 import type { Role } from "~/db/schema";
+import { mayTeach } from "./access.server";
 import { userIdForToken } from "./tokens.server";
 import { getUserById, type SessionUser } from "./users.server";
 
@@ -33,10 +34,10 @@ export async function requireUser(request: Request, context: Ctx): Promise<Sessi
   throw redirect(`/signin?${new URLSearchParams({ redirectTo: url.pathname + url.search })}`);
 }
 
-/** 403 for a signed-in user of another role; admins pass every teacher check. */
+/** 403 for a signed-in user of another role; whoever `mayTeach` passes every teacher check. */
 export async function requireUserWithRole(request: Request, context: Ctx, roles: readonly Role[]) {
   const user = await requireUser(request, context);
-  const allowed = roles.includes(user.role) || (user.role === "admin" && roles.includes("teacher"));
+  const allowed = roles.includes(user.role) || (mayTeach(user.role) && roles.includes("teacher"));
   if (!allowed) {
     throw data(
       { error: `This page is for ${roles.join(" or ")} accounts.` },

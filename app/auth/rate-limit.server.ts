@@ -1,30 +1,32 @@
 /**
- * Every rate limit of the server, in one place. Counters live in memory (rate-limiter-flexible's
- * RateLimiterMemory): enough for one server process, and a restart only forgives early.
+ * Every rate limit of the server, in one place. Counters live where `createLimits` is told: in
+ * memory for one process (a restart only forgives early), or in Redis when several nodes share
+ * them (app/cluster/shared.server.ts), so a guesser gains nothing by being spread over the nodes.
  *
  * Addresses are the client's real address (TRUST_PROXY decides how far X-Forwarded-For is
  * believed), and a whole school may sit behind one: per-address limits are generous, and what
  * protects one account is counted per account *and* address, so a stranger's failures never
  * lock its owner out.
  */
-import { RateLimiterMemory, RateLimiterRes } from "rate-limiter-flexible";
+import { RateLimiterRes, type RateLimiterAbstract } from "rate-limiter-flexible";
 import { data } from "react-router";
+import { memoryLimiter, type MakeLimiter } from "~/cluster/shared.server";
+import { plural } from "~/lib/plural";
 
 const MINUTE = 60;
 const HOUR = 60 * MINUTE;
 
 /** A limiter with the sentence a person reads when it refuses, given the wait. */
 export interface Limit {
-  limiter: RateLimiterMemory;
+  limiter: RateLimiterAbstract;
   message: (wait: string) => string;
 }
 
-const limit = (keyPrefix: string, points: number, duration: number, message: Limit["message"]): Limit => ({
-  limiter: new RateLimiterMemory({ keyPrefix, points, duration }),
-  message,
-});
-
-export function createLimits() {
+export function createLimits(makeLimiter: MakeLimiter = memoryLimiter) {
+  const limit = (keyPrefix: string, points: number, duration: number, message: Limit["message"]): Limit => ({
+    limiter: makeLimiter({ keyPrefix, points, duration }),
+    message,
+  });
   return {
     signIn: {
       /** Failed sign-ins of one account from one address: the guesser is slowed, nobody else. */
@@ -33,6 +35,14 @@ export function createLimits() {
       account: limit("signin-account", 50, 15 * MINUTE, (w) => `Sign-ins to this account are slowed for ${w}.`),
       /** Failed sign-ins from one address, any account: generous, a school shares one address. */
       address: limit("signin-address", 200, 15 * MINUTE, (w) => `Too many failed sign-ins from this network. Try again in ${w}.`),
+    },
+    cards: {
+      /** Failed sign-ins with one class code from one address: a guesser of personal codes is slowed, nobody else. */
+      pair: limit("cards-pair", 10, 15 * MINUTE, (w) => `Too many wrong codes for this class from here. Try again in ${w}.`),
+      /** Failed card sign-ins with one class code from anywhere: past this each attempt waits a moment, none is refused. */
+      class: limit("cards-class", 100, 15 * MINUTE, (w) => `Sign-ins with this class code are slowed for ${w}.`),
+      /** Failed card sign-ins and card links that open nothing, per address: generous, a class shares one address. */
+      address: limit("cards-address", 100, 15 * MINUTE, (w) => `Too many wrong sign-in card codes from this network. Try again in ${w}.`),
     },
     signUp: limit("signup", 10, HOUR, (w) => `Too many new studios from this network. Try again in ${w}.`),
     reset: {
@@ -64,9 +74,9 @@ export interface Refusal {
 
 /** "40 seconds", "1 minute", "12 minutes". */
 export function waitWords(seconds: number) {
-  if (seconds < 60) return `${seconds} second${seconds === 1 ? "" : "s"}`;
+  if (seconds < 60) return plural(seconds, "second");
   const minutes = Math.ceil(seconds / 60);
-  return `${minutes} minute${minutes === 1 ? "" : "s"}`;
+  return plural(minutes, "minute");
 }
 
 function refusal(l: Limit, res: RateLimiterRes): Refusal {

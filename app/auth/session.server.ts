@@ -1,7 +1,7 @@
 // Sessions live on the server (docs/decisions/0004-server-side-sessions.md): the cookie carries a
 // random id, the `sessions` table a SHA-256 of it, so a session can be ended from anywhere and a
 // copy of the database opens none.
-import { and, eq, lte, ne, or } from "drizzle-orm";
+import { and, desc, eq, inArray, isNotNull, lte, ne, or, type SQL } from "drizzle-orm";
 import { nanoid } from "nanoid";
 import { createSessionStorage as createRouterSessionStorage, redirect } from "react-router";
 import type { Db, Writer } from "~/db/client.server";
@@ -13,6 +13,8 @@ export interface SessionData {
   userId: string;
   /** Set only while a session is being created; the table keeps it. */
   device?: string;
+  /** The sign-in card that opened the session (a device session), set as `device` is. */
+  cardId?: string;
 }
 export interface SessionFlash {
   notice: string;
@@ -30,6 +32,9 @@ export interface SessionOptions {
   secure: boolean;
   maxDays: number;
   idleDays: number;
+  /** A sign-in card's device session: a phone at home should not ask a child to sign in every week. */
+  cardMaxDays: number;
+  cardIdleDays: number;
 }
 
 /** Whether a stored session is still good at `now`, and whether its last-seen should move. */
@@ -39,8 +44,8 @@ export function sessionState(row: { lastSeenAt: Date; expiresAt: Date; idleExpir
 }
 
 export function createSessionStorage(db: Db, options: SessionOptions) {
-  const idleMs = options.idleDays * DAY_MS;
-  const flashOf = ({ userId: _u, device: _d, ...flash }: Record<string, unknown>) =>
+  const idleMs = (cardId: string | null | undefined) => (cardId ? options.cardIdleDays : options.idleDays) * DAY_MS;
+  const flashOf = ({ userId: _u, device: _d, cardId: _c, ...flash }: Record<string, unknown>) =>
     Object.keys(flash).length ? flash : null;
   return createRouterSessionStorage<SessionData, SessionFlash>({
     cookie: {
@@ -54,7 +59,7 @@ export function createSessionStorage(db: Db, options: SessionOptions) {
       maxAge: Math.round((options.maxDays * DAY_MS) / 1000),
     },
     async createData(data) {
-      const { userId, device } = data as Partial<SessionData>;
+      const { userId, device, cardId } = data as Partial<SessionData>;
       if (!userId) throw new Error("A session is stored only for a signed-in user.");
       const at = Date.now();
       // Expired rows go whenever a new one comes, so the table holds only live sessions.
@@ -65,11 +70,12 @@ export function createSessionStorage(db: Db, options: SessionOptions) {
         tokenHash: hashToken(id),
         userId,
         device: device ?? deviceLabel(null),
+        cardId: cardId ?? null,
         flash: flashOf(data),
         createdAt: new Date(at),
         lastSeenAt: new Date(at),
-        expiresAt: new Date(at + options.maxDays * DAY_MS),
-        idleExpiresAt: new Date(at + idleMs),
+        expiresAt: new Date(at + (cardId ? options.cardMaxDays : options.maxDays) * DAY_MS),
+        idleExpiresAt: new Date(at + idleMs(cardId)),
       });
       return id;
     },
@@ -86,7 +92,7 @@ export function createSessionStorage(db: Db, options: SessionOptions) {
       if (state === "touch") {
         await db
           .update(userSessions)
-          .set({ lastSeenAt: new Date(at), idleExpiresAt: new Date(at + idleMs) })
+          .set({ lastSeenAt: new Date(at), idleExpiresAt: new Date(at + idleMs(row.cardId)) })
           .where(eq(userSessions.tokenHash, tokenHash));
       }
       return { ...row.flash, userId: row.userId };
@@ -109,17 +115,26 @@ export function homeFor(role: Role): string {
 
 /**
  * Signs a user in with a fresh session (never one the visitor already held, so a planted cookie
- * can't be carried into an account); a session the browser had before is ended.
+ * can't be carried into an account); a session the browser had before is ended. With `card`, a
+ * sign-in card's device session, whose cookie lives as long as the card session may.
  */
-export async function startSession(storage: SessionStorage, request: Request, userId: string, to: string) {
+export async function startSession(
+  storage: SessionStorage,
+  request: Request,
+  userId: string,
+  to: string,
+  card?: { id: string; maxDays: number },
+) {
   const previous = await storage.getSession(request.headers.get("Cookie"));
   if (previous.id) await storage.destroySession(previous);
   const session = await storage.getSession();
   session.set("userId", userId);
   session.set("device", deviceLabel(request.headers.get("User-Agent")));
+  if (card) session.set("cardId", card.id);
   // Behind a trusted proxy the request's own scheme counts too (Express sets it from X-Forwarded-Proto).
   const overHttps = new URL(request.url).protocol === "https:";
-  return redirect(to, { headers: { "Set-Cookie": await storage.commitSession(session, overHttps ? { secure: true } : {}) } });
+  const cookie = { ...(overHttps ? { secure: true } : {}), ...(card ? { maxAge: Math.round((card.maxDays * DAY_MS) / 1000) } : {}) };
+  return redirect(to, { headers: { "Set-Cookie": await storage.commitSession(session, cookie) } });
 }
 
 /** Ends the request's session on the server and clears the cookie. */
@@ -136,11 +151,12 @@ export async function currentSessionId(db: Db, storage: SessionStorage, request:
   return row?.id;
 }
 
-/** A user's live sessions, most recently active first. */
-export async function listSessions(db: Db, userId: string, now = Date.now()) {
+/** The live sessions that match, most recently active first. */
+async function liveSessions(db: Db, where: SQL, now: number) {
   const rows = await db
     .select({
       id: userSessions.id,
+      cardId: userSessions.cardId,
       device: userSessions.device,
       createdAt: userSessions.createdAt,
       lastSeenAt: userSessions.lastSeenAt,
@@ -148,10 +164,13 @@ export async function listSessions(db: Db, userId: string, now = Date.now()) {
       idleExpiresAt: userSessions.idleExpiresAt,
     })
     .from(userSessions)
-    .where(eq(userSessions.userId, userId))
-    .orderBy(userSessions.lastSeenAt);
-  return rows.filter((r) => sessionState(r, now) !== "expired").reverse();
+    .where(where)
+    .orderBy(desc(userSessions.lastSeenAt));
+  return rows.filter((r) => sessionState(r, now) !== "expired");
 }
+
+/** A user's live sessions, most recently active first. */
+export const listSessions = (db: Db, userId: string, now = Date.now()) => liveSessions(db, eq(userSessions.userId, userId), now);
 
 /** Ends one of the user's sessions by its handle; false when there is no such session of theirs. */
 export async function endSessionById(db: Writer, userId: string, id: string) {
@@ -169,4 +188,26 @@ export async function endSessionsOf(db: Writer, userId: string, keep?: string) {
     .where(and(eq(userSessions.userId, userId), keep ? ne(userSessions.id, keep) : undefined))
     .returning({ id: userSessions.id });
   return ended.length;
+}
+
+// ---- sessions a sign-in card opened (docs/decisions/0008-sign-in-cards.md) ----
+
+/** The live sessions the cards opened, most recently active first. */
+export async function listCardSessions(db: Db, cardIds: string[], now = Date.now()) {
+  return cardIds.length ? liveSessions(db, inArray(userSessions.cardId, cardIds), now) : [];
+}
+
+/** Ends every session the cards opened (by name: a pooled connection may lack foreign keys). */
+export async function endCardSessions(db: Writer, cardIds: string[]) {
+  if (cardIds.length) await db.delete(userSessions).where(inArray(userSessions.cardId, cardIds));
+}
+
+/** Ends one session that a card opened for one of `userIds`; false when there is no such session. */
+export async function endCardSession(db: Writer, id: string, userIds: string[]) {
+  if (!userIds.length) return false;
+  const ended = await db
+    .delete(userSessions)
+    .where(and(eq(userSessions.id, id), isNotNull(userSessions.cardId), inArray(userSessions.userId, userIds)))
+    .returning({ id: userSessions.id });
+  return ended.length > 0;
 }

@@ -134,6 +134,12 @@ export async function consumePasswordReset(db: Db, token: string, password: stri
   });
 }
 
+/** Whether the user has a password at all (a student signed in by a sign-in card may have none). */
+export async function hasPassword(db: Db, userId: string) {
+  const [row] = await db.select({ passwordHash: users.passwordHash }).from(users).where(eq(users.id, userId));
+  return Boolean(row?.passwordHash);
+}
+
 /**
  * Changes the password of a signed-in user who proves the current one. The caller ends the user's
  * other sessions.

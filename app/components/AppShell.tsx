@@ -1,5 +1,6 @@
 import { Form, Link, NavLink, useMatches } from "react-router";
 import type { Role } from "~/db/schema";
+import { Icon } from "./Icon";
 
 interface ShellUser {
   displayName: string;
@@ -10,6 +11,9 @@ const navFor: Record<Role, { to: string; label: string }[]> = {
   admin: [
     { to: "/admin", label: "School" },
     { to: "/teach", label: "Teach" },
+    // A studio's admin teaches too.
+    { to: "/host", label: "Host a round" },
+    { to: "/teach/sets", label: "Reading sets" },
     { to: "/explore", label: "Neck explorer" },
   ],
   teacher: [
@@ -67,11 +71,21 @@ export function AppShell({
   return (
     <div className="flex min-h-dvh flex-col">
       <header className="no-print border-b-4 border-brass bg-rosewood text-paper">
-        <div className="mx-auto flex max-w-6xl flex-wrap items-center gap-x-6 gap-y-2 px-4 py-3">
-          <Link to="/" className="flex items-center gap-2 font-display text-2xl font-semibold tracking-wide">
-            <BrandMark />
+        <div className="mx-auto flex max-w-6xl flex-wrap items-center gap-x-6 gap-y-2 px-3 py-1.5 sm:px-4 sm:py-3">
+          <Link to="/" className="flex items-center gap-2 font-display text-xl font-semibold tracking-wide sm:text-2xl">
+            <BrandMark className="h-7 w-7 sm:h-8 sm:w-8" />
             Fretcall
           </Link>
+          {/* On a phone the menu folds behind one button (a checkbox, so it opens without JavaScript too), leaving the height to the page. */}
+          <input id="app-menu" type="checkbox" className="peer sr-only sm:hidden" />
+          <label
+            htmlFor="app-menu"
+            className="ml-auto inline-flex min-h-11 cursor-pointer items-center gap-2 rounded-full border border-paper/40 px-4 text-lg peer-focus-visible:outline-2 peer-focus-visible:outline-brass sm:hidden"
+          >
+            <Icon name="menu" className="h-5 w-5" />
+            Menu
+          </label>
+          <div className="hidden w-full flex-wrap items-center gap-x-6 gap-y-2 pb-2 peer-checked:flex sm:flex sm:flex-1 sm:pb-0">
           <nav aria-label="Main" className="flex flex-wrap gap-1 text-lg">
             {links.map((l) => (
               <NavLink
@@ -115,9 +129,10 @@ export function AppShell({
               </>
             )}
           </div>
+          </div>
         </div>
       </header>
-      <main className="mx-auto w-full max-w-6xl flex-1 px-4 py-6">{children}</main>
+      <main className="mx-auto w-full max-w-6xl flex-1 px-4 py-3 sm:py-6">{children}</main>
       <footer className="no-print border-t border-ink/10 px-4 py-4 text-center text-sm text-ink-soft">
         Fretcall · read the note, find the fret · take a short break every 20 minutes to rest your hands
       </footer>

@@ -21,6 +21,7 @@ import {
   type SortState,
   type TableQuery,
 } from "./dataTable";
+import { Icon } from "./Icon";
 
 export type { Column, SortState, TableQuery } from "./dataTable";
 
@@ -115,7 +116,8 @@ export function DataTable<T>({
         </div>
       )}
 
-      <div className="overflow-x-auto rounded-2xl border border-ink/10 bg-white/70">
+      {/* Focusable, so a keyboard can scroll a table wider than the screen. */}
+      <div className="overflow-x-auto rounded-2xl border border-ink/10 bg-white/70" tabIndex={0} role="region" aria-label={caption}>
         <table className="w-full border-collapse text-left">
           <caption className="sr-only">
             {caption}
@@ -130,9 +132,7 @@ export function DataTable<T>({
                   const label = (
                     <>
                       {c.header}
-                      <span aria-hidden="true" className={dir ? "" : "opacity-30"}>
-                        {dir === "asc" ? "▲" : dir === "desc" ? "▼" : "↕"}
-                      </span>
+                      <Icon name={dir === "asc" ? "sortUp" : dir === "desc" ? "sortDown" : "sortBoth"} className={`h-4 w-4 ${dir ? "" : "opacity-30"}`} />
                     </>
                   );
                   const control = "inline-flex min-h-11 items-center gap-1 rounded-lg hover:underline";

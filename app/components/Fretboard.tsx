@@ -4,6 +4,7 @@ import type { Spot } from "~/music/fretboard";
 import { displayPitchClass } from "~/music/pitch";
 import { spellInKey } from "~/music/keys";
 import type { Tuning } from "~/music/tuning";
+import { plural } from "~/lib/plural";
 import {
   fretboardLayout,
   heatShare,
@@ -139,7 +140,7 @@ export function Fretboard({
     return [
       spotWords(spot),
       h ? (h.label ? `${h.label}, ${KINDS[h.kind].words}` : KINDS[h.kind].words) : null,
-      n ? `${n} ${n === 1 ? "answer" : "answers"}` : null,
+      n ? plural(n, "answer") : null,
     ]
       .filter(Boolean)
       .join(", ");
@@ -168,6 +169,8 @@ export function Fretboard({
         <div
           ref={scroller}
           className="min-w-0 flex-1 overflow-x-auto overscroll-x-contain rounded-2xl"
+          // A neck with no spots to tab to still scrolls sideways: it takes the focus itself so arrow keys can scroll it.
+          {...(interactive ? {} : { tabIndex: 0, role: "region", "aria-label": `${name}, scrolls sideways` })}
           style={{ scrollbarGutter: "stable" }}
         >
           <svg
@@ -405,7 +408,8 @@ function Marker({ cell, highlight }: { cell: Rect; highlight: Highlight }) {
           textAnchor="middle"
           dominantBaseline="central"
           className="fill-white"
-          fontSize={Math.min(r * 0.8, 18)}
+          // Longer names ("Sol♯5", "Fisis5") shrink to stay inside the mark; "F♯5" keeps the full size.
+          fontSize={Math.min(r * 0.8, 18) * Math.min(1, 3.5 / [...highlight.label].length)}
           fontWeight={600}
         >
           {highlight.label}

@@ -37,7 +37,6 @@ function SpeakerIcon({ muted }: { muted: boolean }) {
 /** `compact` keeps only the mute button, for a bar that has no room; the full control sits elsewhere on the page. */
 export function SoundControl({ className = "", compact = false }: { className?: string; compact?: boolean }) {
   const { volumeDb, muted } = useSoundPrefs();
-  const id = useId();
   return (
     <div className={`flex flex-wrap items-center gap-x-4 gap-y-2 ${className}`}>
       <button
@@ -49,28 +48,61 @@ export function SoundControl({ className = "", compact = false }: { className?: 
         <SpeakerIcon muted={muted} />
         {muted ? "Sound off" : "Sound on"}
       </button>
-      {compact ? null : (
-        <>
-          <label htmlFor={id} className="flex min-h-11 items-center gap-2">
-            Volume
-            <input
-              id={id}
-              type="range"
-              min={MIN_VOLUME_DB}
-              max={MAX_VOLUME_DB}
-              step={1}
-              value={volumeDb}
-              disabled={muted}
-              aria-valuetext={`${volumeDb} decibels${volumeDb === MAX_VOLUME_DB ? ", the highest allowed" : ""}`}
-              onChange={(e) => setSoundPrefs({ volumeDb: Number(e.target.value) })}
-              className="w-32 accent-teal disabled:opacity-50"
-            />
-            <output htmlFor={id} className="w-16 tabular-nums text-ink-soft">
-              {String(volumeDb).replace("-", "−")} dB
-            </output>
-          </label>
-          <p className="text-sm text-ink-soft">Keep headphone volume moderate.</p>
-        </>
+      {compact ? null : <Volume volumeDb={volumeDb} disabled={muted} />}
+    </div>
+  );
+}
+
+/** The capped volume slider with the headphone caution beside it. */
+function Volume({ volumeDb, disabled }: { volumeDb: number; disabled: boolean }) {
+  const id = useId();
+  return (
+    <>
+      <label htmlFor={id} className="flex min-h-11 items-center gap-2">
+        Volume
+        <input
+          id={id}
+          type="range"
+          min={MIN_VOLUME_DB}
+          max={MAX_VOLUME_DB}
+          step={1}
+          value={volumeDb}
+          disabled={disabled}
+          aria-valuetext={`${volumeDb} decibels${volumeDb === MAX_VOLUME_DB ? ", the highest allowed" : ""}`}
+          onChange={(e) => setSoundPrefs({ volumeDb: Number(e.target.value) })}
+          className="w-32 accent-teal disabled:opacity-50"
+        />
+        <output htmlFor={id} className="w-16 tabular-nums text-ink-soft">
+          {String(volumeDb).replace("-", "−")} dB
+        </output>
+      </label>
+      <p className="text-sm text-ink-soft">Keep headphone volume moderate.</p>
+    </>
+  );
+}
+
+/**
+ * The pad's sound in a live round: off until the player turns it on (for headphones), remembered on this
+ * device; the class hears each note from the stage.
+ */
+export function PadSoundControl() {
+  const { volumeDb, padSound } = useSoundPrefs();
+  return (
+    <div className="flex flex-wrap items-center gap-x-4 gap-y-2">
+      <button
+        type="button"
+        aria-pressed={padSound}
+        // Turning it on means the player wants to hear it, whatever was muted elsewhere.
+        onClick={() => setSoundPrefs(padSound ? { padSound: false } : { padSound: true, muted: false })}
+        className={`inline-flex min-h-12 items-center gap-2 rounded-2xl border-2 px-4 text-lg font-medium ${padSound ? "border-teal bg-teal/10" : "border-ink/20"}`}
+      >
+        <SpeakerIcon muted={!padSound} />
+        {padSound ? "Sound on (headphones)" : "Sound off"}
+      </button>
+      {padSound ? (
+        <Volume volumeDb={volumeDb} disabled={false} />
+      ) : (
+        <p className="text-sm text-ink-soft">The class screen plays each note. Turn sound on to hear your taps in headphones.</p>
       )}
     </div>
   );

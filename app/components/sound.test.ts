@@ -3,7 +3,7 @@ import { clampVolume, DEFAULT_PREFS, MAX_VOLUME_DB, MIN_VOLUME_DB, parseSoundPre
 
 describe("sound preferences", () => {
   it("defaults to −12 dB, not muted", () => {
-    expect(DEFAULT_PREFS).toEqual({ volumeDb: -12, muted: false });
+    expect(DEFAULT_PREFS).toEqual({ volumeDb: -12, muted: false, padSound: false });
     expect(parseSoundPrefs(null)).toEqual(DEFAULT_PREFS);
   });
   it("never lets a stored volume above the cap through", () => {
@@ -17,7 +17,8 @@ describe("sound preferences", () => {
     expect(parseSoundPrefs("not json")).toEqual(DEFAULT_PREFS);
     expect(parseSoundPrefs("null")).toEqual(DEFAULT_PREFS);
     expect(parseSoundPrefs(JSON.stringify({ volumeDb: "loud", muted: "yes" }))).toEqual(DEFAULT_PREFS);
-    expect(parseSoundPrefs(JSON.stringify({ volumeDb: -30, muted: true }))).toEqual({ volumeDb: -30, muted: true });
+    expect(parseSoundPrefs(JSON.stringify({ volumeDb: -30, muted: true }))).toEqual({ volumeDb: -30, muted: true, padSound: false });
+    expect(parseSoundPrefs(JSON.stringify({ volumeDb: -30, muted: false, padSound: true })).padSound).toBe(true);
   });
 });
 

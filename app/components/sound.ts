@@ -10,10 +10,15 @@ export const MIN_VOLUME_DB = -40;
 export interface SoundPrefs {
   volumeDb: number;
   muted: boolean;
+  /**
+   * A pad in a live round sounds its taps only when its player asked for it (headphones): thirty phones
+   * playing at once drown the stage, which sounds each note at the reveal.
+   */
+  padSound: boolean;
 }
 
 const STORAGE_KEY = "fretcall-sound";
-export const DEFAULT_PREFS: SoundPrefs = { volumeDb: DEFAULT_VOLUME_DB, muted: false };
+export const DEFAULT_PREFS: SoundPrefs = { volumeDb: DEFAULT_VOLUME_DB, muted: false, padSound: false };
 
 export function clampVolume(db: number): number {
   if (!Number.isFinite(db)) return DEFAULT_VOLUME_DB;
@@ -26,10 +31,11 @@ export function parseSoundPrefs(raw: string | null): SoundPrefs {
   try {
     const value: unknown = JSON.parse(raw);
     if (typeof value !== "object" || value === null) return DEFAULT_PREFS;
-    const { volumeDb, muted } = value as Record<string, unknown>;
+    const { volumeDb, muted, padSound } = value as Record<string, unknown>;
     return {
       volumeDb: typeof volumeDb === "number" ? clampVolume(volumeDb) : DEFAULT_VOLUME_DB,
       muted: muted === true,
+      padSound: padSound === true,
     };
   } catch {
     return DEFAULT_PREFS;
@@ -104,7 +110,7 @@ export function getSoundPrefs(): SoundPrefs {
 
 export function setSoundPrefs(change: Partial<SoundPrefs>): void {
   const current = getSoundPrefs();
-  prefs = { volumeDb: clampVolume(change.volumeDb ?? current.volumeDb), muted: change.muted ?? current.muted };
+  prefs = { volumeDb: clampVolume(change.volumeDb ?? current.volumeDb), muted: change.muted ?? current.muted, padSound: change.padSound ?? current.padSound };
   try {
     localStorage.setItem(STORAGE_KEY, JSON.stringify(prefs));
   } catch {

@@ -1,6 +1,7 @@
 // Words for what the staff shows, for screen readers and captions, and the staff geometry the drawing needs.
 import { keyAlter, type PrintedAccidental } from "~/music/keys";
 import { LETTERS, spokenPitch, type Pitch } from "~/music/pitch";
+import { plural } from "~/lib/plural";
 
 /** Half-steps of the staff (line, space, line …) above the bottom line E4: 0 = bottom line, 8 = top line F5. */
 export function staffPosition(p: Pitch): number {
@@ -48,8 +49,6 @@ const ALTER_SIGNS: Readonly<Record<number, PrintedAccidental>> = {
 export function accidentalFor(p: Pitch, fifths: number): PrintedAccidental | null {
   return keyAlter(fifths, p.letter) === p.alter ? null : ALTER_SIGNS[p.alter]!;
 }
-
-const plural = (n: number, word: string) => `${n} ${word}${n === 1 ? "" : "s"}`;
 
 export function keySignatureWords(fifths: number): string {
   if (fifths === 0) return "no sharps or flats";

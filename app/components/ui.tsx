@@ -1,6 +1,7 @@
 // Shared building blocks. Every state carries a word or an icon as well as a colour.
 import type { ButtonHTMLAttributes, InputHTMLAttributes, ReactNode, SelectHTMLAttributes } from "react";
 import { Form } from "react-router";
+import { Icon, type IconName } from "./Icon";
 
 type Tone = "ink" | "brass" | "teal" | "brick" | "ghost";
 
@@ -68,7 +69,7 @@ function FieldFrame({ label, id, error, hint, children }: FieldFrameProps & { ch
       ) : null}
       {error ? (
         <p id={`${id}-error`} className="mt-1 text-sm font-medium text-brick">
-          <span aria-hidden="true">✗ </span>
+          <Icon name="cross" className="mr-1 inline h-4 w-4 align-[-0.15em]" />
           {error}
         </p>
       ) : null}
@@ -121,19 +122,17 @@ export function SelectField({
   );
 }
 
-const noticeTones = {
-  error: { box: "border-brick bg-brick/10", icon: "✗", word: "Problem" },
-  success: { box: "border-teal bg-teal/10", icon: "✓", word: "Done" },
-  info: { box: "border-sky bg-sky/10", icon: "i", word: "Note" },
+const noticeTones: Record<"error" | "success" | "info", { box: string; icon: IconName; word: string }> = {
+  error: { box: "border-brick bg-brick/10", icon: "cross", word: "Problem" },
+  success: { box: "border-teal bg-teal/10", icon: "check", word: "Done" },
+  info: { box: "border-sky bg-sky/10", icon: "info", word: "Note" },
 } as const;
 
 export function Notice({ tone, children }: { tone: keyof typeof noticeTones; children: ReactNode }) {
   const t = noticeTones[tone];
   return (
     <div role={tone === "error" ? "alert" : "status"} className={`flex gap-3 rounded-2xl border-2 p-3 ${t.box}`}>
-      <span aria-hidden="true" className="font-bold">
-        {t.icon}
-      </span>
+      <Icon name={t.icon} className="mt-0.5 h-5 w-5" />
       <span>
         <span className="sr-only">{t.word}: </span>
         {children}
@@ -154,11 +153,11 @@ export function NeedsJavaScript({ what }: { what: string }) {
   );
 }
 
-const badgeTones = {
-  right: { box: "bg-teal text-white", icon: "✓" },
-  miss: { box: "bg-brick text-white", icon: "✗" },
-  info: { box: "bg-sky/20 text-ink", icon: "i" },
-  neutral: { box: "bg-ink/10 text-ink", icon: "•" },
+const badgeTones: Record<"right" | "miss" | "info" | "neutral", { box: string; icon: IconName }> = {
+  right: { box: "bg-teal text-white", icon: "check" },
+  miss: { box: "bg-brick text-white", icon: "cross" },
+  info: { box: "bg-sky/20 text-ink", icon: "info" },
+  neutral: { box: "bg-ink/10 text-ink", icon: "dot" },
 } as const;
 
 /** A small state label: always an icon and a word, never a colour alone. */
@@ -166,7 +165,7 @@ export function Badge({ tone, children }: { tone: keyof typeof badgeTones; child
   const t = badgeTones[tone];
   return (
     <span className={`inline-flex items-center gap-1 rounded-full px-3 py-0.5 text-sm font-medium ${t.box}`}>
-      <span aria-hidden="true">{t.icon}</span>
+      <Icon name={t.icon} className="h-[1em] w-[1em]" />
       {children}
     </span>
   );
@@ -178,5 +177,14 @@ export function PageTitle({ children, lead }: { children: ReactNode; lead?: Reac
       <h1 className="font-display text-3xl font-semibold sm:text-4xl">{children}</h1>
       {lead ? <p className="mt-2 max-w-2xl text-lg text-ink-soft">{lead}</p> : null}
     </div>
+  );
+}
+
+/** Why the button beside it is disabled, in visible words (a tooltip reaches neither a phone nor every screen reader); point the button's aria-describedby at its id. */
+export function WhyDisabled({ id, children }: { id: string; children: ReactNode }) {
+  return (
+    <p id={id} className="text-sm text-ink-soft">
+      {children}
+    </p>
   );
 }

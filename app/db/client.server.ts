@@ -109,10 +109,15 @@ export async function migrateDb(db: Db, migrationsFolder = MIGRATIONS_FOLDER) {
   await fillAnswerVerdicts(db);
 }
 
-/** Writes the WAL back into the main file so a stopped server leaves one self-contained file. */
+/**
+ * Writes the WAL back into the main file so a stopped server leaves one self-contained file. Other
+ * nodes sharing the file may still be reading or writing: then it does what it can without waiting
+ * for them (the last node to stop leaves the file whole).
+ */
 export async function closeDb(db: Db) {
   try {
-    await db.$client.execute("PRAGMA wal_checkpoint(TRUNCATE)");
+    // One call, so both run on the same connection of the client's pool.
+    await db.$client.executeMultiple("PRAGMA busy_timeout = 0; PRAGMA wal_checkpoint(TRUNCATE);");
   } catch {
     // Remote databases have no WAL to checkpoint.
   }

@@ -28,8 +28,10 @@ async function copyOldRound(from: Db, to: Db, roomId: string, kept: object) {
   const [room] = await from.select().from(rooms).where(eq(rooms.id, roomId));
   const exec = (sql: string, args: (string | number | null)[]) => to.$client.execute({ sql, args });
   for (const table of ["organisations", "users", "classes"]) {
+    // Columns added after the older shape (organisations.note_naming) are left out: they did not exist then.
+    const then = new Set((await to.$client.execute(`PRAGMA table_info(${table})`)).rows.map((c) => String(c.name)));
     for (const row of (await from.$client.execute(`SELECT * FROM ${table}`)).rows) {
-      const cols = Object.keys(row).filter((c) => c !== "length");
+      const cols = Object.keys(row).filter((c) => c !== "length" && then.has(c));
       await exec(`INSERT INTO ${table} (${cols.join(", ")}) VALUES (${cols.map(() => "?").join(", ")})`, cols.map((c) => row[c] as string | number | null));
     }
   }

@@ -4,6 +4,7 @@ import { blob, index, integer, primaryKey, sqliteTable, text, uniqueIndex } from
 // Types only: drizzle-kit reads this file without the app's path aliases.
 import type { RoomRecord } from "~/game/room";
 import type { RoomConfig } from "~/game/roomConfig";
+import type { NoteNaming } from "~/music/naming";
 import type { SpotMap } from "~/music/positions";
 import type { RhythmScore } from "~/practice/rhythm";
 import type { ReadingSetSpec } from "~/reading/spec";
@@ -22,6 +23,10 @@ export type Role = (typeof ROLES)[number];
 export const organisations = sqliteTable("organisations", {
   id: text("id").primaryKey(),
   name: text("name").notNull(),
+  // How the school names notes in words (app/music/naming.ts); each student's device may choose its own.
+  noteNaming: text("note_naming", { enum: ["letters", "solfege", "german"] as const satisfies readonly NoteNaming[] })
+    .notNull()
+    .default("letters"),
   createdAt: createdAt(),
 });
 
@@ -98,6 +103,8 @@ export const userSessions = sqliteTable(
       .notNull()
       .references(() => users.id, { onDelete: "cascade" }),
     device: text("device").notNull(),
+    // Set when a sign-in card opened the session: a device session, ended with its card.
+    cardId: text("card_id").references(() => signInCards.id, { onDelete: "cascade" }),
     // React Router's flash values, kept until the next read.
     flash: text("flash", { mode: "json" }).$type<Record<string, unknown>>(),
     createdAt: createdAt(),
@@ -106,6 +113,31 @@ export const userSessions = sqliteTable(
     idleExpiresAt: integer("idle_expires_at", { mode: "timestamp_ms" }).notNull(),
   },
   (t) => [uniqueIndex("sessions_token_hash_unique").on(t.tokenHash), index("sessions_user_idx").on(t.userId)],
+);
+
+/**
+ * A student's sign-in card (docs/decisions/0008-sign-in-cards.md): one live card per student. The QR
+ * code's token is kept as a SHA-256, the short personal code as an HMAC keyed from SESSION_SECRET (a
+ * short code's plain hash could be found by trying them all). Re-issuing deletes the row, which ends
+ * the devices it signed in.
+ */
+export const signInCards = sqliteTable(
+  "sign_in_cards",
+  {
+    id: text("id").primaryKey(),
+    userId: text("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    tokenHash: text("token_hash").notNull(),
+    codeHash: text("code_hash").notNull(),
+    issuedBy: text("issued_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+  },
+  (t) => [
+    uniqueIndex("sign_in_cards_user_unique").on(t.userId),
+    uniqueIndex("sign_in_cards_token_unique").on(t.tokenHash),
+    uniqueIndex("sign_in_cards_code_unique").on(t.codeHash),
+  ],
 );
 
 // ---- live rounds ------------------------------------------------------------------------------
@@ -146,6 +178,30 @@ export const rooms = sqliteTable(
     index("rooms_class_idx").on(t.classId),
   ],
 );
+
+/**
+ * Cluster mode only (docs/decisions/0009-several-nodes.md): which node may write for a live room.
+ * A node that takes the room raises `fence` by one; every write batch for the room first checks
+ * that the fence is still the one its node took, so a node that lost the room writes nothing more.
+ */
+export const roomLeases = sqliteTable("room_leases", {
+  roomId: text("room_id")
+    .primaryKey()
+    .references(() => rooms.id, { onDelete: "cascade" }),
+  fence: integer("fence").notNull(),
+  nodeId: text("node_id").notNull(),
+  takenAt: integer("taken_at", { mode: "timestamp_ms" }).notNull(),
+});
+
+/**
+ * Never holds a row: inserting (room, fence) runs the trigger `room_fence_check` (migration
+ * room_leases), which aborts the statement, and so the write's whole transaction, unless that room's
+ * fence is still `fence`. Being a statement, the check runs inside the write's own transaction.
+ */
+export const roomFenceChecks = sqliteTable("room_fence_checks", {
+  roomId: text("room_id").notNull(),
+  fence: integer("fence").notNull(),
+});
 
 /** The room's event log: replaying it through the game reducer rebuilds the room after a restart. */
 export const roomEvents = sqliteTable(
@@ -329,6 +385,8 @@ export const assignments = sqliteTable(
     goalNotes: integer("goal_notes").notNull(),
     goalAccuracy: integer("goal_accuracy_pct").notNull(),
     goalMedianMs: integer("goal_median_ms"),
+    // Only answers played on a guitar (heard by the phone) count toward the goal.
+    playedOnly: integer("played_only", { mode: "boolean" }).notNull().default(false),
     dueAt: integer("due_at", { mode: "timestamp_ms" }).notNull(),
     createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
     remindedAt: integer("reminded_at", { mode: "timestamp_ms" }),
@@ -365,8 +423,13 @@ export const practiceAnswers = sqliteTable(
     tuning: text("tuning").notNull(),
     written: text("written").notNull(),
     writtenMidi: integer("written_midi").notNull(),
-    string: integer("string").notNull(),
-    fret: integer("fret").notNull(),
+    // How the answer was given: "tap" (the spot tapped: string and fret) or "played" (the sounding note a
+    // microphone heard: heardMidi and heardCents; a microphone cannot tell the string, so no spot).
+    input: text("input", { enum: ["tap", "played"] }).notNull().default("tap"),
+    string: integer("string"),
+    fret: integer("fret"),
+    heardMidi: integer("heard_midi"),
+    heardCents: integer("heard_cents"),
     kind: text("kind").notNull(),
     pitchRight: integer("pitch_right", { mode: "boolean" }).notNull(),
     reactionMs: integer("reaction_ms").notNull(),
@@ -386,7 +449,9 @@ export const rhythmAttempts = sqliteTable(
     tuneId: text("tune_id").notNull(),
     tempo: integer("tempo").notNull(),
     score: integer("score_pct").notNull(),
-    results: text("results", { mode: "json" }).$type<RhythmScore & { position: number }>().notNull(),
+    results: text("results", { mode: "json" }).$type<RhythmScore & { position: number; latencyMs?: number }>().notNull(),
+    // How the notes were given: taps on the screen, or played on the guitar and heard by the microphone.
+    input: text("input", { enum: ["tap", "played"] }).notNull().default("tap"),
     at: integer("at", { mode: "timestamp_ms" }).notNull(),
   },
   (t) => [index("rhythm_user_idx").on(t.userId)],

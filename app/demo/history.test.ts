@@ -2,6 +2,9 @@ import { describe, expect, it } from "vitest";
 import { migrateDb, openDb } from "~/db/client.server";
 import { answers, roomEvents, rooms } from "~/db/schema";
 import { loadRoomState } from "~/rooms/log.server";
+import { reviewInput } from "~/review/review.server";
+import { noteHeatmap } from "~/review/stats";
+import { demoEditedMap } from "./reading";
 import { seedDemo } from "../../server/seed";
 import { eq } from "drizzle-orm";
 
@@ -19,5 +22,11 @@ describe("demo history", () => {
       expect(replayed.answers.map((a) => [a.playerId, a.index, a.points, a.diagnosis.kind]).sort()).toEqual(stored.map((a) => [a.playerId, a.promptIndex, a.points, a.kind]).sort());
     }
     expect((await db.select().from(roomEvents)).length).toBeGreaterThan(500);
+
+    // Each class's rounds follow its own home-spot map: the Tuesday class's edited B4, the others' default one.
+    const homeOfB4 = async (classId: string) => noteHeatmap(await reviewInput(db, { classId })).find((c) => c.written === "B4")?.home;
+    const edited = demoEditedMap().spots.find((s) => s.written === "B4")!;
+    expect(await homeOfB4("demo-class-tue")).toEqual({ string: edited.string, fret: edited.fret });
+    expect(await homeOfB4("demo-class-sat")).toEqual({ string: 3, fret: 4 });
   });
 });

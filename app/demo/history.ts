@@ -15,6 +15,7 @@ import { keyAlter } from "~/music/keys";
 import { parsePitch } from "~/music/pitch";
 import { seededRandom } from "~/music/pools";
 import { resolveTuning } from "~/music/tuning";
+import { classSpotMap } from "~/reading/spotMaps.server";
 import { configFromSetup } from "~/rooms/rooms.server";
 import { parsedSetup, QUICK_DEFAULTS, type QuickSetup } from "~/rooms/setup";
 import { RoomLog, writeStatements, type StepWrites } from "~/rooms/store.server";
@@ -165,7 +166,9 @@ export async function seedHistory(db: Db) {
       const start = today.getTime() - (SESSIONS - week) * WEEK + c * 60 * 60 * 1000;
       const setup: QuickSetup = { ...QUICK_DEFAULTS, classId: cls.id, ...plan.weeks[week] };
       const roomCode = code(random);
-      const config = configFromSetup(parsedSetup(setup), roomCode, 1_000 + c * 10 + week);
+      // The class's own home-spot map, as a live round filed under the class would use it.
+      const spotMap = await classSpotMap(db, cls.id, setup.position, setup.tuning);
+      const config = configFromSetup(parsedSetup(setup), roomCode, 1_000 + c * 10 + week, spotMap);
       // Now and then somebody is away.
       const present = roster.filter(() => random() > 0.12);
       const writes = playRound(config, roomId, start, week, present, plan.trouble, random);

@@ -8,9 +8,12 @@ import {
   RATE_LIMIT_BURST,
   RATE_LIMIT_STRIKES,
   newRateBucket,
+  clientMessageSchema,
   parseClientMessage,
+  quickClientMessage,
   reconnectDelayMs,
-  parseServerMessage,
+  readServerMessage,
+  serverMessageSchema,
   takeToken,
   type ClientMessage,
   type RateBucket,
@@ -141,24 +144,41 @@ describe("parseClientMessage: size limit", () => {
   });
 });
 
-describe("parseServerMessage", () => {
-  it.each<[string, unknown]>([
-    ["pong", { type: "pong", t0: 1, t1: 2, t2: 3 }],
-    ["refused answer", { type: "answer-ack", promptId: "p1", accepted: false, code: "too-late", message: "Time was up." }],
-    ["paused", { type: "paused", phase: "paused", pausedFrom: "reveal", at: 5 }],
-    ["resumed", { type: "resumed", phase: "reveal" }],
-  ])("accepts %s", (_, message) => {
-    expect(parseServerMessage(JSON.stringify(message))).toEqual({ ok: true, message });
+const SERVER_MESSAGES: [string, unknown][] = [
+  ["pong", { type: "pong", t0: 1, t1: 2, t2: 3 }],
+  ["refused answer", { type: "answer-ack", promptId: "p1", accepted: false, code: "too-late", message: "Time was up." }],
+  ["paused", { type: "paused", phase: "paused", pausedFrom: "reveal", at: 5 }],
+  ["resumed", { type: "resumed", phase: "reveal" }],
+];
+
+describe("serverMessageSchema (what the server may send; its tests and room.test.ts hold every message to it)", () => {
+  it.each(SERVER_MESSAGES)("accepts %s", (_, message) => {
+    expect(serverMessageSchema.parse(message)).toEqual(message);
+  });
+
+  it.each([
+    ["unknown type", { type: "hello" }],
+    ["accepted answer without points", { type: "answer-ack", promptId: "p1", accepted: true }],
+    ["paused without the phase it paused in", { type: "paused", phase: "paused", at: 5 }],
+    ["a phase that is not one", { type: "resumed", phase: "lunch" }],
+  ])("refuses %s", (_, message) => {
+    expect(serverMessageSchema.safeParse(message).success).toBe(false);
+  });
+});
+
+describe("readServerMessage (the browser's light check)", () => {
+  it.each(SERVER_MESSAGES)("reads %s", (_, message) => {
+    expect(readServerMessage(JSON.stringify(message))).toEqual(message);
   });
 
   it.each([
     ["nonsense", "%%"],
-    ["unknown type", '{"type":"hello"}'],
-    ["accepted answer without points", '{"type":"answer-ack","promptId":"p1","accepted":true}'],
-    ["paused without the phase it paused in", '{"type":"paused","phase":"paused","at":5}'],
-    ["a phase that is not one", '{"type":"resumed","phase":"lunch"}'],
-  ])("refuses %s", (_, raw) => {
-    expect(parseServerMessage(raw).ok).toBe(false);
+    ["a bare number", "42"],
+    ["an array", '[{"type":"pong"}]'],
+    ["no type", '{"t0":1}'],
+    ["a type no server sends", '{"type":"hello"}'],
+  ])("skips %s", (_, raw) => {
+    expect(readServerMessage(raw)).toBeNull();
   });
 });
 
@@ -208,3 +228,54 @@ describe("reconnectDelayMs", () => {
     expect(reconnectDelayMs(retry, code, random)).toBe(ms);
   });
 });
+
+describe("quickClientMessage: the hand check of answers and pings agrees with their schemas", () => {
+  const answer = { type: "answer", promptId: "p3", spot: { string: 2, fret: 5 }, tapAt: 99_000.5 };
+  const ping = { type: "ping", t0: 1234.5, last: { t0: 1000, t3: 1150 } };
+  // Every field of both messages given values inside, at the edge of and outside its schema's rules.
+  const values: Record<string, unknown[]> = {
+    promptId: ["p", "x".repeat(32), "x".repeat(33), "", 7, null, ["p1"], undefined],
+    tapAt: [0, 1e12, -1, "99", null, true, undefined],
+    naming: ["letters", "solfege", "german", "Letters", "", 1, null, undefined],
+    string: [1, 12, 0, 13, 2.5, "2", null, undefined],
+    fret: [0, 24, -1, 25, 5.5, "5", null, undefined],
+    t0: [0, 5.25, -0.5, "1", null, undefined],
+    t3: [0, 99, -1, "99", null, undefined],
+  };
+  const variants: [string, unknown][] = [
+    ["answer", answer],
+    ["ping", ping],
+    ["ping without a report", { type: "ping", t0: 10 }],
+    ...values.promptId!.map((v): [string, unknown] => [`answer promptId ${JSON.stringify(v)}`, { ...answer, promptId: v }]),
+    ...values.tapAt!.map((v): [string, unknown] => [`answer tapAt ${JSON.stringify(v)}`, { ...answer, tapAt: v }]),
+    ...values.naming!.map((v): [string, unknown] => [`answer naming ${JSON.stringify(v)}`, { ...answer, naming: v }]),
+    ...values.string!.map((v): [string, unknown] => [`spot string ${JSON.stringify(v)}`, { ...answer, spot: { string: v, fret: 5 } }]),
+    ...values.fret!.map((v): [string, unknown] => [`spot fret ${JSON.stringify(v)}`, { ...answer, spot: { string: 2, fret: v } }]),
+    ...values.t0!.map((v): [string, unknown] => [`ping t0 ${JSON.stringify(v)}`, { ...ping, t0: v }]),
+    ...values.t3!.map((v): [string, unknown] => [`report t3 ${JSON.stringify(v)}`, { ...ping, last: { t0: 1, t3: v } }]),
+    ["answer with an extra field", { ...answer, extra: 1 }],
+    ["spot with an extra field", { ...answer, spot: { string: 2, fret: 5, finger: 1 } }],
+    ["spot as an array", { ...answer, spot: [2, 5] }],
+    ["spot missing", { type: "answer", promptId: "p3", tapAt: 1 }],
+    ["ping with an extra field", { ...ping, t1: 5 }],
+    ["report with an extra field", { ...ping, last: { t0: 1, t3: 2, t2: 3 } }],
+    ["report as null", { ...ping, last: null }],
+    ["a host action", { type: "host", action: "start" }],
+  ];
+  // Through JSON, as frames come; JSON.stringify leaves out undefined fields.
+  const frames: [string, unknown][] = [
+    ...variants.map(([name, v]): [string, unknown] => [name, JSON.parse(JSON.stringify(v))]),
+    ["tapAt past the largest double (JSON.parse gives Infinity)", JSON.parse('{"type":"answer","promptId":"p3","spot":{"string":2,"fret":5},"tapAt":1e999}')],
+    ["a __proto__ field", JSON.parse('{"type":"ping","t0":1,"__proto__":{"t0":2}}')],
+  ];
+
+  it.each(frames)("%s", (_, frame) => {
+    const schema = clientMessageSchema.safeParse(frame);
+    const quick = quickClientMessage(frame);
+    if (quick !== undefined) expect(schema).toEqual({ success: true, data: quick });
+    // An answer or ping the schema accepts takes the quick path (or the check would never be used).
+    const type = (frame as { type: string }).type;
+    if (schema.success && (type === "answer" || type === "ping")) expect(quick).toBeDefined();
+  });
+});
+

@@ -1,76 +1,35 @@
 /**
- * The Fretcall room protocol: JSON messages over one WebSocket per stage or pad, shared by the
- * server hub and the browser. docs/protocol.md explains every message; keep the two in step.
- * Limits live here as constants so the hub, the client and the docs agree.
+ * The Fretcall room protocol: JSON messages over one WebSocket per stage or pad. docs/protocol.md
+ * explains every message; keep the two in step. This module holds the one definition of each message
+ * (its zod schema) and the server's checks; the browser takes only ./messages.ts (constants and the
+ * types derived from these schemas), so zod and the schemas stay off the pad's first load.
  */
 import { z } from "zod";
 import { MISTAKE_LABELS, type MistakeKind } from "~/music/mistakes";
+import { NOTE_NAMINGS } from "~/music/naming";
 import { MAX_FRETS } from "~/music/tuning";
+import {
+  CLOSE_CODES,
+  ERROR_CODES,
+  HOST_ACTIONS,
+  MAX_MESSAGE_BYTES,
+  MODES,
+  PAUSABLE,
+  PHASES,
+  PROTOCOL_VERSION,
+  RATE_LIMIT_BURST,
+  RATE_LIMIT_PER_SECOND,
+  RATE_LIMIT_STRIKES,
+  SERVER_MESSAGE_TYPES,
+  type ClientMessage,
+  type CloseCode,
+  type ErrorCode,
+  type Same,
+  type ServerMessage,
+} from "./messages";
 import { isRoomCode, normaliseRoomCode } from "./roomCode";
 
-export const PROTOCOL_VERSION = 2;
-/** Largest client→server message, in UTF-8 bytes. A real pad message is under 300 bytes. */
-export const MAX_MESSAGE_BYTES = 4096;
-/** Per socket token bucket: bursts of 20, refilled at 8 messages a second. */
-export const RATE_LIMIT_BURST = 20;
-export const RATE_LIMIT_PER_SECOND = 8;
-/** Refused messages in a row before the hub closes the socket. */
-export const RATE_LIMIT_STRIKES = 10;
-/** Stage and pads should ping at least this often during play (clock sync, liveness). */
-export const PING_INTERVAL_MS = 2_000;
-/** Pings a pad sends right after joining, PING_BURST_GAP_MS apart, to sync before the first prompt. */
-export const PING_BURST = 8;
-export const PING_BURST_GAP_MS = 250;
-
-export const MODES = ["sprint", "tune-walk", "full-neck", "teams"] as const;
-export type Mode = (typeof MODES)[number];
-
-export const PHASES = ["lobby", "prompt", "reveal", "standings", "paused", "ended"] as const;
-export type Phase = (typeof PHASES)[number];
-/** The phases a round can be paused in. */
-export const PAUSABLE = ["prompt", "reveal", "standings"] as const;
-export type Pausable = (typeof PAUSABLE)[number];
-
-export const HOST_ACTIONS = ["start", "pause", "resume", "skip", "next", "end", "lock", "unlock", "clear-offline"] as const;
-export type HostAction = (typeof HOST_ACTIONS)[number];
-
-export const ERROR_CODES = {
-  badMessage: "bad-message",
-  tooLarge: "too-large",
-  badVersion: "bad-version",
-  unauthorised: "unauthorised",
-  roomNotFound: "room-not-found",
-  roomLocked: "room-locked",
-  roomFull: "room-full",
-  roomEnded: "room-ended",
-  badNickname: "bad-nickname",
-  notHost: "not-host",
-  notJoined: "not-joined",
-  unknownPlayer: "unknown-player",
-  wrongPhase: "wrong-phase",
-  noPlayers: "no-players",
-  paused: "paused",
-  notOpen: "not-open",
-  tooLate: "too-late",
-  wrongPrompt: "wrong-prompt",
-  alreadyAnswered: "already-answered",
-  turnOver: "turn-over",
-  spotOffNeck: "spot-off-neck",
-  rateLimited: "rate-limited",
-} as const;
-export type ErrorCode = (typeof ERROR_CODES)[keyof typeof ERROR_CODES];
-
-export const CLOSE_CODES = {
-  badVersion: 4000,
-  unauthorised: 4001,
-  removed: 4002,
-  roomGone: 4003,
-  tooLarge: 4004,
-  rateLimited: 4005,
-  replaced: 4006,
-  helloTimeout: 4007,
-} as const;
-export type CloseCode = (typeof CLOSE_CODES)[keyof typeof CLOSE_CODES];
+export * from "./messages";
 
 const MISTAKE_KINDS = Object.keys(MISTAKE_LABELS) as [MistakeKind, ...MistakeKind[]];
 
@@ -100,11 +59,11 @@ export const clientMessageSchema = z.discriminatedUnion("type", [
   ]),
   msg("join", { room: roomCode, nickname: z.string().max(100) }),
   msg("ping", { t0: time, last: z.strictObject({ t0: time, t3: time }).optional() }),
-  msg("answer", { promptId: id, spot: spotSchema, tapAt: time }),
+  // naming: the note names this phone chose for its feedback; absent, the school's.
+  msg("answer", { promptId: id, spot: spotSchema, tapAt: time, naming: z.enum(NOTE_NAMINGS).optional() }),
   msg("host", { action: z.enum(HOST_ACTIONS) }),
   msg("remove", { playerId: id }),
 ]);
-export type ClientMessage = z.output<typeof clientMessageSchema>;
 
 // ---- server → client -----------------------------------------------------------------------
 
@@ -127,6 +86,43 @@ export const summarySchema = z.strictObject({
   longestStreak: count,
 });
 
+/**
+ * Tune walk: the melody so far, for the stage to engrave — the walk's notes up to the one asked (the last), with the
+ * bars of the score they sit in. Never a later note, never the title: the class would read ahead.
+ */
+export const melodySchema = z.strictObject({
+  /** The walk's first bar (1-based): bars before it are not drawn. */
+  from: z.int().positive(),
+  keyFifths: z.int().min(-7).max(7),
+  beatsPerBar: z.number().positive(),
+  notes: z.array(
+    z.strictObject({
+      pitch: z.string(),
+      beats: z.number().positive(),
+      bar: z.int().positive(),
+      onset: z.number().nonnegative().optional(),
+      tied: z.boolean().optional(),
+    }),
+  ),
+  /** An upload's bars 1… up to the asked note's (meters, keys, pickups, repeats); null for a built-in tune (x/4 throughout). */
+  measures: z
+    .array(
+      z.strictObject({
+        number: z.string(),
+        start: z.number().nonnegative(),
+        length: z.number().nonnegative(),
+        beats: z.number().positive(),
+        beatType: z.int().positive(),
+        keyFifths: z.int().min(-7).max(7),
+        pickup: z.boolean(),
+        repeatStart: z.literal(true).optional(),
+        repeatEnd: z.literal(true).optional(),
+        ending: z.strictObject({ number: z.string(), start: z.boolean(), end: z.enum(["hook", "open"]).nullable() }).optional(),
+      }),
+    )
+    .nullable(),
+});
+
 export const serverMessageSchema = z.discriminatedUnion("type", [
   msg("welcome", { role: z.enum(["host", "player"]), room: z.string(), phase, pausedFrom, serverTime: time, you: you.nullable() }),
   msg("error", { code: z.enum(Object.values(ERROR_CODES) as [ErrorCode, ...ErrorCode[]]), message: z.string() }),
@@ -142,14 +138,20 @@ export const serverMessageSchema = z.discriminatedUnion("type", [
     index: count,
     total: count,
     mode: z.enum(MODES),
+    showAt: time,
+    deadline: time,
+    answerMs: z.int().positive(),
+  }),
+  // What the prompt asks, apart from when: the stage gets it with the prompt, pads not before showAt.
+  msg("note", {
+    promptId: id,
     written: z.string(),
     keyFifths: z.int().min(-7).max(7),
     printedAccidental: z.enum(["sharp", "flat", "natural"]).nullable(),
     ledger: z.boolean(),
-    showAt: time,
-    deadline: time,
-    answerMs: z.int().positive(),
     spotsToFind: count.nullable(),
+    /** The stage's alone, in a Tune walk: pads never get it. */
+    melody: melodySchema.optional(),
   }),
   msg("answered", { promptId: id, count, of: count, offline: count }),
   z.discriminatedUnion("accepted", [
@@ -181,11 +183,10 @@ export const serverMessageSchema = z.discriminatedUnion("type", [
   msg("standings", { phase, final: z.boolean(), points: z.array(standingRow), streaks: z.array(streakRow), teams: z.array(teamRow) }),
   msg("paused", { phase: z.literal("paused"), pausedFrom: z.enum(PAUSABLE), at: time }),
   msg("resumed", { phase: z.enum(PAUSABLE) }),
-  msg("ended", { phase: z.literal("ended"), reason: z.enum(["finished", "host"]), tuneName: z.string().nullable(), summaries: z.array(summarySchema) }),
+  msg("ended", { phase: z.literal("ended"), reason: z.enum(["finished", "host", "idle"]), tuneName: z.string().nullable(), summaries: z.array(summarySchema) }),
 ]);
-export type ServerMessage = z.output<typeof serverMessageSchema>;
-export type ServerMessageOf<T extends ServerMessage["type"]> = Extract<ServerMessage, { type: T }>;
-export type Summary = z.output<typeof summarySchema>;
+// The browser's list of server message types (./messages.ts) is this schema's, checked when compiling.
+true satisfies Same<(typeof SERVER_MESSAGE_TYPES)[number], ServerMessage["type"]>;
 
 // ---- parsing -------------------------------------------------------------------------------
 
@@ -232,26 +233,57 @@ function validate<S extends z.ZodType>(schema: S, types: readonly string[], data
 type Option = { shape: { type: { value: string } } } | { options: readonly Option[] };
 const typesOf = (options: readonly Option[]): string[] => [...new Set(options.flatMap((o) => ("options" in o ? typesOf(o.options) : [o.shape.type.value])))];
 const CLIENT_TYPES = typesOf(clientMessageSchema.options as readonly Option[]);
-const SERVER_TYPES = typesOf(serverMessageSchema.options as readonly Option[]);
+
+// ---- the hot path --------------------------------------------------------------------------
+// Every pad sends answers and clock pings many times a round, so these two are checked by hand
+// first, by the same rules as their schemas above (still the one definition: a table test in
+// protocol.test.ts holds the two together), at a fraction of the schema's cost. What the check
+// does not accept goes on to the schema, whose errors say what is wrong.
+
+const isTime = (v: unknown): v is number => typeof v === "number" && Number.isFinite(v) && v >= 0;
+const isRecord = (v: unknown): v is Record<string, unknown> => typeof v === "object" && v !== null && !Array.isArray(v);
+/** No key outside `allowed` (a strict object); JSON.parse makes only own, enumerable keys. */
+function onlyKeys(o: Record<string, unknown>, allowed: ReadonlySet<string>) {
+  for (const key in o) if (!allowed.has(key)) return false;
+  return true;
+}
+const inRange = (v: unknown, min: number, max: number) => Number.isSafeInteger(v) && (v as number) >= min && (v as number) <= max;
+
+const ANSWER_KEYS = new Set(["type", "promptId", "spot", "tapAt", "naming"]);
+const SPOT_KEYS = new Set(["string", "fret"]);
+const PING_KEYS = new Set(["type", "t0", "last"]);
+const REPORT_KEYS = new Set(["t0", "t3"]);
+
+/** The frame as an answer or a ping when it plainly is a valid one; undefined leaves it to the schema. */
+export function quickClientMessage(d: unknown): ClientMessage | undefined {
+  if (!isRecord(d)) return undefined;
+  if (d.type === "answer") {
+    const { promptId, spot, naming } = d;
+    if (!onlyKeys(d, ANSWER_KEYS) || typeof promptId !== "string" || promptId.length < 1 || promptId.length > 32 || !isTime(d.tapAt)) return undefined;
+    if (naming !== undefined && !(NOTE_NAMINGS as readonly unknown[]).includes(naming)) return undefined;
+    if (!isRecord(spot) || !onlyKeys(spot, SPOT_KEYS) || !inRange(spot.string, 1, 12) || !inRange(spot.fret, 0, MAX_FRETS)) return undefined;
+    return d as ClientMessage;
+  }
+  if (d.type === "ping") {
+    const last = d.last;
+    if (!onlyKeys(d, PING_KEYS) || !isTime(d.t0)) return undefined;
+    if (last !== undefined && (!isRecord(last) || !onlyKeys(last, REPORT_KEYS) || !isTime(last.t0) || !isTime(last.t3))) return undefined;
+    return d as ClientMessage;
+  }
+  return undefined;
+}
 
 /** Parses one client frame. Never throws: garbage of any kind comes back as a ProtocolError. */
 export function parseClientMessage(raw: string | Uint8Array | ArrayBuffer): ParseResult<ClientMessage> {
   const frame = decodeFrame(raw);
   if (!frame.ok) return frame;
+  const quick = quickClientMessage(frame.message);
+  if (quick) return { ok: true, message: quick };
   const parsed = validate(clientMessageSchema, CLIENT_TYPES, frame.message);
   if (parsed.ok && parsed.message.type === "hello" && parsed.message.protocol !== PROTOCOL_VERSION) {
     return fail(ERROR_CODES.badVersion, `This room speaks protocol ${PROTOCOL_VERSION}, the app sent ${parsed.message.protocol}. Reload the page.`, CLOSE_CODES.badVersion);
   }
   return parsed;
-}
-
-/** For clients: checks what the server sent (same guarantees, no size limit). */
-export function parseServerMessage(raw: string): ParseResult<ServerMessage> {
-  try {
-    return validate(serverMessageSchema, SERVER_TYPES, JSON.parse(raw) as unknown);
-  } catch {
-    return fail(ERROR_CODES.badMessage, "The message is not valid JSON.");
-  }
 }
 
 // ---- rate limit ----------------------------------------------------------------------------
@@ -270,18 +302,4 @@ export function takeToken(bucket: RateBucket, now: number): { bucket: RateBucket
   if (tokens >= 1) return { bucket: { tokens: tokens - 1, at: now, strikes: 0 }, verdict: "allow" };
   const strikes = bucket.strikes + 1;
   return { bucket: { tokens, at: now, strikes }, verdict: strikes >= RATE_LIMIT_STRIKES ? "close" : "refuse" };
-}
-
-/** After a rate-limit close (4005) a client waits this long before reconnecting. */
-export const RATE_LIMIT_BACKOFF_MS = 5_000;
-
-/**
- * How long a client waits before its `retry`-th reconnect (1, 2, …): 0.6 s doubling to 5 s, plus
- * up to 0.3 s at random (`random` in 0…1) so a class's phones do not all come back in the same
- * instant; 5 s after a rate-limit close.
- */
-export function reconnectDelayMs(retry: number, closeCode: number, random: number): number {
-  const jitter = random * 300;
-  if (closeCode === CLOSE_CODES.rateLimited) return RATE_LIMIT_BACKOFF_MS + jitter;
-  return Math.min(5_000, 300 * 2 ** retry) + jitter;
 }

@@ -1,10 +1,12 @@
 import { describe, expect, it } from "vitest";
 import { spotsFor, type Spot } from "~/music/fretboard";
+import { noteName } from "~/music/naming";
+import { parsePitch } from "~/music/pitch";
 import { seededRandom, type ReadingSpec } from "~/music/pools";
 import { resolveTuning } from "~/music/tuning";
 import { CLOSE_CODES, ERROR_CODES, HOST_ACTIONS, serverMessageSchema, type HostAction, type Phase, type ServerMessage } from "./protocol";
-import { initialState, isStoreEffect, LATE_GRACE_MS, playerBySeatToken, reduce, replay, snapshot, type Answer, type Effect, type RoomEvent, type RoomRecord, type RoomState } from "./room";
-import { drawnPrompts, roomConfig, tunePrompts, type PromptNote, type RoomConfig } from "./roomConfig";
+import { initialState, isStoreEffect, LATE_GRACE_MS, needsLead, playerBySeatToken, reduce, replay, snapshot, type Answer, type Effect, type RoomEvent, type RoomRecord, type RoomState } from "./room";
+import { drawnPrompts, roomConfig, tunePrompts, walkSheet, type PromptNote, type RoomConfig } from "./roomConfig";
 import { playerSummaries } from "./standings";
 
 const SPEC: ReadingSpec = { position: 5, tuning: "standard", frets: 15, reading: "guitar", keyFifths: 0, accidentals: "naturals", ledgerLines: false };
@@ -178,12 +180,58 @@ describe("prompt and answers", () => {
     expect(room.state.phase).toBe("prompt");
     const prompt = room.sent("prompt")[0]!;
     expect(prompt.to).toEqual({ to: "everyone" });
-    expect(prompt.message).toMatchObject({ promptId: "p1", index: 0, total: 6, showAt: T0 + COUNTDOWN, deadline: T0 + COUNTDOWN + ANSWER, spotsToFind: null });
+    expect(prompt.message).toMatchObject({ promptId: "p1", index: 0, total: 6, showAt: T0 + COUNTDOWN, deadline: T0 + COUNTDOWN + ANSWER });
+    expect(room.sent("note")).toEqual([{ kind: "send", to: { to: "stage" }, message: expect.objectContaining({ promptId: "p1", spotsToFind: null }) }]);
 
     const slow = new Room(config({ countdownMs: 0 }));
     slow.join("ana");
     slow.do({ type: "host", action: "start" }, T0, 800);
     expect(slow.state.run!.showAt).toBe(T0 + 800);
+  });
+
+  it("needs the network lead only for a step that can schedule a prompt", () => {
+    // What a step decides, leaving out its record (which holds the env it was given).
+    const decided = (...args: Parameters<typeof reduce>) => {
+      const step = reduce(...args);
+      return { ...step, effects: step.effects.filter((e) => e.kind !== "store-event") };
+    };
+    const room = started({ autoAdvanceMs: 2_000 }, ["ana", "ben"]);
+    const p = room.note();
+    const inPrompt = room.state;
+    const late = inPrompt.run!.deadline + LATE_GRACE_MS;
+    // Inside a prompt, whatever the event and even past the deadline, the lead changes nothing, and needsLead says so.
+    const events: RoomEvent[] = [
+      { type: "answer", playerId: "ana", promptId: "p1", spot: home(p), tapAt: room.shown(100) },
+      { type: "tick" },
+      { type: "offline", playerId: "ben" },
+      { type: "remove", playerId: "ben" },
+      { type: "join", playerId: "cy", seatToken: "seat-cy-0123456789abcdef", nickname: "cy" },
+    ];
+    for (const e of events) {
+      expect(needsLead(inPrompt, e)).toBe(false);
+      for (const now of [room.shown(100), late]) expect(decided(inPrompt, e, { now, leadMs: 1_500 })).toEqual(decided(inPrompt, e, { now }));
+    }
+    // A host's "next" in the step that closes the prompt at its deadline opens the next one: it needs the lead.
+    const next: RoomEvent = { type: "host", action: "next" };
+    expect(needsLead(inPrompt, next)).toBe(true);
+    expect(reduce(inPrompt, next, { now: late, leadMs: 1_500 }).state.run!.showAt).toBe(late + COUNTDOWN);
+    expect(reduce({ ...inPrompt, config: { ...inPrompt.config, countdownMs: 0 } }, next, { now: late, leadMs: 1_500 }).state.run!.showAt).toBe(late + 1_500);
+    // From the reveal, a due auto-advance opens the next prompt on any event.
+    room.do({ type: "tick" }, late);
+    expect(room.state.phase).toBe("reveal");
+    expect(needsLead(room.state, { type: "tick" })).toBe(true);
+  });
+
+  it("times an answer from when the note reached that pad, never from before the show time", () => {
+    const room = started();
+    room.do({ type: "tick" }, room.shown(0));
+    const at = room.shown(1_000);
+    room.do({ type: "answer", playerId: "ana", promptId: room.state.run!.promptId, spot: home(room.note()), tapAt: at, seenAt: room.shown(150) }, at);
+    room.do({ type: "answer", playerId: "ben", promptId: room.state.run!.promptId, spot: home(room.note()), tapAt: at, seenAt: room.shown(-500) }, at);
+    expect(room.state.answers.map((a) => [a.playerId, a.reactionMs])).toEqual([
+      ["ana", 850],
+      ["ben", 1_000],
+    ]);
   });
 
   it("scores a home-spot answer and acknowledges it", () => {
@@ -197,7 +245,7 @@ describe("prompt and answers", () => {
 
   it.each<[string, (r: Room) => Effect[], string]>([
     ["during the countdown", (r) => r.tap("ana", home(r.note()), r.shown(-10)), ERROR_CODES.notOpen],
-    ["a second answer", (r) => (r.tap("ana", home(r.note()), r.shown(100)), r.tap("ana", home(r.note()), r.shown(200))), ERROR_CODES.alreadyAnswered],
+    ["a second answer", (r) => (r.tap("ana", home(r.note()), r.shown(100)), r.tap("ana", wrongSpot(r.note()), r.shown(200))), ERROR_CODES.alreadyAnswered],
     ["for another prompt", (r) => r.tap("ana", home(r.note()), r.shown(100), "p9"), ERROR_CODES.wrongPrompt],
     ["tapped after the deadline", (r) => r.tap("ana", home(r.note()), r.state.run!.deadline + 1), ERROR_CODES.tooLate],
     ["after the grace period", (r) => r.tap("ana", home(r.note()), r.state.run!.deadline + LATE_GRACE_MS), ERROR_CODES.tooLate],
@@ -211,6 +259,40 @@ describe("prompt and answers", () => {
     expect(errorOf(effects)).toBe(code);
     const ack = effects.find((e) => e.kind === "send" && e.message.type === "answer-ack");
     expect(ack).toMatchObject({ message: { accepted: false, message: expect.any(String) } });
+  });
+
+  it.each<[string, (r: Room) => Effect[], string, RegExp]>([
+    ["for a prompt already revealed", (r) => (r.host("skip", r.shown(100)), r.tap("ana", home(r.note()), r.shown(200))), ERROR_CODES.tooLate, /answer was shown/],
+    [
+      "for a prompt the round has moved past",
+      (r) => (r.host("skip", r.shown(100)), r.host("next", r.shown(200)), r.tap("ana", home(r.note()), r.now + 10, "p1")),
+      ERROR_CODES.tooLate,
+      /moved on/,
+    ],
+    ["for a prompt not asked yet", (r) => r.tap("ana", home(r.note()), r.shown(100), "p2"), ERROR_CODES.wrongPrompt, /no prompt "p2"/],
+    ["after the round is over", (r) => (r.host("end", r.shown(100)), r.tap("ana", home(r.note()), r.shown(200), "p1")), ERROR_CODES.roomEnded, /round is over/],
+  ])("refuses an answer that reaches it %s, saying why", (_, act, code, reason) => {
+    const room = started();
+    const effects = act(room);
+    const refusal = effects.find((e) => e.kind === "send" && e.message.type === "answer-ack");
+    expect(refusal).toMatchObject({ to: { to: "player", playerId: "ana" }, message: { accepted: false, code, message: expect.stringMatching(reason) } });
+    expect(room.stored).toEqual([]);
+  });
+
+  it("answers a resent answer that was already stored with the same ack, and stores it once", () => {
+    const room = started();
+    room.tap("ana", home(room.note()), room.shown(1_000));
+    const first = room.sent("answer-ack")[0]!.message;
+    room.tap("ben", wrongSpot(room.note()), room.shown(1_200));
+    expect(room.state.phase).toBe("reveal");
+    // Ana's connection dropped before her ack arrived: she sends it again after the prompt closed.
+    const effects = room.tap("ana", home(room.note()), room.shown(1_000));
+    expect(effects.filter(isStoreEffect)).toEqual([]);
+    expect(room.sent()).toEqual([{ kind: "send", to: { to: "player", playerId: "ana" }, message: first }]);
+    room.host("next", room.shown(2_000));
+    room.tap("ana", home(room.config.prompts[0]!), room.now, "p1");
+    expect(room.sent("answer-ack")[0]!.message).toEqual(first);
+    expect(room.stored.filter((a) => a.playerId === "ana")).toHaveLength(1);
   });
 
   it("accepts an answer tapped before the deadline that arrives within the grace period", () => {
@@ -237,6 +319,28 @@ describe("prompt and answers", () => {
     expect(reveal.counts["no-answer"]).toBe(0);
     expect(reveal.heat).toHaveLength(2);
     expect(reveal.otherSpots.some((s) => same(s, home(room.note())))).toBe(false);
+  });
+
+  it("names the note in the pads' feedback as the room's school does", () => {
+    const room = new Room({ ...config(), naming: "solfege" });
+    room.join("ana");
+    room.host("start");
+    room.tap("ana", wrongSpot(room.note()), room.shown(300));
+    const ack = room.sent("answer-ack")[0]!.message;
+    if (ack.type !== "answer-ack" || !ack.accepted) throw new Error("expected an accepted answer");
+    // A fret above a natural of C major: the note is named in solfège (app/music/naming.ts).
+    expect(ack.diagnosis.message).toContain(`the note is ${noteName(parsePitch(room.note().written), "solfege")}.`);
+  });
+
+  it("names the note as the student's own phone chose, when its answer says so", () => {
+    const room = new Room({ ...config(), naming: "solfege" });
+    room.join("ana");
+    room.host("start");
+    const at = room.shown(300);
+    room.do({ type: "answer", playerId: "ana", promptId: room.state.run!.promptId, spot: wrongSpot(room.note()), tapAt: at, naming: "german" }, at);
+    const ack = room.sent("answer-ack")[0]!.message;
+    if (ack.type !== "answer-ack" || !ack.accepted) throw new Error("expected an accepted answer");
+    expect(ack.diagnosis.message).toContain(`the note is ${noteName(parsePitch(room.note().written), "german")}.`);
   });
 
   it("closes at the deadline: online non-answerers lose their streak, offline ones keep it", () => {
@@ -266,6 +370,83 @@ describe("prompt and answers", () => {
     const room = started({ homeOnly: false }, ["ana"], prompts);
     room.tap("ana", otherSpot(room.note())!, room.shown(0));
     expect(room.state.answers[0]).toMatchObject({ verdict: "right", points: 1000, streak: 1 });
+  });
+});
+
+describe("the note stays secret until it shows", () => {
+  /** What a pad could read: every message to a player, to the pads or to everyone. */
+  const toPads = (effects: Effect[]) => effects.flatMap((e) => (e.kind === "send" && e.to.to !== "stage" ? [e.message] : []));
+  /** Whether messages tell the note: its spelling, or any field that narrows it down. */
+  const tells = (messages: ServerMessage[], n: PromptNote) => {
+    const text = JSON.stringify(messages);
+    return text.includes(`"${n.written}"`) || /"(written|printedAccidental|ledger|keyFifths|spotsToFind|home|otherSpots|found)"/.test(text);
+  };
+
+  it("the prompt says when, the stage alone gets the note with it, the pads get it at showAt", () => {
+    const room = started({ mode: "full-neck" });
+    const n = room.note();
+    expect(tells(toPads(room.effects), n)).toBe(false);
+    expect(room.sent("note").map((e) => e.to)).toEqual([{ to: "stage" }]);
+    expect(room.sent("note")[0]!.message).toMatchObject({ promptId: "p1", written: n.written, keyFifths: n.keyFifths, printedAccidental: n.printedAccidental, ledger: n.ledger });
+    // The room wakes at showAt to send it.
+    expect(reduce(room.state, { type: "tick" }, { now: T0 }).wakeAt).toBe(room.shown(0));
+    expect(room.do({ type: "tick" }, room.shown(-1))).toEqual([]);
+    const shown = room.do({ type: "tick" }, room.shown(0));
+    expect(shown[0]).toMatchObject({ kind: "store-event" });
+    expect(room.sent()).toEqual([{ kind: "send", to: { to: "pads" }, message: expect.objectContaining({ type: "note", written: n.written, spotsToFind: spots(n).length }) }]);
+    expect(reduce(room.state, { type: "tick" }, { now: room.now }).wakeAt).toBe(room.state.run!.deadline + LATE_GRACE_MS);
+    // Sent once.
+    expect(room.do({ type: "tick" }, room.shown(10))).toEqual([]);
+  });
+
+  it("an answer that beats the timer to showAt finds the note sent ahead of its ack", () => {
+    const room = started();
+    room.tap("ana", home(room.note()), room.shown(0));
+    expect(room.sent().map((e) => [e.message.type, e.to.to])).toEqual([
+      ["note", "pads"],
+      ["answer-ack", "player"],
+      ["answered", "stage"],
+    ]);
+  });
+
+  it("catching up: a pad gets the note only while it shows, the stage always", () => {
+    const room = started({ mode: "full-neck" }, ["ana", "ben"]);
+    const n = room.note();
+    const pad = () => snapshot(room.state, { role: "player", playerId: "ana" }, room.now);
+    const stranger = () => snapshot(room.state, { role: "player", playerId: null }, room.now);
+    const stage = () => snapshot(room.state, { role: "host" }, room.now).map((m) => m.type);
+    expect(tells(pad(), n) || tells(stranger(), n)).toBe(false);
+    expect(stage()).toContain("note");
+    // A pad coming back in the countdown: no note in its catch-up either.
+    room.do({ type: "offline", playerId: "ana" }, room.shown(-500));
+    room.do({ type: "online", playerId: "ana" }, room.shown(-400));
+    expect(tells(toPads(room.effects), n)).toBe(false);
+
+    room.tap("ana", spots(n)[0]!, room.shown(1_000));
+    expect(pad().map((m) => m.type)).toEqual(["welcome", "roster", "prompt", "note", "progress", "answer-ack"]);
+    // Paused, the note hides again: a pad reconnecting now does not get it (nor the finds that give it away;
+    // ana's own ack tells her only where she tapped).
+    room.host("pause", room.shown(2_000));
+    expect(tells(snapshot(room.state, { role: "player", playerId: "ben" }, room.now), n)).toBe(false);
+    expect(pad().map((m) => m.type)).toEqual(["welcome", "roster", "prompt", "answer-ack", "paused"]);
+    expect(stage()).toEqual(["welcome", "roster", "prompt", "note", "answered", "progress", "paused"]);
+    const resumed = room.host("resume", room.now + 30_000);
+    expect(tells(toPads(resumed), n)).toBe(false);
+    expect(reduce(room.state, { type: "tick" }, { now: room.now }).wakeAt).toBe(room.shown(0));
+    room.do({ type: "tick" }, room.shown(0));
+    expect(room.sent("note").map((e) => e.to)).toEqual([{ to: "pads" }]);
+    expect(pad().map((m) => m.type)).toContain("note");
+  });
+
+  it("a prompt paused in its countdown shows its note at the new showAt, not the old one", () => {
+    const room = started();
+    const first = room.shown(0);
+    room.host("pause", first - 1_000);
+    expect(room.do({ type: "tick" }, first + 100)).toEqual([]);
+    room.host("resume", first + 5_000);
+    expect(room.shown(0)).toBeGreaterThan(first + 5_000);
+    expect(errorOf(room.tap("ana", home(room.note()), room.shown(-1)))).toBe(ERROR_CODES.notOpen);
+    expect(room.sent("note")).toEqual([]);
   });
 });
 
@@ -339,7 +520,11 @@ describe("phase transitions", () => {
     expect(reduce(room.state, { type: "tick" }, { now: room.now + 60_000 }).wakeAt).toBeNull();
     const resumeAt = room.now + 60_000;
     room.host("resume", resumeAt);
-    expect(room.sent().map((e) => e.message.type)).toEqual(["resumed", "prompt"]);
+    expect(room.sent().map((e) => [e.message.type, e.to.to])).toEqual([
+      ["resumed", "everyone"],
+      ["prompt", "everyone"],
+      ["note", "stage"],
+    ]);
     expect(room.state.run).toMatchObject({ showAt: resumeAt + COUNTDOWN, deadline: resumeAt + COUNTDOWN + ANSWER - 4_000, creditedMs: 4_000 });
     room.tap("ana", home(room.note()), room.shown(1_000));
     expect(room.state.answers[0]!.reactionMs).toBe(5_000);
@@ -418,8 +603,8 @@ describe("phase transitions", () => {
     room.tap("ana", home(room.note()), room.shown(700));
     room.do({ type: "offline", playerId: "ana" });
     room.do({ type: "online", playerId: "ana" });
-    expect(room.sent().filter((e) => e.to.to === "player").map((e) => e.message.type)).toEqual(["welcome", "prompt", "answer-ack"]);
-    expect(snapshot(room.state, { role: "host" }, room.now).map((m) => m.type)).toEqual(["welcome", "roster", "prompt", "answered"]);
+    expect(room.sent().filter((e) => e.to.to === "player").map((e) => e.message.type)).toEqual(["welcome", "prompt", "note", "answer-ack"]);
+    expect(snapshot(room.state, { role: "host" }, room.now).map((m) => m.type)).toEqual(["welcome", "roster", "prompt", "note", "answered"]);
     expect(snapshot(room.state, { role: "player", playerId: null }, room.now)[0]).toMatchObject({ type: "welcome", you: null });
   });
 
@@ -449,18 +634,61 @@ describe("modes", () => {
     expect(room.sent("ended")[0]!.message).toMatchObject({ tuneName: "Lantern Hill" });
   });
 
+  it("Tune walk: the stage's note carries the melody so far, nothing later; pads never get it, nothing goes out early", () => {
+    // An upload in 3/4 walked from bar 2: a pickup bar 1, then bar 2 (half, quarter) and bar 3 (rest, two quarters).
+    const bar = (number: string, start: number, length: number, pickup = false) => ({ number, start, length, beats: 3, beatType: 4, keyFifths: 0, pickup });
+    const measures = [bar("0", 0, 1, true), bar("1", 1, 3), bar("2", 4, 3)];
+    const walked = [
+      { pitch: "A4", beats: 2, bar: 2, onset: 1 },
+      { pitch: "B4", beats: 1, bar: 2, onset: 3 },
+      { pitch: "C5", beats: 1, bar: 3, onset: 5 },
+      { pitch: "D5", beats: 1, bar: 3, onset: 6 },
+    ];
+    const sheet = walkSheet({ keyFifths: 0, beatsPerBar: 3, score: { measures } }, walked);
+    const room = new Room(config({ mode: "tune-walk", tuneName: "Lantern Hill", sheet }, tunePrompts(SPEC, walked.map((n) => n.pitch))));
+    room.join("ana");
+    room.host("start");
+    for (let k = 0; k < walked.length; k++) {
+      // With the prompt, before showAt: the stage alone hears the note, with the notes up to this one and their bars.
+      const early = room.sent("note");
+      expect(early.map((e) => e.to)).toEqual([{ to: "stage" }]);
+      const melody = early[0]!.message.type === "note" ? early[0]!.message.melody : undefined;
+      expect(melody?.notes.map((n) => n.pitch)).toEqual(walked.slice(0, k + 1).map((n) => n.pitch));
+      expect(melody?.from).toBe(2);
+      expect(melody?.measures?.map((m) => m.number)).toEqual(k < 2 ? ["0", "1"] : ["0", "1", "2"]);
+      for (const later of walked.slice(k + 1)) expect(JSON.stringify(early)).not.toContain(later.pitch);
+      expect(JSON.stringify(room.sent())).not.toContain("Lantern");
+      // At showAt the pads get the note alone: no melody.
+      room.do({ type: "tick" }, room.shown(0));
+      const padNotes = room.sent("note");
+      expect(padNotes.map((e) => e.to)).toEqual([{ to: "pads" }]);
+      expect(padNotes[0]!.message).not.toHaveProperty("melody");
+      // A reloaded stage gets it again; a reloaded pad does not.
+      const stageAgain = snapshot(room.state, { role: "host" }, room.now).find((m) => m.type === "note");
+      expect(stageAgain).toMatchObject({ melody: { notes: walked.slice(0, k + 1).map((n) => ({ pitch: n.pitch })) } });
+      expect(snapshot(room.state, { role: "player", playerId: "ana" }, room.now).find((m) => m.type === "note")).not.toHaveProperty("melody");
+      room.tap("ana", home(room.note()), room.shown(10));
+      room.host("next");
+      if (room.state.phase === "standings") room.host("next");
+    }
+    expect(room.state.phase).toBe("ended");
+  });
+
   it("Full neck: the class covers every spot; new finds score, repeats don't, a miss ends a turn", () => {
     const prompts = drawnPrompts(SPEC, 40, 9).filter((n) => spots(n).length >= 3).slice(0, 1);
     const room = started({ mode: "full-neck" }, ["ana", "ben", "cy"], prompts);
     const all = spots(room.note());
-    expect(room.sent("prompt")[0]!.message).toMatchObject({ spotsToFind: all.length });
+    expect(room.sent("note")[0]!.message).toMatchObject({ spotsToFind: all.length });
 
     room.tap("ana", all[0]!, room.shown(0));
     expect(room.state.answers[0]).toMatchObject({ points: 1000, found: "new", streak: 0 });
     expect(room.sent("progress")[0]!.message).toMatchObject({ found: [all[0]], total: all.length });
     room.tap("ben", all[0]!, room.shown(100));
     expect(room.state.answers[1]).toMatchObject({ points: 0, found: "already" });
-    expect(errorOf(room.tap("ana", all[0]!, room.shown(200)))).toBe(ERROR_CODES.alreadyAnswered);
+    // The same spot again is a resend: its ack once more, nothing stored or scored again.
+    room.tap("ana", all[0]!, room.shown(200));
+    expect(room.sent("answer-ack")[0]!.message).toMatchObject({ accepted: true, points: 1000, found: "new" });
+    expect(room.stored).toHaveLength(2);
     room.tap("cy", wrongSpot(room.note()), room.shown(300));
     expect(errorOf(room.tap("cy", all[1]!, room.shown(400)))).toBe(ERROR_CODES.turnOver);
 
@@ -613,10 +841,30 @@ describe("replay", () => {
 
   it("refused events and idle ticks are not persisted", () => {
     const room = started();
+    // The tick at showAt is not idle: it sends the note to the pads.
+    room.do({ type: "tick" }, room.shown(0));
     const count = room.records.length;
     room.tap("zed", home(room.note()), room.shown(0));
     room.do({ type: "tick" }, room.shown(0));
     room.host("resume");
     expect(room.records).toHaveLength(count);
+  });
+});
+
+describe("a room nobody uses", () => {
+  it("ends as idle from any phase, keeping every answer, and tells everyone as an end does", () => {
+    const room = started();
+    room.tap("ana", home(room.note()), room.shown(500));
+    const effects = room.do({ type: "idle" }, room.now + 3 * 3_600_000);
+    expect(room.state).toMatchObject({ phase: "ended", ended: "idle" });
+    expect(effects.filter(isStoreEffect).map((e) => e.kind)).toEqual(["store-event", "store-end"]);
+    expect(room.sent("ended").map((e) => e.message)).toContainEqual(expect.objectContaining({ reason: "idle" }));
+    expect(room.effects).toContainEqual({ kind: "close", to: { to: "everyone" }, code: CLOSE_CODES.roomGone });
+    expect(room.stored).toHaveLength(1);
+    // Replayed after a restart it is the same ended room; a second sweep changes and writes nothing.
+    expect(replay(room.config, room.records)).toEqual(room.state);
+    const before = room.state;
+    expect(room.do({ type: "idle" }).some(isStoreEffect)).toBe(false);
+    expect(room.state).toBe(before);
   });
 });

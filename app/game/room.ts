@@ -8,8 +8,10 @@
  *   prompt, reveal, standings ──pause──▶ paused ──resume──▶ (where it was)
  *   any phase ──end (or next after the last reveal)──▶ ended
  *
- * "prompt" has two moments, told apart by the clock rather than by state: the countdown until
- * showAt, when answers are refused, and the open window from showAt to the deadline.
+ * "prompt" has two moments: the countdown until showAt, when answers are refused, and the open
+ * window from showAt to the deadline. The note stays secret in the countdown: the prompt tells
+ * everyone when, the stage alone gets the note with it (to draw it off-screen), and the pads get
+ * the note from the step at showAt (`run.shownAt`), which the room's timer wakes for.
  *
  * Driving it: the hub turns every socket message, connect and disconnect into a RoomEvent, calls
  * reduce with the current server time, then carries out the effects in order — the "store-…" ones
@@ -21,6 +23,7 @@
  */
 import { spotsFor, type Spot } from "~/music/fretboard";
 import { diagnose, MISTAKE_LABELS, type Diagnosis, type MistakeKind } from "~/music/mistakes";
+import type { NoteNaming } from "~/music/naming";
 import { resolveTuning } from "~/music/tuning";
 import { reactionTime, scheduleShowAt } from "./clock";
 import { cleanNickname, uniqueNickname } from "./nickname";
@@ -35,7 +38,7 @@ import {
   type ServerMessage,
   type ServerMessageOf,
 } from "./protocol";
-import type { PromptNote, RoomConfig } from "./roomConfig";
+import { melodyAt, type PromptNote, type RoomConfig } from "./roomConfig";
 import { scoreAnswer, scoreFind, verdictOf, type Verdict } from "./scoring";
 import { playerSummaries, standings } from "./standings";
 
@@ -81,6 +84,8 @@ export interface PromptRun {
   deadline: number;
   /** Open time used before a pause; counts towards reaction time after resume. */
   creditedMs: number;
+  /** When the note went to the pads (the step at showAt); null before it, and again after a pause (the note hides until the new showAt). */
+  shownAt: number | null;
   /** Full neck: spots found so far, and players whose miss ended their turn. */
   found: Spot[];
   out: string[];
@@ -98,7 +103,7 @@ export interface RoomState {
   run: PromptRun | null;
   phaseSince: number;
   paused: { from: Pausable; at: number } | null;
-  ended: "finished" | "host" | null;
+  ended: "finished" | "host" | "idle" | null;
 }
 
 export function initialState(config: RoomConfig): RoomState {
@@ -111,12 +116,15 @@ export type RoomEvent =
   | { type: "join"; playerId: string; seatToken: string; nickname: string }
   | { type: "online"; playerId: string }
   | { type: "offline"; playerId: string }
-  | { type: "answer"; playerId: string; promptId: string; spot: Spot; tapAt: number }
+  /** seenAt: when the note reached this pad (server time, clock.noteSeenAt), which its reaction is timed from; absent, showAt. */
+  | { type: "answer"; playerId: string; promptId: string; spot: Spot; tapAt: number; seenAt?: number; naming?: NoteNaming }
   /** priorPoints (by player id) is read on start, to balance Teams. */
   | { type: "host"; action: HostAction; priorPoints?: Record<string, number> }
   | { type: "remove"; playerId: string }
   /** The server came back after a crash: every socket is gone, play pauses until the host resumes. */
   | { type: "restart" }
+  /** Nothing happened in the room for hours (server/hub.ts sweeps them): it ends as the host's "end" would. */
+  | { type: "idle" }
   | { type: "tick" };
 
 export interface RoomEnv {
@@ -130,8 +138,8 @@ export interface RoomRecord {
   event: RoomEvent;
 }
 
-/** "everyone" = the stage and every connected pad of the room. */
-export type Audience = { to: "stage" } | { to: "player"; playerId: string } | { to: "everyone" };
+/** "everyone" = the stage and every connected pad of the room; "pads" = the pads alone. */
+export type Audience = { to: "stage" } | { to: "player"; playerId: string } | { to: "pads" } | { to: "everyone" };
 
 /** What a step writes: its record for the room's log, then the rows beside the log that it brought. */
 export type StoreEffect =
@@ -158,6 +166,7 @@ export interface Step {
 
 const STAGE: Audience = { to: "stage" };
 const EVERYONE: Audience = { to: "everyone" };
+const PADS: Audience = { to: "pads" };
 const player = (playerId: string): Audience => ({ to: "player", playerId });
 
 /** A working copy: the handlers below mutate it; the caller's state is never touched. */
@@ -171,6 +180,14 @@ interface Ctx {
   /** Players already copied in this step (see own()). */
   owned: Set<Player>;
 }
+
+/**
+ * Whether a step of `event` from `state` can schedule a prompt, so needs the network lead
+ * (env.leadMs): the hub leaves the lead out of every other step, as working it out reads every
+ * pad's round trips. Inside a prompt only a host action can (a due deadline closes the prompt, and
+ * "next" in the same step opens the next one); any event can from another phase (a due auto-advance).
+ */
+export const needsLead = (state: RoomState, event: RoomEvent): boolean => state.phase !== "prompt" || event.type === "host";
 
 export function reduce(state: RoomState, event: RoomEvent, env: RoomEnv): Step {
   const s: RoomState = { ...state, players: [...state.players], run: state.run && { ...state.run } };
@@ -188,14 +205,17 @@ export function replay(config: RoomConfig, records: readonly RoomRecord[]): Room
 }
 
 export function wakeAt(s: RoomState): number | null {
-  if (s.phase === "prompt" && s.run) return s.run.deadline + LATE_GRACE_MS;
+  if (s.phase === "prompt" && s.run) return s.run.shownAt !== null ? s.run.deadline + LATE_GRACE_MS : s.run.showAt;
   if ((s.phase === "reveal" || s.phase === "standings") && s.config.autoAdvanceMs !== null) return s.phaseSince + s.config.autoAdvanceMs;
   return null;
 }
 
 function applyDue(ctx: Ctx): boolean {
+  // The note goes out before anything else this step does, so no ack or reveal overtakes it.
+  const showing = ctx.s.phase === "prompt" && ctx.s.run!.shownAt === null && ctx.env.now >= ctx.s.run!.showAt;
+  if (showing) show(ctx);
   const due = wakeAt(ctx.s);
-  if (due === null || ctx.env.now < due) return false;
+  if (due === null || ctx.env.now < due) return showing;
   if (ctx.s.phase === "prompt") closePrompt(ctx, false);
   else advance(ctx);
   return true;
@@ -218,6 +238,10 @@ function handle(ctx: Ctx, e: RoomEvent): boolean {
     case "restart":
       for (const p of ctx.s.players) own(ctx, p).online = false;
       if (ctx.s.phase === "prompt" || ctx.s.phase === "reveal" || ctx.s.phase === "standings") pause(ctx);
+      return true;
+    case "idle":
+      if (ctx.s.phase === "ended") return false;
+      end(ctx, "idle");
       return true;
     case "tick":
       return true;
@@ -358,6 +382,8 @@ function host(ctx: Ctx, action: HostAction, priorPoints: Record<string, number>)
 function pause(ctx: Ctx): void {
   const { s } = ctx;
   s.paused = { from: s.phase as Pausable, at: ctx.env.now };
+  // A paused prompt hides its note (no studying it while the clock stands); it shows again at the new showAt.
+  if (s.phase === "prompt") s.run!.shownAt = null;
   s.phase = "paused";
 }
 
@@ -374,7 +400,7 @@ function resume(ctx: Ctx): void {
     run.creditedMs += Math.max(0, Math.min(paused.at, run.deadline) - run.showAt);
     run.showAt = scheduleShowAt(env.now, env.leadMs ?? 0, s.config.countdownMs);
     run.deadline = run.showAt + s.config.answerMs - run.creditedMs;
-    ctx.send(EVERYONE, promptMessage(s));
+    sendPrompt(ctx);
   }
 }
 
@@ -390,7 +416,7 @@ function advance(ctx: Ctx): void {
   } else openPrompt(ctx, next);
 }
 
-function end(ctx: Ctx, reason: "finished" | "host"): void {
+function end(ctx: Ctx, reason: NonNullable<RoomState["ended"]>): void {
   const { s } = ctx;
   s.phase = "ended";
   s.ended = reason;
@@ -439,13 +465,33 @@ const sameSpot = (a: Spot, b: Spot) => a.string === b.string && a.fret === b.fre
 const allSpots = (s: RoomState, n: PromptNote) => spotsFor(n.written, { tuning: resolveTuning(s.config.tuning), frets: s.config.frets, reading: s.config.reading });
 const fullNeck = (s: RoomState) => s.config.mode === "full-neck";
 
+/** Prompt ids count from p1. */
+const promptIdOf = (index: number) => `p${index + 1}`;
+/** The index a prompt id stands for, or null if no round could have asked it. */
+function promptIndexOf(id: string): number | null {
+  const n = /^p([1-9][0-9]{0,5})$/.exec(id);
+  return n ? Number(n[1]) - 1 : null;
+}
+
 function openPrompt(ctx: Ctx, index: number): void {
   const { s, env } = ctx;
   const showAt = scheduleShowAt(env.now, env.leadMs ?? 0, s.config.countdownMs);
-  s.run = { index, promptId: `p${index + 1}`, showAt, deadline: showAt + s.config.answerMs, creditedMs: 0, found: [], out: [], closed: null };
+  s.run = { index, promptId: promptIdOf(index), showAt, deadline: showAt + s.config.answerMs, creditedMs: 0, shownAt: null, found: [], out: [], closed: null };
   s.phase = "prompt";
   s.phaseSince = env.now;
-  ctx.send(EVERYONE, promptMessage(s));
+  sendPrompt(ctx);
+}
+
+/** When, to everyone; what, to the stage alone until showAt. */
+function sendPrompt(ctx: Ctx): void {
+  ctx.send(EVERYONE, promptMessage(ctx.s));
+  ctx.send(STAGE, noteMessage(ctx.s, STAGE));
+}
+
+/** showAt has come: the pads get the note. */
+function show(ctx: Ctx): void {
+  ctx.s.run!.shownAt = ctx.env.now;
+  ctx.send(PADS, noteMessage(ctx.s, PADS));
 }
 
 function answer(ctx: Ctx, e: Extract<RoomEvent, { type: "answer" }>): boolean {
@@ -457,9 +503,22 @@ function answer(ctx: Ctx, e: Extract<RoomEvent, { type: "answer" }>): boolean {
   };
   const p = findPlayer(s, e.playerId);
   if (!p) return no(ERROR_CODES.notJoined, "Join the room before answering.");
-  if (run === null || run.promptId !== e.promptId) return no(ERROR_CODES.wrongPrompt, "That answer is for a different prompt.");
-  if (s.phase === "paused" && s.paused?.from === "prompt") return no(ERROR_CODES.paused, "The round is paused.");
-  if (s.phase !== "prompt" || e.tapAt > run.deadline) return no(ERROR_CODES.tooLate, "Time was up for this prompt.");
+  // A pad sends an answer again when its connection dropped before the reply: if it was stored, the
+  // reply is its ack once more and nothing is stored twice. (Only an earlier prompt needs the long search.)
+  const asked = promptIndexOf(e.promptId);
+  const current = run !== null && run.promptId === e.promptId;
+  const same = (a: Answer) => a.playerId === p.id && a.promptId === e.promptId && sameSpot(a.spot, e.spot);
+  const stored = asked === null ? undefined : (current ? promptAnswers(s) : s.answers).find(same);
+  if (stored) {
+    ctx.send(player(p.id), ackMessage(stored, p));
+    return false;
+  }
+  if (s.phase === "ended") return no(ERROR_CODES.roomEnded, "Too late: the round is over.");
+  if (run === null || asked === null || asked > run.index) return no(ERROR_CODES.wrongPrompt, `This round has no prompt "${e.promptId}" (yet).`);
+  if (asked < run.index) return no(ERROR_CODES.tooLate, "Too late: that note closed before your tap reached the server, and the round has moved on.");
+  if (s.phase === "paused" && s.paused?.from === "prompt") return no(ERROR_CODES.paused, "The round is paused: your tap goes in when it goes on.");
+  if (s.phase !== "prompt") return no(ERROR_CODES.tooLate, "Too late: time was up and the answer was shown before your tap reached the server.");
+  if (e.tapAt > run.deadline) return no(ERROR_CODES.tooLate, "Too late: you tapped after time was up.");
   if (env.now < run.showAt) return no(ERROR_CODES.notOpen, "The note is not showing yet.");
   const tuning = resolveTuning(s.config.tuning);
   if (e.spot.string > tuning.strings.length || e.spot.fret > s.config.frets) {
@@ -474,8 +533,9 @@ function answer(ctx: Ctx, e: Extract<RoomEvent, { type: "answer" }>): boolean {
   }
 
   const n = note(s);
-  const reactionMs = Math.min(s.config.answerMs, run.creditedMs + reactionTime(e.tapAt, run.showAt, s.config.answerMs));
-  const diagnosis = diagnose({ note: n, keyFifths: n.keyFifths, tapped: e.spot, tuning, reading: s.config.reading, homeOnly: s.config.homeOnly && !fullNeck(s) });
+  // Timed from when the note reached this phone: a slow link must not cost a student the time its frame took.
+  const reactionMs = Math.min(s.config.answerMs, run.creditedMs + reactionTime(e.tapAt, Math.max(run.showAt, e.seenAt ?? run.showAt), s.config.answerMs));
+  const diagnosis = diagnose({ note: n, keyFifths: n.keyFifths, tapped: e.spot, tuning, reading: s.config.reading, homeOnly: s.config.homeOnly && !fullNeck(s), naming: e.naming ?? s.config.naming });
   let scored: { verdict: Verdict; points: number; streak: number; found: Answer["found"] };
   if (fullNeck(s)) {
     const fresh = diagnosis.pitchRight && !run.found.some((f) => sameSpot(f, e.spot));
@@ -546,9 +606,9 @@ function roster(s: RoomState): ServerMessageOf<"roster"> {
   };
 }
 
+/** Nothing in it tells the note: pads get it in the countdown. */
 function promptMessage(s: RoomState): ServerMessageOf<"prompt"> {
   const run = s.run!;
-  const n = note(s);
   return {
     type: "prompt",
     phase: s.phase,
@@ -556,14 +616,25 @@ function promptMessage(s: RoomState): ServerMessageOf<"prompt"> {
     index: run.index,
     total: s.config.prompts.length,
     mode: s.config.mode,
+    showAt: run.showAt,
+    deadline: run.deadline,
+    answerMs: s.config.answerMs,
+  };
+}
+
+/** Everything that tells the note, the count of its spots included; for the stage, a Tune walk's melody so far. */
+function noteMessage(s: RoomState, to: Audience): ServerMessageOf<"note"> {
+  const n = note(s);
+  const sheet = to.to === "stage" ? s.config.sheet : undefined;
+  return {
+    type: "note",
+    promptId: s.run!.promptId,
     written: n.written,
     keyFifths: n.keyFifths,
     printedAccidental: n.printedAccidental,
     ledger: n.ledger,
-    showAt: run.showAt,
-    deadline: run.deadline,
-    answerMs: s.config.answerMs,
     spotsToFind: fullNeck(s) ? allSpots(s, n).length : null,
+    ...(sheet ? { melody: melodyAt(sheet, s.run!.index) } : {}),
   };
 }
 
@@ -629,8 +700,9 @@ function endMessages(s: RoomState, to: Audience): ServerMessage[] {
 
 /**
  * Everything a stage or pad needs on (re)connecting, starting with welcome: the roster, then what
- * is on screen now — the prompt (with the stage's answered count and the player's own acks), the
- * reveal beside its prompt, standings, pause, or the end — so a reloaded screen is the one it had.
+ * is on screen now — the prompt and its note (with the stage's answered count and the player's own
+ * acks), the reveal beside its prompt, standings, pause, or the end — so a reloaded screen is the one
+ * it had. A pad gets the note (and Full neck's finds, which give it away) only while it is shown.
  * A pad that has not joined yet passes playerId null.
  */
 export function snapshot(s: RoomState, who: { role: "host" } | { role: "player"; playerId: string | null }, now: number): ServerMessage[] {
@@ -648,8 +720,10 @@ export function snapshot(s: RoomState, who: { role: "host" } | { role: "player";
   const shown = s.phase === "paused" ? s.paused!.from : s.phase;
   if (shown === "prompt" || shown === "reveal") {
     messages.push(promptMessage(s));
+    const told = who.role === "host" || s.run!.shownAt !== null;
+    if (told) messages.push(noteMessage(s, who.role === "host" ? STAGE : PADS));
     if (who.role === "host") messages.push(answeredMessage(s));
-    if (fullNeck(s)) messages.push(progressMessage(s));
+    if (fullNeck(s) && told) messages.push(progressMessage(s));
     if (p) for (const a of promptAnswers(s).filter((x) => x.playerId === p.id)) messages.push(ackMessage(a, p));
     if (shown === "reveal") messages.push(revealMessage(s));
   } else if (shown === "standings") messages.push(standings(s, false));

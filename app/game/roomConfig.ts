@@ -4,10 +4,11 @@
  */
 import type { Reading } from "~/music/fretboard";
 import { keyAlter } from "~/music/keys";
+import type { NoteNaming } from "~/music/naming";
 import { parsePitch, pitchMidi, pitchToString } from "~/music/pitch";
 import { buildPool, drawPrompts, type PoolNote, type ReadingSpec } from "~/music/pools";
 import { UserError } from "~/lib/userError";
-import type { Mode } from "./protocol";
+import type { Melody, Mode } from "./messages";
 
 export class RoomConfigError extends UserError {}
 
@@ -41,7 +42,11 @@ export interface RoomConfig {
   maxPlayers: number;
   /** Tune walk: revealed when the room ends. */
   tuneName: string | null;
+  /** Tune walk: the walk as written, one note per prompt (the stage draws it up to the asked note); rooms before it have none. */
+  sheet?: Melody;
   teams: TeamsConfig | null;
+  /** How the pads' feedback names notes: the school's naming when the room opened (rooms before it: letters). */
+  naming?: NoteNaming;
 }
 
 export const ROOM_DEFAULTS = {
@@ -58,7 +63,7 @@ export const MAX_PROMPTS = 200;
 export const TEAM_COUNT_RANGE = [2, 8] as const;
 
 type Settings = Pick<RoomConfig, "code" | "mode"> &
-  Partial<Pick<RoomConfig, "homeOnly" | "answerMs" | "countdownMs" | "standingsEvery" | "autoAdvanceMs" | "maxPlayers" | "tuneName" | "teams">>;
+  Partial<Pick<RoomConfig, "homeOnly" | "answerMs" | "countdownMs" | "standingsEvery" | "autoAdvanceMs" | "maxPlayers" | "tuneName" | "sheet" | "teams">>;
 
 /** Fills in defaults and checks that the settings make a playable room; throws RoomConfigError with a clear message. */
 export function roomConfig(spec: ReadingSpec, settings: Settings, prompts: PromptNote[]): RoomConfig {
@@ -76,6 +81,7 @@ export function roomConfig(spec: ReadingSpec, settings: Settings, prompts: Promp
   if (prompts.length === 0 || prompts.length > MAX_PROMPTS) throw new RoomConfigError(`A room needs 1 to ${MAX_PROMPTS} prompts, not ${prompts.length}.`);
   if (config.answerMs < minAnswer || config.answerMs > maxAnswer) throw new RoomConfigError(`Answer time must be ${minAnswer / 1000}–${maxAnswer / 1000} s.`);
   if (config.mode === "tune-walk" && !config.tuneName) throw new RoomConfigError("A Tune walk needs the tune's name.");
+  if (config.sheet && config.sheet.notes.length !== prompts.length) throw new RoomConfigError("A Tune walk's sheet needs one note per prompt.");
   if (config.mode === "teams") {
     const [min, max] = TEAM_COUNT_RANGE;
     if (config.teams === null || config.teams.count < min || config.teams.count > max) throw new RoomConfigError(`Teams needs ${min} to ${max} teams.`);
@@ -111,4 +117,40 @@ export function tunePrompts(spec: ReadingSpec, notes: readonly string[]): Prompt
     const printed = pitch.alter === keyAlter(spec.keyFifths, pitch.letter) ? null : pitch.alter > 0 ? "sharp" : pitch.alter < 0 ? "flat" : "natural";
     return { ...inReach, written: pitchToString(pitch), printedAccidental: printed, keyFifths: spec.keyFifths };
   });
+}
+
+type SheetTune = Pick<Melody, "keyFifths" | "beatsPerBar"> & { score?: { measures: readonly NonNullable<Melody["measures"]>[number][] } };
+
+/**
+ * Tune walk: the walked notes as written (one per prompt, in order) with the score's bars up to the last of them, for
+ * the stage to engrave the melody so far. Only the fields the stage draws are kept.
+ */
+export function walkSheet(tune: SheetTune, notes: readonly Melody["notes"][number][]): Melody {
+  const lastBar = Math.max(...notes.map((n) => n.bar));
+  return {
+    from: notes[0]?.bar ?? 1,
+    keyFifths: tune.keyFifths,
+    beatsPerBar: tune.beatsPerBar,
+    notes: notes.map((n) => ({ pitch: n.pitch, beats: n.beats, bar: n.bar, ...(n.onset === undefined ? {} : { onset: n.onset }), ...(n.tied ? { tied: true } : {}) })),
+    measures:
+      tune.score?.measures.slice(0, lastBar).map((m) => ({
+        number: m.number,
+        start: m.start,
+        length: m.length,
+        beats: m.beats,
+        beatType: m.beatType,
+        keyFifths: m.keyFifths,
+        pickup: m.pickup,
+        ...(m.repeatStart ? { repeatStart: true as const } : {}),
+        ...(m.repeatEnd ? { repeatEnd: true as const } : {}),
+        ...(m.ending ? { ending: { number: m.ending.number, start: m.ending.start, end: m.ending.end } } : {}),
+      })) ?? null,
+  };
+}
+
+/** The melody so far at prompt `index`: its notes up to that one and the bars they sit in, nothing after. */
+export function melodyAt(sheet: Melody, index: number): Melody {
+  const notes = sheet.notes.slice(0, index + 1);
+  const bar = notes.at(-1)?.bar ?? sheet.from;
+  return { ...sheet, notes, measures: sheet.measures?.slice(0, bar) ?? null };
 }

@@ -1,5 +1,5 @@
 /** Summaries and standings, derived from the room state only, so a rebuilt room reports the same. */
-import type { ServerMessageOf, Summary } from "./protocol";
+import type { ServerMessageOf, Summary } from "./messages";
 import type { Player, RoomState } from "./room";
 import { median } from "~/lib/median";
 import { teamScore } from "./scoring";

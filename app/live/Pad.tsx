@@ -1,20 +1,22 @@
 /**
  * The pad: the fretboard a student answers on, on their own phone. One answer per prompt,
  * locked on tap; the note itself is on the class screen, so eyes go up to read and down to play.
+ * A tap says where it stands: sending (also through a dropped connection), counted, or not
+ * counted with the server's reason, which unlocks the neck again while the prompt is open.
  * Built for one hand: the neck opens at the round's position, every spot is a big target, and the
  * settings a player needs (left-handed neck, sound) sit under the thumb at the bottom.
  */
-import { AnimatePresence, motion, useReducedMotion } from "framer-motion";
-import { useMemo, useState } from "react";
+import { useEffect, useMemo, useRef } from "react";
 import { Fretboard } from "~/components/Fretboard";
 import { useLeftHanded } from "~/components/LeftHanded";
-import { playSounding } from "~/components/sound";
-import { SoundControl } from "~/components/SoundControl";
+import { getSoundPrefs, playSounding } from "~/components/sound";
+import { PadSoundControl } from "~/components/SoundControl";
 import { Button, Field, Notice } from "~/components/ui";
 import { formatRoomCode } from "~/game/roomCode";
 import type { Spot } from "~/music/fretboard";
 import { MISTAKE_LABELS } from "~/music/mistakes";
 import { resolveTuning } from "~/music/tuning";
+import { settled, type AcceptedAck, type Tap } from "./answerQueue";
 import { FindEvery, Icon, MISTAKE_ICONS, StandingsBoard, TeamName, useMedia, useNow } from "./parts";
 import { screenOf, useRoomSocket, type LiveView } from "./useRoomSocket";
 
@@ -32,39 +34,59 @@ export function Pad(props: PadProps) {
   const [leftHanded, chooseHand] = useLeftHanded();
   // A phone on its side has little height: smaller cells keep all six strings on screen.
   const short = useMedia("(max-height: 500px)");
-  const [tapped, setTapped] = useState<{ promptId: string; spot: Spot } | null>(null);
   const me = state.welcome?.you ?? null;
   // The start deals the teams again, and the roster says so; the welcome's team is the one at joining.
   const team = state.roster?.players.find((p) => p.playerId === me?.playerId)?.team ?? me?.team ?? null;
   const screen = screenOf(state);
   const prompt = state.prompt;
   const now = useNow(state.phase === "prompt" ? 100 : 0);
+  // A signed-in student's name is known: the press that brought them here (Join, or the QR code) seats them.
+  const autoJoined = useRef(false);
+  const seatless = state.welcome !== null && state.welcome.you === null && state.connection === "open";
+  useEffect(() => {
+    if (!seatless || !props.accountName || autoJoined.current) return;
+    autoJoined.current = true;
+    join(props.accountName);
+  }, [seatless, props.accountName, join]);
 
   if (state.closedReason) return <Notice tone="error">{state.closedReason}</Notice>;
   if (!me) return <JoinForm code={props.code} accountName={props.accountName} error={state.error} onJoin={join} connected={state.connection === "open"} />;
 
   const open = state.phase === "prompt" && prompt && now >= toLocal(prompt.showAt) && now <= toLocal(prompt.deadline);
-  const mine = tapped?.promptId === prompt?.promptId ? tapped : null;
+  const taps = state.taps.filter((t) => t.promptId === prompt?.promptId);
+  const mine = taps.at(-1) ?? null;
   // Full neck allows a player to keep finding spots until a miss ends their turn.
   const fullNeck = prompt?.mode === "full-neck";
-  const locked = !open || (!fullNeck && (mine !== null || state.ack !== null));
+  // A tap the server refused does not hold the neck: the student may try again while the prompt is open.
+  const locked = !open || (!fullNeck && ((mine !== null && mine.status !== "refused") || state.ack !== null));
 
   const tap = (spot: Spot) => {
     if (!prompt || locked) return;
-    setTapped({ promptId: prompt.promptId, spot });
+    // Full neck: a spot already tapped on this prompt is not sent again.
+    if (taps.some((t) => t.status !== "refused" && t.spot.string === spot.string && t.spot.fret === spot.fret)) return;
     navigator.vibrate?.(15);
     answer(prompt.promptId, spot);
-    // The pitch just played, heard as the answer goes; silent when the player has turned sound off.
-    void playSounding(tuning.strings[spot.string - 1]! + spot.fret);
+    // The pitch just played, heard as the answer goes, only when the player turned the pad's sound on (headphones).
+    if (getSoundPrefs().padSound) void playSounding(tuning.strings[spot.string - 1]! + spot.fret);
   };
 
   const highlights = [
     ...(screen === "reveal" && state.reveal ? [{ ...state.reveal.home, kind: "home" as const }] : []),
-    ...(mine ? [{ ...mine.spot, kind: state.ack ? (state.ack.diagnosis.pitchRight ? ("tapped-right" as const) : ("tapped-wrong" as const)) : ("tapped" as const) }] : []),
-    ...(state.progress?.found.map((s) => ({ ...s, kind: "other" as const })) ?? []),
+    ...(mine && mine.status !== "refused"
+      ? [{ ...mine.spot, kind: mine.ack ? (mine.ack.diagnosis.pitchRight ? ("tapped-right" as const) : ("tapped-wrong" as const)) : ("tapped" as const) }]
+      : []),
+    // Full neck's finds give the note away: shown while it is open and at its reveal, not while paused.
+    ...((open || screen === "reveal") && state.progress ? state.progress.found.map((s) => ({ ...s, kind: "other" as const })) : []),
   ];
   const ended = screen === "ended";
-  const status = ended ? null : <Status state={state} open={Boolean(open)} waiting={Boolean(prompt && now < toLocal(prompt.showAt))} />;
+  // A tap on an earlier note still on its way, or refused after the round moved on (a dropped connection).
+  const earlier = mine ? null : (state.taps.findLast((t) => t.promptId !== prompt?.promptId && t.status !== "counted") ?? null);
+  const status = ended ? null : (
+    <>
+      {earlier ? <EarlierTap tap={earlier} /> : null}
+      <Status state={state} open={Boolean(open)} waiting={Boolean(prompt && now < toLocal(prompt.showAt))} tap={mine} />
+    </>
+  );
 
   return (
     <div className="mx-auto flex max-w-3xl flex-col gap-3">
@@ -73,7 +95,8 @@ export function Pad(props: PadProps) {
         {team === null ? null : <TeamName team={team} className="shrink-0 rounded-full bg-ink px-3 text-paper" />}
         {ended || state.connection === "open" ? null : (
           <span role="status" className="rounded-full bg-sky/20 px-3">
-            ⟳ reconnecting…
+            <Icon name="again" className="mr-1 inline h-4 w-4 align-[-0.15em]" />
+            reconnecting…
           </span>
         )}
         {/* On its side the phone has width to spare and no height: the status joins this row. */}
@@ -81,7 +104,13 @@ export function Pad(props: PadProps) {
         <span className="ml-auto shrink-0 text-ink-soft">room {formatRoomCode(props.code)}</span>
       </div>
       {ended ? (
-        state.ended && <Ended summary={state.ended.summaries.find((s) => s.playerId === me.playerId)} tuneName={state.ended.tuneName} />
+        state.ended && (
+          <Ended
+            summary={state.ended.summaries.find((s) => s.playerId === me.playerId)}
+            place={placeOf(state.standings, me.playerId)}
+            tuneName={state.ended.tuneName}
+          />
+        )
       ) : (
         <>
           {short ? null : status}
@@ -109,57 +138,50 @@ export function Pad(props: PadProps) {
           <Icon name="mirror" className="h-6 w-6" />
           Left-handed neck{leftHanded ? ": on" : ""}
         </button>
-        <SoundControl />
+        <PadSoundControl />
       </div>
     </div>
   );
 }
 
-function Status({ state, open, waiting }: { state: LiveView; open: boolean; waiting: boolean }) {
-  const reduce = useReducedMotion();
+function Status({ state, open, waiting, tap }: { state: LiveView; open: boolean; waiting: boolean; tap: Tap | null }) {
   const screen = screenOf(state);
-  const ack = state.ack;
   if (state.phase === "paused")
     return (
       <Banner tone="info">
-        <Icon name="pause" /> Paused: wait for the teacher to go on
+        <Icon name="pause" /> Paused: wait for the teacher to go on{tap && !settled(tap) ? ". Your tap goes in when the round goes on." : ""}
       </Banner>
     );
-  // The verdict on this prompt's answer stays up through its reveal.
-  if ((screen === "prompt" || screen === "reveal") && ack && state.prompt && ack.promptId === state.prompt.promptId) {
+  const onPrompt = screen === "prompt" || screen === "reveal";
+  // Never "counted" before the server says so.
+  if (onPrompt && tap && !settled(tap)) return <Sending offline={state.connection !== "open"} />;
+  if (onPrompt && tap?.refusal) return <Banner tone="error">✗ Not counted. {tap.refusal.reason}</Banner>;
+  // The verdict on this prompt's answer stays up through its reveal (after a reload: the catch-up's ack).
+  const ack: AcceptedAck | null = tap ? (tap.ack ?? null) : state.ack;
+  if (onPrompt && ack && state.prompt && ack.promptId === state.prompt.promptId) {
     const right = ack.diagnosis.kind === "home-spot";
     return (
-      <motion.div
-        initial={reduce ? false : { scale: 0.92, opacity: 0 }}
-        animate={{ scale: 1, opacity: 1 }}
-        transition={{ duration: 0.2 }}
+      // The motion is CSS (app.css), which the reduced-motion rule there stills.
+      <div
         role="status"
-        className={`rounded-2xl p-3 text-white [@media(max-height:500px)]:py-1 ${ack.diagnosis.pitchRight ? "bg-teal" : "bg-brick"}`}
+        className={`animate-pop-in rounded-2xl p-3 text-white [@media(max-height:500px)]:py-1 ${ack.diagnosis.pitchRight ? "bg-teal" : "bg-brick"}`}
       >
         <p className="flex flex-wrap items-center gap-x-3 font-display text-2xl font-semibold">
           <span>
-            <span aria-hidden="true">{MISTAKE_ICONS[ack.diagnosis.kind]} </span>
+            <Icon name={MISTAKE_ICONS[ack.diagnosis.kind]} className="mr-2 inline h-6 w-6 align-[-0.15em]" />
             {right ? "Home spot!" : MISTAKE_LABELS[ack.diagnosis.kind]}
           </span>
           <span className="tabular-nums">+{ack.points}</span>
-          <AnimatePresence>
-            {ack.streak > 1 ? (
-              // The streak pops each time it grows, so a run of right answers is felt, not just read.
-              <motion.span
-                key={ack.streak}
-                initial={reduce ? false : { scale: 1.6, opacity: 0 }}
-                animate={{ scale: 1, opacity: 1 }}
-                transition={{ type: "spring", stiffness: 400, damping: 18 }}
-                className="inline-flex items-center gap-1 rounded-full bg-white/20 px-3"
-              >
-                <Icon name="streak" /> {ack.streak} in a row
-              </motion.span>
-            ) : null}
-          </AnimatePresence>
+          {ack.streak > 1 ? (
+            // The streak pops each time it grows (a new key, a new element), so a run of right answers is felt, not just read.
+            <span key={ack.streak} className="inline-flex animate-streak-pop items-center gap-1 rounded-full bg-white/20 px-3">
+              <Icon name="streak" /> {ack.streak} in a row
+            </span>
+          ) : null}
         </p>
         <p className="text-lg">{ack.diagnosis.message}</p>
-        <p className="text-sm opacity-90">Total {ack.total} points</p>
-      </motion.div>
+        <p className="text-sm opacity-90">Counted · total {ack.total} points</p>
+      </div>
     );
   }
   if (state.error) return <Banner tone="error">✗ {state.error}</Banner>;
@@ -167,8 +189,31 @@ function Status({ state, open, waiting }: { state: LiveView; open: boolean; wait
   if (screen === "standings") return <Banner tone="info">Standings are on the class screen.</Banner>;
   if (screen === "prompt" && waiting) return <Banner tone="info">Get ready… look up at the class screen</Banner>;
   if (screen === "prompt" && open)
-    return <Banner tone="go">{state.prompt?.spotsToFind ? <FindEvery spots={state.prompt.spotsToFind} /> : "Find the note on the class screen and tap its home spot"}</Banner>;
+    return (
+      <Banner tone="go">
+        {/* The note (with its count of spots) reaches the pad just after showAt; the task is Full neck's own from the start. */}
+        {state.prompt?.mode === "full-neck" ? <FindEvery spots={state.note?.spotsToFind ?? null} /> : "Find the note on the class screen and tap its home spot"}
+      </Banner>
+    );
   return <Banner tone="info">You're in. Watch the class screen.</Banner>;
+}
+
+function Sending({ offline }: { offline: boolean }) {
+  return (
+    <Banner tone="info">
+      <span aria-hidden="true">⟳</span> Sending your tap…{offline ? " It goes as soon as the connection is back." : ""}
+    </Banner>
+  );
+}
+
+/** One line about a tap on an earlier note that has not been counted, above the current status. */
+function EarlierTap({ tap }: { tap: Tap }) {
+  if (!tap.refusal) return <Sending offline={false} />;
+  return (
+    <p role="status" className="rounded-2xl border-2 border-brick bg-brick/10 px-3 py-1 text-lg">
+      ✗ Your tap on the last note was not counted. {tap.refusal.reason}
+    </p>
+  );
 }
 
 function Banner({ tone, children }: { tone: "info" | "error" | "go"; children: React.ReactNode }) {
@@ -183,10 +228,28 @@ function Banner({ tone, children }: { tone: "info" | "error" | "go"; children: R
   );
 }
 
-function Ended({ summary, tuneName }: { summary?: { points: number; correct: number; answered: number; longestStreak: number }; tuneName: string | null }) {
-  const reduce = useReducedMotion();
+/** The player's own place in the final standings (and their team's), from the standings the end brought. */
+function placeOf(standings: LiveView["standings"], playerId: string) {
+  if (!standings?.final) return null;
+  const row = standings.points.find((r) => r.playerId === playerId);
+  if (!row) return null;
+  const team = row.team === null ? null : standings.teams.findIndex((t) => t.team === row.team);
+  return { rank: row.rank, of: standings.points.length, team: team === null || team < 0 ? null : { rank: team + 1, of: standings.teams.length, name: standings.teams[team]!.name } };
+}
+
+const ordinal = (n: number) => `${n}${n % 100 >= 11 && n % 100 <= 13 ? "th" : ["th", "st", "nd", "rd"][n % 10] ?? "th"}`;
+
+function Ended({
+  summary,
+  place,
+  tuneName,
+}: {
+  summary?: { points: number; correct: number; answered: number; longestStreak: number };
+  place: ReturnType<typeof placeOf>;
+  tuneName: string | null;
+}) {
   return (
-    <motion.section initial={reduce ? false : { opacity: 0, y: 12 }} animate={{ opacity: 1, y: 0 }} className="space-y-4">
+    <section className="animate-rise-in space-y-4">
       <h1 className="font-display text-3xl font-semibold">Round over — well played!</h1>
       {tuneName ? <p className="text-xl">The tune was “{tuneName}”.</p> : null}
       {summary ? (
@@ -194,6 +257,16 @@ function Ended({ summary, tuneName }: { summary?: { points: number; correct: num
           <p className="font-display leading-none">
             <span className="text-6xl font-semibold tabular-nums">{summary.points}</span> <span className="text-2xl">points</span>
           </p>
+          {place ? (
+            <p className="mt-3 font-display text-3xl" data-testid="own-place">
+              <span className="font-semibold">{ordinal(place.rank)}</span> of {place.of}
+              {place.team ? (
+                <span className="block text-xl">
+                  Team {place.team.name}: {ordinal(place.team.rank)} of {place.team.of} teams
+                </span>
+              ) : null}
+            </p>
+          ) : null}
           <p className="mt-3 text-xl">
             <span aria-hidden="true">✓ </span>
             {summary.correct} of {summary.answered} home spots
@@ -209,7 +282,7 @@ function Ended({ summary, tuneName }: { summary?: { points: number; correct: num
           <strong>Take a break to rest your hands.</strong> Shake them out and stretch your fingers before you practise again.
         </span>
       </p>
-    </motion.section>
+    </section>
   );
 }
 

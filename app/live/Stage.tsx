@@ -9,14 +9,18 @@ import { Fretboard } from "~/components/Fretboard";
 import { playSounding, soundUnlocked, unlockSound } from "~/components/sound";
 import { SoundControl } from "~/components/SoundControl";
 import { Staff } from "~/components/Staff";
+import { useWidth } from "~/components/TuneStaff";
 import { buttonClass } from "~/components/ui";
-import type { Phase, ServerMessage } from "~/game/protocol";
+import type { Phase, ServerMessage } from "~/game/messages";
 import { formatRoomCode } from "~/game/roomCode";
 import { soundingMidi } from "~/music/fretboard";
 import { MISTAKE_LABELS } from "~/music/mistakes";
-import { displayPitch, parsePitch, pitchMidi } from "~/music/pitch";
+import { parsePitch, pitchMidi } from "~/music/pitch";
+import { noteName } from "~/review/format";
+import { useNoteNaming } from "~/components/NoteNaming";
 import { resolveTuning } from "~/music/tuning";
-import { Countdown, FindEvery, Icon, MISTAKE_ICONS, Offline, SecondsLeft, StandingsBoard, TeamName, usePreviousOrder } from "./parts";
+import { Countdown, FindEvery, Icon, MISTAKE_ICONS, Offline, SecondsLeft, StandingsBoard, TeamName, usePreviousOrder, useReached } from "./parts";
+import { MelodySoFar, OffScreenUntil } from "./StageNote";
 import { screenOf, useRoomSocket } from "./useRoomSocket";
 export interface StageProps {
   roomId: string;
@@ -47,6 +51,16 @@ export function Stage(props: StageProps) {
   const reveal = screen === "reveal" ? state.reveal : null;
   const previousOrder = usePreviousOrder(state.standings);
   const offline = new Set(players.filter((p) => !p.online).map((p) => p.playerId));
+  // The stage has the note from the prompt on and shows it from showAt (local time); a paused prompt hides it until the new showAt.
+  const note = state.note && state.note.promptId === state.prompt?.promptId ? state.note : null;
+  const noteAt = !note ? null : screen === "reveal" ? 0 : screen === "prompt" && !paused && state.prompt ? toLocal(state.prompt.showAt) : null;
+  const shown = useReached(noteAt) ? note : null;
+  const [noteBox, noteWidth] = useWidth();
+
+  // The tune engraver (and its music font) loads in the lobby, so a Tune walk's first note is drawn the moment it shows.
+  useEffect(() => {
+    import("~/components/tuneRender").catch(() => undefined);
+  }, []);
 
   // The reveal sounds the note the class just read; the teacher's clicks on this page are the gesture that allows it.
   const revealed = state.reveal?.written;
@@ -135,24 +149,32 @@ export function Stage(props: StageProps) {
       {(screen === "prompt" || screen === "reveal") && state.prompt ? (
         <section className="space-y-4">
           {screen === "prompt" ? <Countdown showAt={toLocal(state.prompt.showAt)} deadline={toLocal(state.prompt.deadline)} frozenAt={frozenAt} /> : null}
-          {/* At the reveal the note shrinks and the class's answers join it in the top row, leaving room for the neck. */}
-          <div className={`grid gap-4 ${reveal ? "lg:grid-cols-[minmax(0,1fr)_17rem_22rem]" : "lg:grid-cols-[minmax(0,1fr)_22rem]"}`}>
-            <div data-written={state.prompt.written} className="flex items-center justify-center rounded-3xl bg-white px-4 shadow">
-              <Staff
-                notes={[{ written: state.prompt.written, accidental: state.prompt.printedAccidental }]}
-                keyFifths={state.prompt.keyFifths}
-                size={reveal ? "reveal" : "stage"}
-                className="w-full"
-              />
+          {/* At the reveal the note and its figures shrink (numbers still 48 px) and the class's answers join them in the
+              top row, so the whole neck with its key fits a 1366×768 projector below. */}
+          <div className={`grid gap-4 ${reveal ? "lg:grid-cols-[minmax(0,1fr)_auto_auto]" : "lg:grid-cols-[minmax(0,1fr)_22rem]"}`}>
+            {/* Until the note shows, the staff holds the key signature alone: no note on the page, drawn or named. */}
+            <div ref={noteBox} data-written={shown?.written} className="relative flex items-center justify-center rounded-3xl bg-white px-4 shadow">
+              <Staff notes={[]} keyFifths={note?.keyFifths ?? 0} size={reveal ? "reveal" : "stage"} className={`w-full ${shown ? "invisible" : ""}`} />
+              {shown || paused ? null : <p className="absolute inset-x-0 top-3 text-center font-display text-4xl text-ink-soft">Get ready…</p>}
+              {note ? (
+                <OffScreenUntil at={noteAt}>
+                  {note.melody ? (
+                    // Laid out for the box it will move into (the same padding): off-screen it has no width of its own.
+                    <MelodySoFar melody={note.melody} reveal={reveal !== null} width={noteWidth} />
+                  ) : (
+                    <Staff notes={[{ written: note.written, accidental: note.printedAccidental }]} keyFifths={note.keyFifths} size={reveal ? "reveal" : "stage"} className="w-full" />
+                  )}
+                </OffScreenUntil>
+              ) : null}
             </div>
-            <aside className="flex flex-col justify-center gap-4 font-display">
+            <aside className={`flex flex-col justify-center font-display ${reveal ? "gap-2" : "gap-4"}`}>
               <p className="leading-none">
                 <span className="text-3xl">Note </span>
-                <span className="text-7xl font-semibold tabular-nums">{state.prompt.index + 1}</span>
+                <span className={`${reveal ? "text-5xl" : "text-7xl"} font-semibold tabular-nums`}>{state.prompt.index + 1}</span>
                 <span className="text-3xl"> of {state.prompt.total}</span>
               </p>
               <p aria-live="polite" className="leading-none">
-                <span className="text-7xl font-semibold tabular-nums">
+                <span className={`${reveal ? "text-5xl" : "text-7xl"} font-semibold tabular-nums`}>
                   {reveal ? `${reveal.answered}/${reveal.of}` : `${state.answered?.count ?? 0}/${state.answered?.of ?? players.length}`}
                 </span>{" "}
                 <span className="text-3xl">answered</span>
@@ -163,12 +185,13 @@ export function Stage(props: StageProps) {
             </aside>
             {reveal ? <AnswerCounts counts={reveal.counts} /> : null}
           </div>
-          {state.prompt.spotsToFind ? (
+          {state.prompt.mode === "full-neck" ? (
             <p className="font-display text-4xl">
-              <FindEvery spots={state.prompt.spotsToFind} />
+              <FindEvery spots={shown?.spotsToFind ?? null} />
             </p>
           ) : null}
-          {state.progress ? (
+          {/* Full neck's count of spots narrows down the note: it shows with the note. */}
+          {shown && state.progress ? (
             <div>
               <p className="font-display text-4xl">
                 Spots found: {state.progress.found.length} of {state.progress.total}
@@ -194,6 +217,9 @@ export function Stage(props: StageProps) {
       {screen === "ended" && state.ended ? (
         <section className="space-y-6">
           <h2 className="font-display text-5xl font-semibold">Round complete{state.ended.tuneName ? ` — the tune was “${state.ended.tuneName}”` : ""}</h2>
+          {state.ended.reason === "idle" ? (
+            <p className="text-2xl text-ink-soft">This room ended by itself after hours without play. Its results are kept.</p>
+          ) : null}
           {state.standings ? <StandingsBoard standings={state.standings} previousOrder={previousOrder} offline={offline} big /> : null}
           <p className="flex items-center gap-3 text-2xl">
             <Icon name="rest" className="h-9 w-9 text-teal" />
@@ -233,13 +259,16 @@ function PlayerChip({ player, onRemove }: { player: RosterPlayer; onRemove: (pla
         className="ml-1 flex h-11 w-11 items-center justify-center rounded-full text-xl text-ink-soft hover:bg-brick/15"
         aria-label={`Remove ${player.nickname}`}
       >
-        ✕
+        <Icon name="cross" />
       </button>
     </motion.li>
   );
 }
 
 type RevealMessage = NonNullable<ReturnType<typeof useRoomSocket>["state"]["reveal"]>;
+
+/** Rows of answer counts before another column starts: more would push the neck below a 1366×768 screen. */
+const COUNT_ROWS = 3;
 
 /** How the class answered, kind by kind: icon and words for each, the count large enough for the back row. */
 function AnswerCounts({ counts }: { counts: RevealMessage["counts"] }) {
@@ -249,7 +278,7 @@ function AnswerCounts({ counts }: { counts: RevealMessage["counts"] }) {
     // The right answers first, then the commonest mistakes.
     .sort(([a, x], [b, y]) => Number(b === "home-spot") - Number(a === "home-spot") || y - x);
   return (
-    <ul className="flex flex-col justify-center gap-2 text-2xl">
+    <ul className="grid grid-flow-col content-center gap-2 text-xl" style={{ gridTemplateRows: `repeat(${Math.max(1, Math.min(COUNT_ROWS, kinds.length))}, auto)` }}>
       {kinds.map(([kind, n], i) => (
         <motion.li
           key={kind}
@@ -258,11 +287,9 @@ function AnswerCounts({ counts }: { counts: RevealMessage["counts"] }) {
           transition={{ delay: reduce ? 0 : 0.08 * i, duration: 0.2 }}
           className={`flex items-center gap-3 rounded-2xl px-4 py-1 ${kind === "home-spot" ? "bg-teal text-white" : "bg-white"}`}
         >
-          <span aria-hidden="true" className="w-8 text-center">
-            {MISTAKE_ICONS[kind as keyof typeof MISTAKE_ICONS]}
-          </span>
+          <Icon name={MISTAKE_ICONS[kind as keyof typeof MISTAKE_ICONS]} className="h-8 w-8" />
           <span className="flex-1">{kind === "no-answer" ? "no answer" : MISTAKE_LABELS[kind as keyof typeof MISTAKE_LABELS]}</span>
-          <strong className="font-display text-5xl tabular-nums">{n}</strong>
+          <strong className="font-display text-5xl leading-none tabular-nums">{n}</strong>
         </motion.li>
       ))}
     </ul>
@@ -274,16 +301,17 @@ function OfflineCount({ count }: { count: number }) {
   if (count === 0) return null;
   return (
     <p className="flex items-center gap-2 text-3xl text-ink-soft">
-      <span aria-hidden="true">⚠</span> {count} offline
+      <Icon name="warning" className="h-[1em] w-[1em]" /> {count} offline
     </p>
   );
 }
 
 function HomeSpotWords({ reveal }: { reveal: RevealMessage }) {
   const reduce = useReducedMotion();
+  const naming = useNoteNaming();
   return (
-    <motion.p initial={reduce ? false : { opacity: 0, scale: 0.9 }} animate={{ opacity: 1, scale: 1 }} transition={{ duration: 0.25 }} className="text-3xl">
-      <span className="text-6xl font-semibold">{displayPitch(parsePitch(reveal.written))}</span>
+    <motion.p initial={reduce ? false : { opacity: 0, scale: 0.9 }} animate={{ opacity: 1, scale: 1 }} transition={{ duration: 0.25 }} className="text-3xl leading-none">
+      <span className="text-5xl font-semibold">{noteName(reveal.written, naming)}</span>
       <span className="mt-1 flex items-center gap-2">
         <span aria-hidden="true" className="flex h-8 w-8 items-center justify-center rounded-full bg-teal text-xl text-white">
           ✓
@@ -329,7 +357,12 @@ function FullScreenButton({ target }: { target: React.RefObject<HTMLDivElement |
 
 function ConnectionBadge({ connection }: { connection: string }) {
   if (connection === "open") return null;
-  return <span className="rounded-full bg-sky/20 px-3 py-1">⟳ {connection === "closed" ? "disconnected" : "connecting…"}</span>;
+  return (
+    <span className="inline-flex items-center gap-1 rounded-full bg-sky/20 px-3 py-1">
+      <Icon name="again" className="h-[1em] w-[1em]" />
+      {connection === "closed" ? "disconnected" : "connecting…"}
+    </span>
+  );
 }
 
 function HostControls({
@@ -354,14 +387,16 @@ function HostControls({
             <Icon name={locked ? "lock" : "unlock"} /> {locked ? "Locked — unlock" : "Lock room"}
           </button>
           <button className={buttonClass("teal", "text-xl")} onClick={() => onAction("start")}>
-            ▶ Start
+            <Icon name="play" /> Start
           </button>
         </>
       ) : (
         <>
           <button className={buttonClass("ghost")} onClick={() => onAction(paused ? "resume" : "pause")}>
             {paused ? (
-              "▶ Resume"
+              <>
+                <Icon name="play" /> Resume
+              </>
             ) : (
               <>
                 <Icon name="pause" /> Pause
@@ -375,13 +410,19 @@ function HostControls({
           ) : null}
           {screen === "reveal" || screen === "standings" ? (
             <button className={buttonClass("teal", "text-xl")} onClick={() => onAction("next")}>
-              Next ▶
+              Next <Icon name="play" />
             </button>
           ) : null}
         </>
       )}
       <button className={buttonClass(confirmEnd ? "brick" : "ghost")} onClick={() => (confirmEnd ? onAction("end") : setConfirmEnd(true))}>
-        {confirmEnd ? "Really end?" : "■ End"}
+        {confirmEnd ? (
+          "Really end?"
+        ) : (
+          <>
+            <Icon name="stop" /> End
+          </>
+        )}
       </button>
     </div>
   );

@@ -1,30 +1,14 @@
-import { motion, useReducedMotion } from "framer-motion";
-import { useEffect, useState, useSyncExternalStore } from "react";
-import type { ServerMessageOf } from "~/game/protocol";
+// No animation library here: the pad loads these parts on a phone's first load, so motion is CSS and the Web Animations API.
+import { useEffect, useLayoutEffect, useRef, useState, useSyncExternalStore, type RefObject } from "react";
+import type { ServerMessageOf } from "~/game/messages";
+import { Icon } from "~/components/Icon";
 import { TEAM_NAMES } from "~/game/standings";
 
 // The stage and the pad take the icons from here with the rest of their parts.
 export { MISTAKE_ICONS } from "~/music/mistakes";
 
-const ICON_PATHS = {
-  pause: "M8 5v14M16 5v14",
-  skip: "M5 5l10 7-10 7zM19 5v14",
-  lock: "M6 11h12v9H6zM8.5 11V8a3.5 3.5 0 0 1 7 0v3",
-  unlock: "M6 11h12v9H6zM8.5 11V8a3.5 3.5 0 0 1 6.8-1.2",
-  streak: "M12 3c.5 3.5 5 5.5 5 10.5a5 5 0 0 1-10 0c0-2.6 1.6-3.8 2-6 1.3 1 1.8 2.3 1.8 3.6C12 9.5 12.4 6.5 12 3z",
-  fullscreen: "M4 9V4h5M20 9V4h-5M4 15v5h5M20 15v5h-5",
-  mirror: "M12 3v18M8 7l-4 5 4 5M16 7l4 5-4 5",
-  rest: "M7 11V6a1.5 1.5 0 0 1 3 0v4M10 10V4.5a1.5 1.5 0 0 1 3 0V10M13 10V5.5a1.5 1.5 0 0 1 3 0V11M16 11V8a1.5 1.5 0 0 1 3 0v5a7 7 0 0 1-7 7h-.5A6.5 6.5 0 0 1 6 16.5L4.3 13a1.5 1.5 0 0 1 2.7-1.4L7 11",
-} as const;
-
-/** Line icons drawn as paths, so they look the same whatever fonts or emoji the projector or phone has. */
-export function Icon({ name, className = "h-[1em] w-[1em]" }: { name: keyof typeof ICON_PATHS; className?: string }) {
-  return (
-    <svg viewBox="0 0 24 24" aria-hidden="true" className={`inline-block shrink-0 ${className}`} fill="none" stroke="currentColor" strokeWidth={2.2} strokeLinecap="round" strokeLinejoin="round">
-      <path d={ICON_PATHS[name]} />
-    </svg>
-  );
-}
+// The stage and the pad take the shared icons from here too.
+export { Icon } from "~/components/Icon";
 
 /** A media query's answer, false on the server; for layouts that CSS alone can't switch (the neck's cell size). */
 export function useMedia(query: string) {
@@ -42,7 +26,8 @@ export function useMedia(query: string) {
 export function Offline() {
   return (
     <span className="rounded-full bg-ink/10 px-2 text-base text-ink-soft" title="offline">
-      <span aria-hidden="true">⚠ </span>offline
+      <Icon name="warning" className="mr-1 inline h-4 w-4 align-[-0.15em]" />
+      offline
     </span>
   );
 }
@@ -77,6 +62,19 @@ export function Countdown({ showAt, deadline, frozenAt }: { showAt: number; dead
   );
 }
 
+/** Whether the local clock has reached `at`, re-rendering the moment it does (not on the next poll). */
+export function useReached(at: number | null) {
+  const [wakes, wake] = useState(0);
+  const reached = at !== null && Date.now() >= at;
+  useEffect(() => {
+    if (at === null || reached) return;
+    // `wakes` in the deps: a timer that fires a little early sets the next one.
+    const t = window.setTimeout(() => wake((n) => n + 1), at - Date.now());
+    return () => window.clearTimeout(t);
+  }, [at, reached, wakes]);
+  return reached;
+}
+
 export function useNow(everyMs: number) {
   const [now, setNow] = useState(() => Date.now());
   useEffect(() => {
@@ -85,6 +83,31 @@ export function useNow(everyMs: number) {
     return () => window.clearInterval(t);
   }, [everyMs]);
   return now;
+}
+
+/** Whether the player asked for reduced motion, following a change of mind; false on the server. */
+export function useReducedMotion() {
+  return useMedia("(prefers-reduced-motion: reduce)");
+}
+
+/**
+ * Rows (marked `data-glide="<key>"`) that change places glide to their new ones instead of jumping, so the class
+ * sees who moved: each starts where it stood and slides home (the FLIP technique). None under reduced motion.
+ */
+function useGlide(list: RefObject<HTMLElement | null>, order: string, still: boolean) {
+  const tops = useRef(new Map<string, number>());
+  useLayoutEffect(() => {
+    const rows = [...(list.current?.querySelectorAll<HTMLElement>("[data-glide]") ?? [])];
+    const now = new Map(rows.map((row) => [row.dataset.glide!, row.offsetTop]));
+    for (const row of still ? [] : rows) {
+      const from = tops.current.get(row.dataset.glide!);
+      const to = now.get(row.dataset.glide!)!;
+      if (from !== undefined && from !== to) {
+        row.animate([{ transform: `translateY(${from - to}px)` }, { transform: "none" }], { duration: 600, easing: "cubic-bezier(0.2, 0.8, 0.3, 1.05)" });
+      }
+    }
+    tops.current = now;
+  }, [list, order, still]);
 }
 
 /** Playing order as it was at the last standings: kept by the stage so the next standings can glide from it. */
@@ -126,17 +149,20 @@ export function StandingsBoard({
   };
   const ordered = settled ? standings.points : [...standings.points].sort((a, b) => before(a.playerId) - before(b.playerId));
   const rows = big ? ordered.slice(0, 10) : ordered;
+  const pointsList = useRef<HTMLOListElement>(null);
+  const streaksList = useRef<HTMLOListElement>(null);
+  useGlide(pointsList, rows.map((r) => r.playerId).join(" "), reduce);
+  useGlide(streaksList, standings.streaks.map((s) => s.playerId).join(" "), reduce);
   const heading = `font-display font-semibold ${big ? "text-5xl" : "text-2xl"}`;
   return (
     <section className={`grid gap-6 ${big ? "lg:grid-cols-[2fr_1fr]" : ""}`}>
       <div>
         <h2 className={heading}>{standings.final ? "Final standings" : "Standings"}</h2>
-        <ol className="mt-3 space-y-2">
+        <ol ref={pointsList} className="mt-3 space-y-2">
           {rows.map((r) => (
-            <motion.li
+            <li
               key={r.playerId}
-              layout={!reduce}
-              transition={{ type: "spring", stiffness: 260, damping: 30 }}
+              data-glide={r.playerId}
               className={`flex items-center gap-4 rounded-2xl px-4 ${r.playerId === highlight ? "bg-brass/30 ring-2 ring-brass" : "bg-white"} ${big ? "py-1 text-4xl" : "py-2 text-lg"}`}
             >
               <span className={`font-display font-semibold text-ink-soft tabular-nums ${big ? "w-24 text-5xl" : "w-10"}`}>{r.rank}.</span>
@@ -146,7 +172,7 @@ export function StandingsBoard({
                 {offline?.has(r.playerId) ? <span className="ml-2"><Offline /></span> : null}
               </span>
               <span className={`font-display font-semibold tabular-nums ${big ? "text-6xl" : ""}`}>{r.points}</span>
-            </motion.li>
+            </li>
           ))}
         </ol>
       </div>
@@ -158,7 +184,7 @@ export function StandingsBoard({
               {standings.teams.map((t) => (
                 <li key={t.team} className={`flex items-center justify-between rounded-2xl bg-white px-4 py-2 ${big ? "text-3xl" : ""}`}>
                   <span>
-                    <span aria-hidden="true">⚑ </span>
+                    <Icon name="flag" className="mr-1 inline h-[0.9em] w-[0.9em] align-[-0.1em]" />
                     {t.name} ({t.members})
                   </span>
                   <strong className={`font-display tabular-nums ${big ? "text-5xl" : ""}`}>{t.points}</strong>
@@ -168,16 +194,16 @@ export function StandingsBoard({
           </>
         ) : null}
         <h2 className={`${standings.teams.length > 0 ? "mt-4 " : ""}${heading}`}>Longest streaks</h2>
-        <ol className="mt-3 space-y-2">
+        <ol ref={streaksList} className="mt-3 space-y-2">
           {standings.streaks.slice(0, 5).map((s) => (
-            <motion.li key={s.playerId} layout={!reduce} className={`flex items-center justify-between rounded-2xl bg-white px-4 py-2 ${big ? "text-3xl" : ""}`}>
+            <li key={s.playerId} data-glide={s.playerId} className={`flex items-center justify-between rounded-2xl bg-white px-4 py-2 ${big ? "text-3xl" : ""}`}>
               <span className="min-w-0 truncate">{s.nickname}</span>
               <span className={`flex items-center gap-1 font-display font-semibold tabular-nums ${big ? "text-5xl" : ""}`}>
                 <Icon name="streak" className="h-[0.8em] w-[0.8em] text-brass" />
                 {s.longestStreak}
                 <span className="sr-only"> in a row</span>
               </span>
-            </motion.li>
+            </li>
           ))}
         </ol>
       </div>
@@ -185,8 +211,12 @@ export function StandingsBoard({
   );
 }
 
-/** Full neck's own task, said the same way on stage and pad: every spot of the pitch, not its home spot. */
-export function FindEvery({ spots }: { spots: number }) {
+/**
+ * Full neck's own task, said the same way on stage and pad: every spot of the pitch, not its home spot.
+ * Until the note shows its count is left out (`spots` null): it would narrow down the note.
+ */
+export function FindEvery({ spots }: { spots: number | null }) {
+  if (spots === null) return <span>Find every spot of this note on this neck</span>;
   return (
     <span>
       Find every spot of this note: <strong className="tabular-nums">{spots}</strong> on this neck

@@ -1,5 +1,4 @@
 // Keys, key signatures, accidentals within a bar, spelling a pitch as a reader expects, and the treble staff.
-import { Key as TonalKey } from "tonal";
 import {
   checkPitch,
   displayPitchClass,
@@ -28,11 +27,19 @@ function makeKey(tonic: string, mode: Key["mode"], fifths: number): Key {
   return { id: `${tonic}-${mode}`, name, tonic, mode, fifths };
 }
 
-// tonal supplies each major key's signature size and its relative minor, so neither is hand-typed here.
-const majors = MAJOR_TONICS.map((t) => {
-  const k = TonalKey.majorKey(t);
-  return { major: makeKey(t, "major", k.alteration), minorTonic: k.minorRelative };
-});
+/**
+ * A major key's relative minor is its sixth degree: five letters and nine half steps up (common practice, no
+ * source). Worked out here rather than taken from a music library, which the pad would otherwise download.
+ */
+function relativeMinorTonic(majorTonic: string): string {
+  const { letter, alter } = parsePitch(`${majorTonic}4`);
+  const minorLetter = LETTERS[(LETTERS.indexOf(letter) + 5) % 7]!;
+  const minorAlter = ((LETTER_SEMITONES[letter] + alter + 9 - LETTER_SEMITONES[minorLetter] + 18) % 12) - 6;
+  return minorLetter + (minorAlter > 0 ? "#" : "b").repeat(Math.abs(minorAlter));
+}
+
+// MAJOR_TONICS runs round the circle of fifths, so each key's place in it is its signature: Cb −7 … C# +7.
+const majors = MAJOR_TONICS.map((t, i) => ({ major: makeKey(t, "major", i - 7), minorTonic: relativeMinorTonic(t) }));
 export const KEYS: Key[] = [
   ...majors.map((m) => m.major),
   ...majors.map((m) => makeKey(m.minorTonic, "minor", m.major.fifths)),

@@ -1,6 +1,7 @@
 import { describe, expect, it } from "vitest";
+import type { NoteNaming } from "./naming";
 import type { Spot } from "./fretboard";
-import { diagnose, MISTAKE_LABELS, type MistakeKind } from "./mistakes";
+import { diagnose, diagnosePlayed, MISTAKE_LABELS, type MistakeKind } from "./mistakes";
 import { keyAlter } from "./keys";
 import { MusicError, parsePitch } from "./pitch";
 import { buildPool, type PoolNote, type ReadingSpec } from "./pools";
@@ -116,6 +117,15 @@ describe("diagnose", () => {
     expect(MISTAKE_LABELS[d.kind]).toBeTruthy();
   });
 
+  it("names the notes in the class's naming (table in naming.test.ts)", () => {
+    const named = (written: string, tapped: Spot, naming: NoteNaming) =>
+      diagnose({ note: note(written), keyFifths: 1, tapped, tuning: TUNINGS.standard, reading: "guitar", naming }).message;
+    expect(named("G4", { string: 4, fret: 4 }, "solfege")).toBe("A half step (one fret) too low: you played Fa♯, the note is Sol. Home spot: string 4, fret 5.");
+    expect(named("F#5", { string: 4, fret: 4 }, "german")).toBe("Right letter, but an octave too low: you played Fis4, the note is Fis5. Home spot: string 1, fret 2.");
+    expect(named("F#5", { string: 1, fret: 1 }, "german")).toBe("The key signature makes this Fis; you played F. Home spot: string 1, fret 2.");
+    expect(named("B4", { string: 3, fret: 5 }, "german")).toBe("A half step (one fret) too high: you played C, the note is H. Home spot: string 3, fret 4.");
+  });
+
   it("homeOnly: another spot has the right pitch but does not count", () => {
     expect(tap("F#5", { string: 2, fret: 7 }, true)).toEqual({
       kind: "other-spot",
@@ -164,5 +174,44 @@ describe("diagnose", () => {
     expect(() => diagnose({ note: note("F#5"), keyFifths: 1, tapped: { string: 1, fret: 2 }, tuning: TUNINGS.standard, reading: "x" as never })).toThrow(
       /Reading must be/,
     );
+  });
+});
+
+describe("diagnosePlayed: a heard (sounding) MIDI number against the written note", () => {
+  // MIDI 1.0 note numbers: C4 = 60, each half step one number. Guitar sounds an octave below written
+  // (common practice, no source); concert pitch sounds as written. G major, second position (the pool above).
+  const ROWS: [string, "guitar" | "concert", number, MistakeKind][] = [
+    ["G4", "guitar", 55, "home-spot"], // G4 written = 67, sounds G3 = 55
+    ["G4", "guitar", 67, "octave-off"], // sounding as written: an octave high
+    ["G4", "guitar", 43, "octave-off"],
+    ["G4", "guitar", 56, "half-step-off"],
+    ["G4", "guitar", 54, "half-step-off"],
+    ["G4", "guitar", 60, "wide-miss"],
+    ["F#4", "guitar", 53, "key-signature-miss"], // F♯4 = 66 − 12 = 54; F natural = 53
+    ["G4", "concert", 67, "home-spot"],
+    ["G4", "concert", 55, "octave-off"],
+    ["G4", "concert", 68, "half-step-off"],
+  ];
+  it.each(ROWS)("%s (%s reading) heard as %i → %s", (written, reading, heardMidi, kind) => {
+    const d = diagnosePlayed({ note: note(written), keyFifths: 1, heardMidi, reading });
+    expect(d.kind).toBe(kind);
+    expect(d.pitchRight).toBe(kind === "home-spot");
+  });
+
+  it("an accidental misread by ear is an accidental miss", () => {
+    // C♯5 in G major carries a printed sharp; C natural played = one half step lower (MIDI 1.0: C5 = 72, sounds 60).
+    const d = diagnosePlayed({ note: note("C#5"), keyFifths: 1, heardMidi: 60, reading: "guitar" });
+    expect(d.kind).toBe("accidental-miss");
+  });
+
+  it("says the string cannot be heard, and names the home spot", () => {
+    const n = note("G4");
+    const d = diagnosePlayed({ note: n, keyFifths: 1, heardMidi: 55, reading: "guitar" });
+    expect(d.message).toContain("cannot tell the string");
+    expect(d.message).toContain(`string ${n.home.string}, fret ${n.home.fret}`);
+  });
+
+  it.each([-1, 128, 60.5, Number.NaN])("refuses a heard note of %s", (heardMidi) => {
+    expect(() => diagnosePlayed({ note: note("G4"), keyFifths: 1, heardMidi, reading: "guitar" })).toThrow(MusicError);
   });
 });

@@ -3,6 +3,7 @@ import { Unzip, UnzipInflate } from "fflate";
 import { XMLParser, XMLValidator } from "fast-xml-parser";
 import { checkFifths, spellInKey, type PrintedAccidental } from "./keys";
 import { checkPitch, LETTERS, MusicError, pitchMidi, pitchToString, type Letter, type Pitch } from "./pitch";
+import { readTempo, type ScoreTempo } from "./tempo";
 
 export interface TuneNote {
   written: string /* ASCII spelling */;
@@ -30,6 +31,11 @@ export interface TuneBar {
   keyFifths: number;
   /** A short first bar (MusicXML implicit="yes", or shorter than its meter). */
   pickup: boolean;
+  /** Repeat bar lines as written (MusicXML 4.0 <barline><repeat direction>); not expanded. Absent when none. */
+  repeatStart?: true;
+  repeatEnd?: true;
+  /** A volta bracket opening or closing over this bar (MusicXML 4.0 <ending number type>); "open" ends without a hook. */
+  ending?: { number: string; start: boolean; end: "hook" | "open" | null };
 }
 /** What the melody line does not include, for the teacher to see. */
 export interface LeftOut {
@@ -58,6 +64,8 @@ export interface Tune {
   measures: TuneBar[];
   notes: TuneNote[];
   leftOut: LeftOut;
+  /** The first tempo the score marks, or null (the student then picks one). */
+  tempo: ScoreTempo | null;
 }
 
 /*
@@ -232,9 +240,11 @@ function readPart(part: XmlNode): PartReading {
       return positiveNumber(textOf(find(node, "duration")), `${where}: duration`) / divisions;
     };
     const fifthsNow = () => concertFifths(writtenFifths, transpose);
+    const signs: Pick<TuneBar, "repeatStart" | "repeatEnd" | "ending"> = {};
     for (const item of kids(measure)) {
       const tag = tagOf(item);
-      if (tag === "attributes") {
+      if (tag === "barline") readBarline(item, signs);
+      else if (tag === "attributes") {
         const d = textOf(find(item, "divisions"));
         if (d !== undefined) {
           divisions = positiveNumber(d, `${where}: divisions`);
@@ -347,6 +357,7 @@ function readPart(part: XmlNode): PartReading {
       ...meter,
       keyFifths: fifthsNow(),
       pickup: barIndex === 0 && (attr(measure, "implicit") === "yes" || (longest > 0 && longest < full - EPSILON)),
+      ...signs,
     });
     barStart += longest;
   });
@@ -354,6 +365,24 @@ function readPart(part: XmlNode): PartReading {
 }
 
 const EPSILON = 1e-6;
+
+/**
+ * Repeat signs and volta brackets of one <barline> (MusicXML 4.0): <repeat direction="forward"> opens a repeat
+ * (at the bar's left), "backward" closes one (at its right); <ending type="start"> opens a bracket numbered
+ * by its number attribute ("1", "1, 2"), "stop" closes it with a hook, "discontinue" without one.
+ */
+function readBarline(barline: XmlNode, signs: Pick<TuneBar, "repeatStart" | "repeatEnd" | "ending">) {
+  const direction = attr(find(barline, "repeat"), "direction");
+  if (direction === "forward") signs.repeatStart = true;
+  if (direction === "backward") signs.repeatEnd = true;
+  const ending = find(barline, "ending");
+  const type = attr(ending, "type");
+  if (!ending || !type) return;
+  signs.ending ??= { number: (attr(ending, "number") ?? "").slice(0, 16), start: false, end: null };
+  if (type === "start") signs.ending.start = true;
+  if (type === "stop") signs.ending.end = "hook";
+  if (type === "discontinue") signs.ending.end = "open";
+}
 
 /** Merges tied notes into one, then keeps the highest note at each onset and drops lower voices under a held note. */
 function topLine(raw: RawNote[]): { line: TuneNote[]; chordNotes: number; lowerVoiceNotes: number } {
@@ -392,6 +421,33 @@ function topLine(raw: RawNote[]): { line: TuneNote[]; chordNotes: number; lowerV
     line.push(kept);
   }
   return { line, chordNotes, lowerVoiceNotes };
+}
+
+/**
+ * The first tempo in the score, looking in the given parts in order (the one read first: a tempo is often
+ * written in the top part only). MusicXML 4.0: <direction><direction-type><metronome> holds <beat-unit>,
+ * <beat-unit-dot/> and <per-minute>; <sound tempo> (in a direction or a measure) counts quarter notes a minute.
+ * Later tempo changes are not followed.
+ */
+function firstTempo(parts: XmlNode[]): ScoreTempo | null {
+  for (const part of parts) {
+    for (const measure of findAll(part, "measure")) {
+      for (const item of kids(measure)) {
+        const tag = tagOf(item);
+        if (tag !== "direction" && tag !== "sound") continue;
+        const metronome = findAll(item, "direction-type").map((d) => find(d, "metronome")).find((m) => m !== undefined);
+        const sound = tag === "sound" ? item : find(item, "sound");
+        const tempo = readTempo({
+          beatUnit: textOf(find(metronome, "beat-unit")),
+          dots: findAll(metronome, "beat-unit-dot").length,
+          perMinute: textOf(find(metronome, "per-minute")),
+          soundTempo: attr(sound, "tempo"),
+        });
+        if (tempo) return tempo;
+      }
+    }
+  }
+  return null;
 }
 
 /**
@@ -436,6 +492,7 @@ export function parseMusicXml(text: string, partId?: string): Tune {
       lowerVoiceNotes: chosen.top.lowerVoiceNotes,
       otherParts: read.filter((p) => p !== chosen).map((p) => p.name),
     },
+    tempo: firstTempo([partNodes[read.indexOf(chosen)]!, ...partNodes.filter((_, i) => read[i] !== chosen)]),
   };
 }
 

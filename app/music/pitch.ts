@@ -28,7 +28,7 @@ const ACCIDENTAL_SYMBOLS: Readonly<Record<string, number>> = {
   "#": 1, "♯": 1, x: 2, "𝄪": 2, b: -1, "♭": -1, "𝄫": -2,
 };
 const ASCII_ACCIDENTALS: Readonly<Record<number, string>> = { [-2]: "bb", [-1]: "b", 0: "", 1: "#", 2: "##" };
-const DISPLAY_ACCIDENTALS: Readonly<Record<number, string>> = { [-2]: "𝄫", [-1]: "♭", 0: "", 1: "♯", 2: "𝄪" };
+export const DISPLAY_ACCIDENTALS: Readonly<Record<number, string>> = { [-2]: "𝄫", [-1]: "♭", 0: "", 1: "♯", 2: "𝄪" };
 const SPOKEN_ACCIDENTALS: Readonly<Record<number, string>> = {
   [-2]: " double flat", [-1]: " flat", 0: "", 1: " sharp", 2: " double sharp",
 };

@@ -2,6 +2,7 @@
 import { Link } from "react-router";
 import { Badge, buttonClass, Card } from "~/components/ui";
 import { goalWords, progressWords, type Goal, type Progress, type Status } from "./progress";
+import { Icon } from "~/components/Icon";
 
 /** A due time in the reader's own time zone (the server renders UTC; the browser corrects it). */
 export function DueTime({ ms }: { ms: number }) {
@@ -36,7 +37,7 @@ export function ProgressBar({ goal, progress, status, label }: { goal: Goal; pro
         <div className={`h-full rounded-full ${status === "done" ? "bg-teal" : "bg-brass"}`} style={{ width: `${Math.round(fraction * 100)}%` }} />
       </div>
       <p className="mt-1 text-sm text-ink-soft">
-        {status === "done" ? <span aria-hidden="true">✓ </span> : null}
+        {status === "done" ? <Icon name="check" className="mr-1 inline h-4 w-4 align-[-0.15em]" /> : null}
         {words}
       </p>
     </div>
@@ -80,7 +81,8 @@ export function OpenAssignments({ items }: { items: OpenAssignment[] }) {
               </div>
               {a.status === "done" ? null : (
                 <Link to={a.practiceUrl} className={buttonClass("teal", "mt-3")}>
-                  ▶ Practise
+                  <Icon name="play" className="h-4 w-4" />
+                  Practise
                 </Link>
               )}
             </Card>

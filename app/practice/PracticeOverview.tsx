@@ -7,6 +7,7 @@ import { HeatmapFretboard, HeatmapStaves } from "~/review/ReviewParts";
 import type { NoteCell } from "~/review/stats";
 import type { Streak } from "./summary";
 import { rememberTimeZone } from "./tz";
+import { Icon } from "~/components/Icon";
 
 export interface PracticeOverviewData {
   streak: Streak;
@@ -27,10 +28,17 @@ function StreakLine({ streak }: { streak: Streak }) {
   if (streak.days === 0) return <p className="text-lg">No streak yet: practise today to start one.</p>;
   return (
     <p className="text-lg">
-      <span aria-hidden="true">🔥 </span>
+      <Icon name="streak" className="mr-1 inline h-7 w-7 align-[-0.2em] text-brass" />
       <strong className="font-display text-3xl">{streak.days}</strong> {streak.days === 1 ? "day" : "days"} in a row
       <span className="block text-base text-ink-soft">
-        {streak.practisedToday ? "✓ You've practised today." : "Practise today to keep your streak going."}
+        {streak.practisedToday ? (
+          <>
+            <Icon name="check" className="mr-1 inline h-4 w-4 align-[-0.15em]" />
+            You've practised today.
+          </>
+        ) : (
+          "Practise today to keep your streak going."
+        )}
       </span>
     </p>
   );

@@ -27,8 +27,10 @@
  *    last outcome, then where the note stands.
  */
 import type { MistakeKind } from "~/music/mistakes";
-import { displayPitchClass, parsePitch } from "~/music/pitch";
+import { noteName as nameIn, type NoteNaming } from "~/music/naming";
+import { parsePitch } from "~/music/pitch";
 import { staffPlace } from "~/components/staffText";
+import { plural } from "~/lib/plural";
 
 export const TOP_BOX = 4;
 export const STEADY_BOX = 2;
@@ -136,19 +138,19 @@ export interface Choice {
 }
 
 /** How a student names a note on the page: its letter and sign, and where it sits: "F♯ (top line)". */
-export function noteName(written: string): string {
+export function noteName(written: string, naming?: NoteNaming): string {
   const pitch = parsePitch(written);
-  return `${displayPitchClass(pitch)} (${staffPlace(pitch)})`;
+  return `${nameIn(pitch, naming)} (${staffPlace(pitch)})`;
 }
 
 const times = (n: number) => (n === 1 ? "once" : n === 2 ? "twice" : `${n} times`);
 
 /** Rule 4: misses today first, then the last outcome, then where the note stands. */
-export function reasonFor(note: OrderedNote, state: NoteState | undefined, inPlay: InPlay): string {
-  const name = noteName(note.written);
+export function reasonFor(note: OrderedNote, state: NoteState | undefined, inPlay: InPlay, naming?: NoteNaming): string {
+  const name = noteName(note.written, naming);
   if (!state) {
     if (inPlay.joinReason === "steady") {
-      return `New note: ${name}. Your other ${inPlay.active.length} notes are steady (box ${STEADY_BOX} or higher), so it joins now.`;
+      return `New note: ${name}. Your other ${plural(inPlay.active.length, "note")} ${inPlay.active.length === 1 ? "is" : "are"} steady (box ${STEADY_BOX} or higher), so it joins now.`;
     }
     return `${name} is one of your first notes here. Find its home spot.`;
   }
@@ -174,12 +176,12 @@ export function reasonFor(note: OrderedNote, state: NoteState | undefined, inPla
 export function chooseNext(
   order: readonly OrderedNote[],
   states: Map<number, NoteState>,
-  opts: { previous?: number; random: () => number },
+  opts: { previous?: number; random: () => number; naming?: NoteNaming },
 ): Choice {
   if (order.length === 0) throw new Error("Nothing to practise: the note list is empty.");
   const inPlay = notesInPlay(order, states);
   const joining = inPlay.joining.find((n) => n.writtenMidi !== opts.previous);
-  if (joining) return { note: joining, box: 0, reason: reasonFor(joining, undefined, inPlay), candidates: [] };
+  if (joining) return { note: joining, box: 0, reason: reasonFor(joining, undefined, inPlay, opts.naming), candidates: [] };
 
   const pool = inPlay.active.length > 0 ? inPlay.active : inPlay.joining;
   const others = pool.filter((n) => n.writtenMidi !== opts.previous);
@@ -203,7 +205,7 @@ export function chooseNext(
   return {
     note: chosen.note,
     box: chosen.box,
-    reason: reasonFor(chosen.note, chosen.state, inPlay),
+    reason: reasonFor(chosen.note, chosen.state, inPlay, opts.naming),
     candidates: listed.map((c, i) => ({ writtenMidi: c.note.writtenMidi, box: c.box, weight: weights[i]! })),
   };
 }

@@ -1,11 +1,12 @@
 // Storing and reading solo practice answers. The server decides: each answer is diagnosed again from the written
-// note and the tapped spot against the home-spot map the server chooses; a batch with any bad answer stores nothing.
+// note and the tapped spot (or the played note heard) against the home-spot map the server chooses; a batch with
+// any bad answer stores nothing.
 import { and, desc, eq, gte } from "drizzle-orm";
 import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
 import { memberships, practiceAnswers } from "~/db/schema";
 import { checkSpot } from "~/music/fretboard";
-import { diagnose } from "~/music/mistakes";
+import { diagnose, diagnosePlayed } from "~/music/mistakes";
 import { displayPitch, MusicError, parsePitch } from "~/music/pitch";
 import { positionWindow } from "~/music/positions";
 import { resolveTuning } from "~/music/tuning";
@@ -16,44 +17,54 @@ import {
   type AnswerProblem,
   type BatchAccepted,
   type BatchRefused,
-  type PracticeAnswerInput,
+  type PracticeAnswer,
 } from "./answers";
 import { studentAssignments } from "./assignments.server";
+import { creditedAssignment } from "./progress";
 import { poolNoteOn } from "./pool";
 import { spotMapFor } from "./practice.server";
 
 type Row = typeof practiceAnswers.$inferInsert;
+type StudentAssignment = Awaited<ReturnType<typeof studentAssignments>>[number];
 
 /** Checks one answer against the engine and the student's classes and assignments; the row or a message. */
 async function checked(
   db: Db,
   user: SessionUser,
-  a: PracticeAnswerInput,
-  ctx: { now: number; classIds: Set<string>; assignmentIds: Set<string> },
+  a: PracticeAnswer,
+  ctx: { now: number; classIds: Set<string>; mine: StudentAssignment[] },
 ): Promise<{ row: Row; message: string } | string> {
   if (a.at < ctx.now - MAX_AGE_MS) return `answered on ${new Date(a.at).toISOString().slice(0, 10)}, more than 7 days ago: too old to count.`;
   if (a.at > ctx.now + MAX_CLOCK_AHEAD_MS) return "its time lies in the future; check the phone's clock.";
   if (a.classId && !ctx.classIds.has(a.classId)) return "you are not in that class.";
-  if (a.assignmentId && !ctx.assignmentIds.has(a.assignmentId)) return "that assignment is not one of yours.";
+  const credited = creditedAssignment(ctx.mine, a.source, a.assignmentId);
+  if (a.assignmentId && !credited) return "that assignment is not one of yours.";
   try {
     const tuning = resolveTuning(a.tuning);
     positionWindow(a.position);
-    const tapped = checkSpot({ string: a.string, fret: a.fret }, tuning);
+    const tapped = a.input === "tap" ? checkSpot({ string: a.string!, fret: a.fret! }, tuning) : null;
     const { map } = await spotMapFor(db, a.classId ?? null, a.position, tuning.id);
     const note = poolNoteOn(map, a.written, a.keyFifths);
     if (!note) return `${displayPitch(parsePitch(a.written))} has no home spot in position ${a.position}.`;
-    const verdict = diagnose({ note, keyFifths: a.keyFifths, tapped, tuning, reading: "guitar" });
+    // The map says how its notes are read: guitar (sounds an octave below written) or concert pitch.
+    const reading = map.reading;
+    const verdict = tapped
+      ? diagnose({ note, keyFifths: a.keyFifths, tapped, tuning, reading })
+      : diagnosePlayed({ note, keyFifths: a.keyFifths, heardMidi: a.heardMidi!, reading });
     const row: Row = {
       userId: user.id,
       clientId: a.clientId,
-      assignmentId: a.assignmentId ?? null,
+      assignmentId: credited?.id ?? null,
       source: a.source,
       position: a.position,
       tuning: tuning.id,
       written: note.written,
       writtenMidi: note.writtenMidi,
-      string: tapped.string,
-      fret: tapped.fret,
+      input: a.input,
+      string: tapped?.string ?? null,
+      fret: tapped?.fret ?? null,
+      heardMidi: tapped ? null : a.heardMidi!,
+      heardCents: tapped ? null : (a.heardCents ?? 0),
       kind: verdict.kind,
       pitchRight: verdict.pitchRight,
       reactionMs: a.reactionMs,
@@ -97,9 +108,9 @@ export async function recordPracticeAnswers(db: Db, user: SessionUser, body: unk
 
   const [classRows, mine] = await Promise.all([
     db.select({ classId: memberships.classId }).from(memberships).where(eq(memberships.userId, user.id)),
-    list.some((a) => a.assignmentId) ? studentAssignments(db, user.id, now) : Promise.resolve([]),
+    studentAssignments(db, user.id, now),
   ]);
-  const ctx = { now, classIds: new Set(classRows.map((r) => r.classId)), assignmentIds: new Set(mine.map((a) => a.id)) };
+  const ctx = { now, classIds: new Set(classRows.map((r) => r.classId)), mine };
   const checkedRows: { row: Row; message: string }[] = [];
   const problems: AnswerProblem[] = [];
   for (const [index, a] of list.entries()) {

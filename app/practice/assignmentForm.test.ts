@@ -23,9 +23,11 @@ describe("the assignment form", () => {
       title: "",
       material: { kind: "preset", id: "ready-naturals-5" },
       students: [],
-      goal: { notes: 40, accuracyPct: 90, medianMs: 2000 },
+      goal: { notes: 40, accuracyPct: 90, medianMs: 2000, playedOnly: false },
       dueAt: Date.UTC(2026, 11, 8, 18, 0),
     });
+    // The "Ask for played answers" checkbox: sent as "on" only when ticked.
+    expect(parse({ playedOnly: "on" }).data?.goal.playedOnly).toBe(true);
     // Chosen students, each once; an empty time goal is no time goal; 1.5 s = 1500 ms.
     const chosen = parse({ audience: "chosen", students: "a,b,a", goalSeconds: "" });
     expect(chosen.success && chosen.data).toMatchObject({ students: ["a", "b"], goal: { medianMs: null } });

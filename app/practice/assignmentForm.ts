@@ -65,6 +65,8 @@ export function assignmentFormSchema(now: number) {
           .max(GOAL_SECONDS_RANGE[1], `Median time: at most ${GOAL_SECONDS_RANGE[1]} s, or leave it empty.`)
           .optional(),
       ),
+      // A checkbox: sent as "on" when ticked, absent otherwise.
+      playedOnly: z.preprocess((v) => v === "on" || v === "true", z.boolean()),
       due: z.string("Choose a due date and time.").regex(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}$/, "Choose a due date and time."),
       tzOffset: z.preprocess((v) => blankToUndefined(v) ?? 0, z.coerce.number().int().min(-840).max(840)),
     })
@@ -83,7 +85,12 @@ export function assignmentFormSchema(now: number) {
         title: f.title,
         material: { kind, id } satisfies MaterialRef,
         students: f.audience === "chosen" ? [...new Set(f.students)] : [],
-        goal: { notes: f.goalNotes, accuracyPct: f.goalAccuracy, medianMs: f.goalSeconds === undefined ? null : Math.round(f.goalSeconds * 1000) },
+        goal: {
+          notes: f.goalNotes,
+          accuracyPct: f.goalAccuracy,
+          medianMs: f.goalSeconds === undefined ? null : Math.round(f.goalSeconds * 1000),
+          playedOnly: f.playedOnly,
+        },
         dueAt: dueAtFrom(f.due, f.tzOffset)!,
       };
     });

@@ -125,6 +125,7 @@ export async function createAssignment(
       goalNotes: input.goal.notes,
       goalAccuracy: input.goal.accuracyPct,
       goalMedianMs: input.goal.medianMs,
+      playedOnly: input.goal.playedOnly ?? false,
       dueAt: new Date(input.dueAt),
       createdBy: user.id,
       createdAt: new Date(now),
@@ -142,10 +143,11 @@ export async function deleteAssignment(db: Db, classId: string, id: string) {
 
 // ---- who and how far -----------------------------------------------------------------------------
 
-export const goalOf = (a: Pick<Assignment, "goalNotes" | "goalAccuracy" | "goalMedianMs">): Goal => ({
+export const goalOf = (a: Pick<Assignment, "goalNotes" | "goalAccuracy" | "goalMedianMs" | "playedOnly">): Goal => ({
   notes: a.goalNotes,
   accuracyPct: a.goalAccuracy,
   medianMs: a.goalMedianMs,
+  playedOnly: a.playedOnly,
 });
 
 export interface Target {
@@ -192,12 +194,13 @@ async function practiceFor(db: Db, assignmentIds: readonly string[], userIds?: r
       pitchRight: practiceAnswers.pitchRight,
       reactionMs: practiceAnswers.reactionMs,
       at: practiceAnswers.at,
+      input: practiceAnswers.input,
     })
     .from(practiceAnswers)
     .where(and(inArray(practiceAnswers.assignmentId, [...assignmentIds]), userIds ? inArray(practiceAnswers.userId, [...userIds]) : undefined));
   for (const r of rows) {
     const key = `${r.assignmentId} ${r.userId}`;
-    byKey.set(key, [...(byKey.get(key) ?? []), { kind: r.kind, pitchRight: r.pitchRight, reactionMs: r.reactionMs, at: r.at.getTime() }]);
+    byKey.set(key, [...(byKey.get(key) ?? []), { kind: r.kind, pitchRight: r.pitchRight, reactionMs: r.reactionMs, at: r.at.getTime(), input: r.input }]);
   }
   return byKey;
 }

@@ -13,6 +13,8 @@ const LEAD_MS = 400;
 // A short high tick, brighter on the bar line, in the range a phone speaker plays well.
 const TICK_HZ = 1320;
 const ACCENT_HZ = 1760;
+/** The click's pitches, so that listening can tell the click heard back from a note played. */
+export const CLICK_HZ = [TICK_HZ, ACCENT_HZ] as const;
 
 /**
  * Schedules every click ahead on the audio clock, so the beat stays steady however busy the page is. Without

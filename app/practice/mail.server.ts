@@ -12,16 +12,19 @@
  * pass tries again, and two servers sharing a database can't both send it.
  */
 import { and, eq, gt, gte, inArray, isNotNull, isNull, lt, lte, sql } from "drizzle-orm";
+import { memoryLocks, type Locks } from "~/cluster/shared.server";
 import type { Db } from "~/db/client.server";
 import { assignments, classes, mailLog, memberships, practiceAnswers, users } from "~/db/schema";
 import type { Mailer, OutgoingMail } from "~/mail/mailer.server";
 import { MISTAKE_LABELS, type MistakeKind } from "~/music/mistakes";
 import { noteName } from "~/review/format";
+import { schoolNaming } from "~/school/naming.server";
 import { reteachList } from "~/review/stats";
 import { classAssignmentsPath, MATERIAL_WORDS, practicePath } from "./assignmentForm";
 import { assignmentViews, classStudents, type AssignmentView } from "./assignments.server";
 import { goalWords, progressWords } from "./progress";
 import { noteCells } from "./summary";
+import { plural } from "~/lib/plural";
 
 const HOUR = 3_600_000;
 const DAY = 24 * HOUR;
@@ -187,9 +190,9 @@ export function digestWeek(now: number): { start: number; end: number; id: strin
 /** Ends with one full stop, also after a name that ends in an initial ("Ness R."). */
 const sentence = (text: string) => (text.endsWith(".") ? text : `${text}.`);
 
-/** One class's part of a digest, as lines of text. */
-async function classSection(db: Db, cls: { id: string; name: string }, week: { start: number; end: number }, now: number, baseUrl: string) {
-  const students = await classStudents(db, cls.id);
+/** One class's part of a digest, as lines of text, naming notes as its school does. */
+async function classSection(db: Db, cls: { id: string; name: string; orgId: string }, week: { start: number; end: number }, now: number, baseUrl: string) {
+  const [students, naming] = await Promise.all([classStudents(db, cls.id), schoolNaming(db, cls.orgId)]);
   const ids = students.map((s) => s.id);
   const [list, practice] = await Promise.all([
     db.select().from(assignments).where(and(eq(assignments.classId, cls.id), gte(assignments.dueAt, new Date(week.start)))),
@@ -206,7 +209,7 @@ async function classSection(db: Db, cls: { id: string; name: string }, week: { s
   lines.push(
     practice.length === 0
       ? "Practice: nobody practised this week."
-      : `Practice: ${practised} of ${students.length} students practised, ${practice.length} ${practice.length === 1 ? "answer" : "answers"} in all.`,
+      : `Practice: ${practised} of ${plural(students.length, "student")} practised, ${plural(practice.length, "answer")} in all.`,
   );
   if (views.length === 0) lines.push("Assignments: none open or due this week.");
   else {
@@ -223,7 +226,7 @@ async function classSection(db: Db, cls: { id: string; name: string }, week: { s
   else {
     const words = reteach.map((r) => {
       const mistake = r.commonMistake ? `, often “${MISTAKE_LABELS[r.commonMistake as MistakeKind]}”` : "";
-      return `${noteName(r.written)} (${Math.round(r.accuracy * 100)} % correct, ${r.reason}${mistake})`;
+      return `${noteName(r.written, naming)} (${Math.round(r.accuracy * 100)} % correct, ${r.reason}${mistake})`;
     });
     lines.push(`Notes to reteach (home spot counts as correct): ${words.join("; ")}.`);
   }
@@ -249,13 +252,13 @@ export async function sendWeeklyDigests(db: Db, mailer: Mailer, now: number, bas
     teachers.set(r.userId, t);
   }
   const sections = new Map<string, Promise<string[]>>();
-  const sectionOf = (c: { id: string; name: string }) => {
+  const sectionOf = (c: { id: string; name: string; orgId: string }) => {
     if (!sections.has(c.id)) sections.set(c.id, classSection(db, c, week, now, baseUrl));
     return sections.get(c.id)!;
   };
   const period = `${dateOnly.format(week.start)} to ${dateOnly.format(week.end)}`;
   for (const [userId, t] of teachers) {
-    const parts = await Promise.all(t.classes.sort((a, b) => a.name.localeCompare(b.name)).map(sectionOf));
+    const parts = await Promise.all(t.classes.sort((a, b) => a.name.localeCompare(b.name)).map((c) => sectionOf({ ...c, orgId: t.orgId })));
     await sendOnce(
       db,
       mailer,
@@ -275,9 +278,11 @@ export async function sendWeeklyDigests(db: Db, mailer: Mailer, now: number, bas
 
 /**
  * Runs the three passes every SCHEDULE_EVERY_MS (first pass after one interval, so a server started
- * for a test sends nothing by itself). Started and stopped by server/index.ts.
+ * for a test sends nothing by itself). Started and stopped by server/index.ts. Of several nodes one
+ * runs each pass (`locks`); the claims in mail_log would keep a mail single anyway, the lock spares
+ * the others the queries.
  */
-export function startMailSchedule(db: Db, mailer: Mailer, baseUrl: string, every = SCHEDULE_EVERY_MS) {
+export function startMailSchedule(db: Db, mailer: Mailer, baseUrl: string, every = SCHEDULE_EVERY_MS, locks: Locks = memoryLocks()) {
   let current: Promise<void> | undefined;
   const pass = async () => {
     const now = Date.now();
@@ -290,7 +295,10 @@ export function startMailSchedule(db: Db, mailer: Mailer, baseUrl: string, every
     }
   };
   const timer = setInterval(() => {
-    current ??= pass().finally(() => (current = undefined));
+    current ??= locks
+      .ifFree("mail-schedule", pass)
+      .then(() => undefined)
+      .finally(() => (current = undefined));
   }, every);
   timer.unref();
   return {

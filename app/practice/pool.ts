@@ -70,7 +70,10 @@ export interface PracticePlan {
   /** The class whose home-spot map is used (and checked again by the answers endpoint); null = default map. */
   classId: string | null;
   classMap: boolean;
+  /** The assignment this practice counts toward (creditedAssignment), named on the page. */
   assignmentId: string | null;
+  /** playedOnly: only answers played on a guitar count toward it (the page says so). */
+  countsToward: { title: string; className: string; dueAt: number; playedOnly: boolean } | null;
   tuneId: string | null;
   /** In progression order. */
   notes: PoolNote[];

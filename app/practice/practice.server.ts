@@ -15,8 +15,9 @@ import { classSpotMap } from "~/reading/spotMaps.server";
 import { classesFor } from "~/school/classes.server";
 import { BUILTIN_TUNES } from "~/tunes/builtin";
 import type { PracticeAnswer } from "./adaptive";
-import { assignmentForStudent, resolveMaterial, type Material as AssignmentMaterial } from "./assignments.server";
+import { assignmentForStudent, resolveMaterial, studentAssignments, type Material as AssignmentMaterial } from "./assignments.server";
 import { setOrder, tunePool, type PracticePlan } from "./pool";
+import { creditedAssignment } from "./progress";
 
 /** Built-in tunes are written for fifth position; a tune is practised there unless the student picks another. */
 export const TUNE_POSITION = 5;
@@ -51,7 +52,7 @@ async function planOf(
   opts: { classId?: string | null; assignmentId?: string | null; position?: number },
 ): Promise<PlanResult> {
   const classId = await mapClass(db, user, opts.classId);
-  const common = { classId, assignmentId: opts.assignmentId ?? null };
+  const common = { classId, assignmentId: opts.assignmentId ?? null, countsToward: null };
   try {
     if (material.kind === "tune") {
       const position = opts.position ?? TUNE_POSITION;
@@ -93,6 +94,15 @@ const POSITION_PARAM = /^(?:[1-9]|1[0-2])$/;
  * ?position=<n>; &class=<id> picks whose home-spot map to use. undefined when nothing is chosen yet.
  */
 export async function practicePlan(db: Db, user: SessionUser, query: URLSearchParams): Promise<PlanResult | undefined> {
+  const result = await chosenPlan(db, user, query);
+  if (!result?.ok) return result;
+  // The answers endpoint applies the same rule to every answer it stores; the page names the outcome.
+  const credited = creditedAssignment(await studentAssignments(db, user.id), result.plan.source, result.plan.assignmentId);
+  const countsToward = credited ? { title: credited.title, className: credited.className, dueAt: credited.dueAt, playedOnly: credited.goal.playedOnly ?? false } : null;
+  return { ok: true, plan: { ...result.plan, assignmentId: credited?.id ?? null, countsToward } };
+}
+
+async function chosenPlan(db: Db, user: SessionUser, query: URLSearchParams): Promise<PlanResult | undefined> {
   const get = (name: string) => query.get(name)?.trim() || null;
   const positionText = get("position");
   if (positionText !== null && !POSITION_PARAM.test(positionText)) return { ok: false, status: 400, message: "Position must be a whole number from 1 to 12." };

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { completedLate, goalWords, progressOf, progressWords, statusOf, type Goal, type PracticeRow } from "./progress";
+import { completedLate, creditedAssignment, goalWords, progressOf, progressWords, statusOf, type Goal, type PracticeRow } from "./progress";
 
 // Constructed practice: one answer a second from T0, each a kind and a reaction time.
 const T0 = Date.UTC(2026, 10, 2, 17, 0, 0);
@@ -100,5 +100,44 @@ describe("assignment progress", () => {
     expect(goalWords({ notes: 40, accuracyPct: 90, medianMs: 2000 })).toBe("40 notes in a row at 90 % correct, median under 2 s");
     expect(goalWords({ notes: 20, accuracyPct: 85, medianMs: null })).toBe("20 notes in a row at 85 % correct");
     expect(goalWords({ notes: 20, accuracyPct: 85, medianMs: 2500 })).toBe("20 notes in a row at 85 % correct, median under 2.5 s");
+  });
+});
+
+describe("which assignment practice counts toward", () => {
+  const a = (id: string, material: string | null, status: "open" | "overdue" | "done", dueAt: number) => ({
+    id,
+    material: material === null ? null : { kind: material.split(":")[0]!, id: material.split(":")[1]! },
+    status,
+    dueAt,
+  });
+  const mine = [
+    a("later", "set:s1", "open", 300),
+    a("sooner", "set:s1", "open", 200),
+    a("finished", "set:s1", "done", 100),
+    a("tune", "tune:lantern-walk", "overdue", 50),
+    a("deleted", null, "open", 10),
+  ];
+  it.each([
+    ["the same set, however started: the unfinished one due soonest", "set:s1", null, "sooner"],
+    ["a tune whose assignment is overdue (late work still counts)", "tune:lantern-walk", null, "tune"],
+    ["material no assignment asks for", "preset:ready-naturals-5", null, undefined],
+    ["a free position", "position:5", null, undefined],
+    ["the assignment the student opened, even when another is due sooner", "set:s1", "later", "later"],
+    ["the opened one even when finished (practising on after the goal)", "set:s1", "finished", "finished"],
+  ])("%s", (_what, source, chosen, want) => {
+    expect(creditedAssignment(mine, source, chosen)?.id).toBe(want);
+  });
+});
+
+describe("an assignment that asks for played answers", () => {
+  const goal = { notes: 3, accuracyPct: 100, medianMs: null, playedOnly: true };
+  const row = (at: number, input?: "tap" | "played") => ({ kind: "home-spot", pitchRight: true, reactionMs: 900, at, input });
+  it("leaves taps (and rows stored before inputs existed) out of the count", () => {
+    const p = progressOf(goal, [row(1), row(2, "tap"), row(3, "played"), row(4, "tap"), row(5, "played")], true);
+    expect(p).toMatchObject({ answered: 2, completedAt: null });
+    expect(progressOf(goal, [row(1, "played"), row(2, "tap"), row(3, "played"), row(6, "played")], true).completedAt).toBe(6);
+  });
+  it("says so in the goal's words", () => {
+    expect(goalWords(goal)).toBe("3 notes in a row at 100 % correct, played on a guitar");
   });
 });

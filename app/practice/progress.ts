@@ -4,9 +4,12 @@
  * through on constructed answers.
  *
  * Rules, in one place:
- * - **Which answers count**: only practice answers stored with this assignment's id (the student
- *   practised *this* assignment from its "Practise" link). Free practice of the same notes does not
- *   count, so a teacher can read the figures as "work done for this assignment".
+ * - **Which answers count**: only practice answers stored with this assignment's id (and, when the goal
+ *   asks for played answers, only those played on a guitar and heard by the phone; taps are left out). The server
+ *   stores that id by one rule (`creditedAssignment`): the assignment the student opened, or else
+ *   their unfinished assignment of the same material (reading set, ready-made set or tune) due
+ *   soonest, however the session was started. Practice of other material does not count, so a
+ *   teacher can read the figures as "work done for this assignment".
  * - **Correct** = the live rounds' full-credit rule (`verdictOf` in game/scoring.ts): the home spot
  *   always; another spot of the right pitch only when `homeOnly` is off. Assignments pass homeOnly = true, as solo practice
  *   drills the home spot (assignments.server.ts).
@@ -34,6 +37,8 @@ export interface Goal {
   accuracyPct: number;
   /** Median reaction time of right-pitch answers must be under this; null = no time goal. */
   medianMs: number | null;
+  /** Only answers played on a guitar (heard by the phone) count; taps are left out. */
+  playedOnly?: boolean;
 }
 
 /** The fields of a `practice_answers` row the rule reads. */
@@ -43,6 +48,8 @@ export interface PracticeRow {
   reactionMs: number;
   /** Epoch milliseconds. */
   at: number;
+  /** How it was given; absent = a tap. */
+  input?: "tap" | "played";
 }
 
 export interface Progress {
@@ -83,7 +90,8 @@ function judge(window: readonly (PracticeRow & { correct: boolean })[], goal: Go
 export function progressOf(goal: Goal, rows: readonly PracticeRow[], homeOnly: boolean): Progress {
   const n = Math.max(1, Math.floor(goal.notes));
   // Stable sort: answers with the same time keep the order they were stored in.
-  const ordered = [...rows].sort((a, b) => a.at - b.at).map((r) => ({ ...r, correct: verdictOf(r, homeOnly) === "right" }));
+  const counted = goal.playedOnly ? rows.filter((r) => r.input === "played") : rows;
+  const ordered = [...counted].sort((a, b) => a.at - b.at).map((r) => ({ ...r, correct: verdictOf(r, homeOnly) === "right" }));
   let completedEnd: number | null = null;
   for (let end = n; end <= ordered.length && completedEnd === null; end++) {
     const j = judge(ordered.slice(end - n, end), goal);
@@ -116,7 +124,7 @@ export const completedLate = (progress: Pick<Progress, "completedAt">, dueAt: nu
 /** The goal in a teacher's words: "40 notes at 90 % correct, median under 2 s". */
 export function goalWords(goal: Goal): string {
   const speed = goal.medianMs === null ? "" : `, median under ${formatSeconds(goal.medianMs)}`;
-  return `${goal.notes} notes in a row at ${goal.accuracyPct} % correct${speed}`;
+  return `${goal.notes} notes in a row at ${goal.accuracyPct} % correct${speed}${goal.playedOnly ? ", played on a guitar" : ""}`;
 }
 
 export const formatSeconds = (ms: number) => `${Number((ms / 1000).toFixed(2))} s`;
@@ -133,4 +141,25 @@ export function progressWords(goal: Goal, p: Progress): string {
     parts.push(`${time}${p.met.speed ? " ✓" : ` (goal under ${formatSeconds(goal.medianMs)})`}`);
   }
   return parts.join(" · ");
+}
+
+/** What the credit rule needs to know of one of the student's assignments. */
+export interface Creditable {
+  id: string;
+  material: { kind: string; id: string } | null;
+  status: Status;
+  dueAt: number;
+}
+
+/**
+ * The assignment a practice answer counts toward, decided once on the server for the page and for the stored
+ * answer alike: the one the student opened (`chosen`, already checked to be theirs); else, for practice of
+ * material ("set:<id>", "preset:<id>", "tune:<id>") that an unfinished assignment of theirs asks for, the one
+ * due soonest (an overdue one first: it still counts, as late); else none.
+ */
+export function creditedAssignment<A extends Creditable>(mine: readonly A[], source: string, chosen: string | null | undefined): A | undefined {
+  if (chosen) return mine.find((a) => a.id === chosen);
+  return mine
+    .filter((a) => a.status !== "done" && a.material !== null && `${a.material.kind}:${a.material.id}` === source)
+    .sort((x, y) => x.dueAt - y.dueAt)[0];
 }

@@ -1,7 +1,11 @@
 // The phone's outbox for finished practice answers. Answers wait in localStorage (one queue per account, since
 // phones are shared) until the server has them; a dropped connection only delays them. The server is
 // idempotent by clientId, so sending the same answer twice after an unclear failure is safe.
-import { MAX_BATCH, type AnswerProblem, type AnswerVerdict, type PracticeAnswerInput } from "./answers";
+// Types only: ./answers.ts is the server's zod check, which the phone does not download.
+import type { AnswerProblem, AnswerVerdict, PracticeAnswerInput } from "./answers";
+
+/** Answers in one request, at most; the server's batch schema (./answers.ts) refuses more. */
+export const MAX_BATCH = 100;
 
 export interface KeyValueStore {
   getItem(key: string): string | null;

@@ -2,7 +2,7 @@ import { describe, expect, it } from "vitest";
 import { parseMusicXml } from "~/music/musicxml";
 import { BUILTIN_TUNES, type TuneNote } from "~/tunes/builtin";
 import { toStoredTune } from "~/tunes/tunes.server";
-import { beatMs, gradeOf, scoreTaps, timeline } from "./rhythm";
+import { beatMs, DEFAULT_TEMPO, defaultTempo, gradeOf, scoreTaps, timeline } from "./rhythm";
 
 const n = (pitch: string, beats: number, bar: number) => ({ pitch, beats, bar });
 const lantern = BUILTIN_TUNES.find((t) => t.id === "lantern-walk")!;
@@ -114,7 +114,7 @@ describe("scoring taps", () => {
  * An upload as stored (read by the MusicXML reader, kept by toStoredTune). Bars are written "C5:1.5 r:0.5 D5:1~"
  * in quarter notes ("r" a rest, "~" a tie to the next note); `meters` gives a bar's new time signature.
  */
-function upload(bars: string[], meters: Record<number, string>, pickup = false) {
+function upload(bars: string[], meters: Record<number, string>, pickup = false, direction = "") {
   const body = bars
     .map((bar, i) => {
       const time = meters[i] ? `<time><beats>${meters[i]!.split("/")[0]}</beats><beat-type>${meters[i]!.split("/")[1]}</beat-type></time>` : "";
@@ -126,7 +126,7 @@ function upload(bars: string[], meters: Record<number, string>, pickup = false) 
         const ties = `${bars[i - 1]?.endsWith("~") && token === bar.split(" ")[0] ? '<tie type="stop"/>' : ""}${length!.endsWith("~") ? '<tie type="start"/>' : ""}`;
         return `<note><pitch><step>${pitch![0]}</step><octave>${pitch![1]}</octave></pitch>${duration}${ties}</note>`;
       });
-      return `<measure number="${pickup ? i : i + 1}"${pickup && i === 0 ? ' implicit="yes"' : ""}>${attributes}${notes.join("")}</measure>`;
+      return `<measure number="${pickup ? i : i + 1}"${pickup && i === 0 ? ' implicit="yes"' : ""}>${attributes}${i === 0 ? direction : ""}${notes.join("")}</measure>`;
     })
     .join("");
   const text = `<score-partwise version="4.0"><part-list><score-part id="P1"><part-name>Melody</part-name></score-part></part-list><part id="P1">${body}</part></score-partwise>`;
@@ -182,5 +182,40 @@ describe("the timeline of an upload read fully", () => {
     const t = timeline(upload(["C5:1 D5:1", "E5:1.5 F5:1.5"], { 0: "2/4", 1: "6/8" }), 120);
     expect(t.onsets).toEqual([1000, 1500, 2000, 2750]);
     expect(t.clicks.map((c) => c.at)).toEqual([0, 500, 1000, 1500, 2000, 2750]);
+  });
+});
+
+describe("the score's tempo is the rhythm pass's default", () => {
+  const metronome = (unit: string, perMinute: number, dots = 0) =>
+    `<direction><direction-type><metronome><beat-unit>${unit}</beat-unit>${"<beat-unit-dot/>".repeat(dots)}<per-minute>${perMinute}</per-minute></metronome></direction-type></direction>`;
+
+  it("6/8 marked dotted quarter = 60 starts at 60, the pass's beat being the dotted quarter", () => {
+    // MusicXML 4.0 <metronome>: per-minute counts the beat-unit (a dotted quarter, 1.5 quarters): 90 quarters a minute.
+    const tune = upload(["C5:1.5 D5:1.5", "E5:3"], { 0: "6/8" }, false, metronome("quarter", 60, 1));
+    expect(tune.score.tempo).toEqual({ quarterBpm: 90, marking: { beatUnit: "quarter", dots: 1, perMinute: 60 } });
+    expect(defaultTempo(tune)).toBe(60);
+    // At that default a beat lasts 1000 ms: count-in 2 × 1000, D5 a beat after C5.
+    expect(timeline(tune, defaultTempo(tune)).onsets).toEqual([2000, 3000, 4000]);
+  });
+
+  it("a marking in another unit is counted in the meter's beat", () => {
+    // 4/4 marked half = 60: 120 quarters a minute, and the pass counts quarters.
+    expect(defaultTempo(upload(["C5:4"], { 0: "4/4" }, false, metronome("half", 60)))).toBe(120);
+    // Cut time with only <sound tempo="120"> (quarters a minute): 120 ÷ 2 = 60 halves a minute.
+    expect(defaultTempo(upload(["C5:2 D5:2"], { 0: "2/2" }, false, '<direction><sound tempo="120"/></direction>'))).toBe(60);
+    // 3/8 marked eighth = 132 (not compound: the eighth is the beat) stays 132.
+    expect(defaultTempo(upload(["C5:1.5"], { 0: "3/8" }, false, metronome("eighth", 132)))).toBe(132);
+  });
+
+  it("a pickup bar does not set the beat; a tempo beyond the pass's range is brought into it", () => {
+    // The first full bar is 6/8, so the dotted quarter counts: quarter = 150 is 100 dotted quarters.
+    expect(defaultTempo(upload(["G4:1.5", "C5:3"], { 0: "6/8" }, true, metronome("quarter", 150)))).toBe(100);
+    expect(defaultTempo(upload(["C5:4"], { 0: "4/4" }, false, metronome("quarter", 200)))).toBe(160);
+    expect(defaultTempo(upload(["C5:4"], { 0: "4/4" }, false, metronome("quarter", 30)))).toBe(40);
+  });
+
+  it("without a marking, and for built-in tunes, the pass starts at its steady default", () => {
+    expect(defaultTempo(upload(["C5:4"], { 0: "4/4" }))).toBe(DEFAULT_TEMPO);
+    expect(defaultTempo(lantern)).toBe(DEFAULT_TEMPO);
   });
 });

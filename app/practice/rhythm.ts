@@ -5,8 +5,9 @@
  * Timeline of an upload read fully (its stored bars carry their meters, its notes their onsets):
  * - The beat follows the meter (common practice, no source): x/4 counts quarters, x/2 (cut time) halves,
  *   6/8, 9/8 and 12/8 dotted quarters (three eighths to a beat), other x/8 eighths. The tempo is in the beat
- *   of the first full bar: a beat lasts 60 000 / bpm ms. When the meter changes, the quarter note keeps its
- *   length (no tempo marking is read), and the clicks follow the new bar's beat.
+ *   of the first full bar: a beat lasts 60 000 / bpm ms; it starts at the score's first tempo marking
+ *   (defaultTempo). When the meter changes, the quarter note keeps its length (later tempo markings are not
+ *   followed), and the clicks follow the new bar's beat.
  * - The count-in is one bar of the first full bar's meter; that bar starts right after it. A pickup's notes
  *   fall in the count-in's last beats, as a band counts a pickup in.
  * - Each note sounds at its written onset: rests anywhere are simply time between onsets, and tied notes
@@ -32,10 +33,11 @@
  *   button cannot score well.
  */
 import type { TuneBar } from "~/music/musicxml";
+import { tempoInBeat, type ScoreTempo } from "~/music/tempo";
 import type { Tune, TuneNote } from "~/tunes/builtin";
 
 /** What the rhythm pass needs of a tune. */
-export type RhythmTune = Pick<Tune, "notes" | "beatsPerBar"> & { score?: { measures: readonly TuneBar[] } };
+export type RhythmTune = Pick<Tune, "notes" | "beatsPerBar"> & { score?: { measures: readonly TuneBar[]; tempo?: ScoreTempo | null } };
 
 export const ON_TIME_MS = 80;
 export const CLOSE_MS = 160;
@@ -44,6 +46,18 @@ export const TEMPO_RANGE = [40, 160] as const;
 export const DEFAULT_TEMPO = 72;
 
 export class RhythmError extends Error {}
+
+/**
+ * The tempo the rhythm pass starts at: the score's own marking counted in the first full bar's beat (the beat
+ * the pass clicks), rounded and kept within TEMPO_RANGE; DEFAULT_TEMPO when the score marks none.
+ */
+export function defaultTempo(tune: RhythmTune): number {
+  const tempo = tune.score?.tempo;
+  const first = tune.score?.measures.find((m) => !m.pickup) ?? tune.score?.measures[0];
+  if (!tempo || !first) return DEFAULT_TEMPO;
+  const bpm = Math.round(tempoInBeat(tempo, beatOf(first.beats, first.beatType).beat));
+  return Math.min(TEMPO_RANGE[1], Math.max(TEMPO_RANGE[0], bpm));
+}
 
 export function beatMs(bpm: number): number {
   if (!Number.isFinite(bpm) || bpm < TEMPO_RANGE[0] || bpm > TEMPO_RANGE[1]) {

@@ -10,7 +10,9 @@ import type { PoolNote } from "~/music/pools";
 import type { Tune } from "~/tunes/builtin";
 import { allSteady, noteName, noteStates, STEADY_BOX } from "./adaptive";
 import { historyFor, practicePlan, TUNE_POSITION } from "./practice.server";
+import { MAX_OFFSET_MS, MIN_OFFSET_MS, playedTaps } from "./calibration";
 import { scoreTaps, TEMPO_RANGE, timeline, type RhythmScore } from "./rhythm";
+import { schoolNaming } from "~/school/naming.server";
 
 const DAY_MS = 86_400_000;
 
@@ -35,7 +37,8 @@ export async function rhythmState(db: Db, user: SessionUser, tuneId: string, pos
   const states = noteStates(await historyFor(db, user.id, position, "standard", now), now - DAY_MS);
   const boxes = notes.map((n) => ({ written: n.written, writtenMidi: n.writtenMidi, box: states.get(n.writtenMidi)?.box ?? 0 }));
   const unlocked = allSteady(notes, states);
-  const waiting = boxes.filter((b) => b.box < STEADY_BOX).map((b) => noteName(b.written));
+  const naming = await schoolNaming(db, user.orgId);
+  const waiting = boxes.filter((b) => b.box < STEADY_BOX).map((b) => noteName(b.written, naming));
   const why = unlocked
     ? "Every note of this tune is steady: now play it in time."
     : notes.length === 0
@@ -44,25 +47,35 @@ export async function rhythmState(db: Db, user: SessionUser, tuneId: string, pos
   return { tune, position, notes: boxes, unlocked, why };
 }
 
-export const rhythmPassSchema = z.object(
-  {
-    id: z.string("Every pass needs an id.").regex(/^[A-Za-z0-9_-]{8,40}$/, "A pass id is 8–40 letters, digits, - or _."),
-    tuneId: z.string("Name the tune.").regex(/^[A-Za-z0-9_-]{1,64}$/, "Name the tune by its id."),
-    position: z.number().int().min(1).max(12).default(TUNE_POSITION),
-    tempo: z
-      .number("The tempo must be a number.")
-      .int("The tempo must be a whole number of beats per minute.")
-      .min(TEMPO_RANGE[0], `The tempo must be ${TEMPO_RANGE[0]} to ${TEMPO_RANGE[1]} beats per minute.`)
-      .max(TEMPO_RANGE[1], `The tempo must be ${TEMPO_RANGE[0]} to ${TEMPO_RANGE[1]} beats per minute.`),
-    taps: z.array(z.number("Every tap is a time in ms.").finite().min(0, "Taps are counted from the first click: no negative times."), "Send the taps as a list of times in ms.").max(2000, "At most 2000 taps."),
-  },
-  "Send a JSON object: { id, tuneId, tempo, taps }.",
-);
+const delayRange = `The calibrated delay must be ${MIN_OFFSET_MS} to ${MAX_OFFSET_MS} ms.`;
+
+export const rhythmPassSchema = z
+  .object(
+    {
+      id: z.string("Every pass needs an id.").regex(/^[A-Za-z0-9_-]{8,40}$/, "A pass id is 8–40 letters, digits, - or _."),
+      tuneId: z.string("Name the tune.").regex(/^[A-Za-z0-9_-]{1,64}$/, "Name the tune by its id."),
+      position: z.number().int().min(1).max(12).default(TUNE_POSITION),
+      tempo: z
+        .number("The tempo must be a number.")
+        .int("The tempo must be a whole number of beats per minute.")
+        .min(TEMPO_RANGE[0], `The tempo must be ${TEMPO_RANGE[0]} to ${TEMPO_RANGE[1]} beats per minute.`)
+        .max(TEMPO_RANGE[1], `The tempo must be ${TEMPO_RANGE[0]} to ${TEMPO_RANGE[1]} beats per minute.`),
+      taps: z.array(z.number("Every tap is a time in ms.").finite().min(0, "Taps are counted from the first click: no negative times."), "Send the taps as a list of times in ms.").max(2000, "At most 2000 taps."),
+      // "played": the taps are note onsets the microphone heard, before the calibrated delay (latencyMs) comes off.
+      input: z.enum(["tap", "played"], 'Say how the notes were given: "tap" or "played".').default("tap"),
+      latencyMs: z.number(delayRange).int(delayRange).min(MIN_OFFSET_MS, delayRange).max(MAX_OFFSET_MS, delayRange).optional(),
+    },
+    "Send a JSON object: { id, tuneId, tempo, taps }.",
+  )
+  .refine((p) => (p.input === "played") === (p.latencyMs !== undefined), "A played pass names its calibrated delay (latencyMs), and only a played pass has one.");
 
 export interface StoredPass extends RhythmScore {
   id: string;
   tuneId: string;
   tempo: number;
+  input: "tap" | "played";
+  /** A played pass: the calibrated delay taken off what the microphone heard. */
+  latencyMs?: number;
   at: number;
 }
 
@@ -83,14 +96,16 @@ export async function recordRhythmPass(db: Db, user: SessionUser, body: unknown,
   if (!state.unlocked) return { status: 409, body: { error: state.why } };
   const { endMs } = timeline(state.tune, pass.tempo);
   if (pass.taps.some((t) => t > endMs + 10_000)) return { status: 400, body: { error: "Nothing was stored: a tap comes long after the tune has ended." } };
-  const score = scoreTaps(state.tune, pass.tempo, pass.taps);
-  const row = { id: pass.id, userId: user.id, tuneId: pass.tuneId, tempo: pass.tempo, score: score.score, results: { ...score, position: pass.position }, at: new Date(now) };
+  const played = pass.input === "played";
+  const score = scoreTaps(state.tune, pass.tempo, played ? playedTaps(pass.taps, pass.latencyMs!) : pass.taps);
+  const results = { ...score, position: pass.position, ...(played ? { latencyMs: pass.latencyMs } : {}) };
+  const row = { id: pass.id, userId: user.id, tuneId: pass.tuneId, tempo: pass.tempo, score: score.score, results, input: pass.input, at: new Date(now) };
   await db.insert(rhythmAttempts).values(row);
   return { status: 200, body: { ...storedOf(row), duplicate: false } };
 }
 
 function storedOf(row: typeof rhythmAttempts.$inferSelect): StoredPass {
-  return { ...row.results, id: row.id, tuneId: row.tuneId, tempo: row.tempo, score: row.score, at: row.at.getTime() };
+  return { ...row.results, id: row.id, tuneId: row.tuneId, tempo: row.tempo, score: row.score, input: row.input, at: row.at.getTime() };
 }
 
 /** The student's own passes, newest first (of one tune, or all). */
@@ -102,4 +117,12 @@ export async function rhythmPasses(db: Db, userId: string, tuneId?: string, limi
     .orderBy(desc(rhythmAttempts.at))
     .limit(limit);
   return rows.map(storedOf);
+}
+
+/** A student's passes with their tunes' titles, newest first: for their teacher (the caller checks access). */
+export async function passesForTeacher(db: Db, orgId: string, userId: string, limit = 20): Promise<(StoredPass & { title: string })[]> {
+  const passes = await rhythmPasses(db, userId, undefined, limit);
+  const titles = new Map<string, string>();
+  for (const id of new Set(passes.map((p) => p.tuneId))) titles.set(id, (await findTune(db, orgId, id))?.title ?? "A tune no longer kept");
+  return passes.map((p) => ({ ...p, title: titles.get(p.tuneId)! }));
 }

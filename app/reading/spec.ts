@@ -2,7 +2,7 @@
 // The same fields describe the host page's quick setup, which is a reading set not saved yet. Every
 // reading set, posted or stored, goes through parseReadingSet, which builds its pool once.
 import { z } from "zod";
-import type { Mode } from "~/game/protocol";
+import type { Mode } from "~/game/messages";
 import { ANSWER_MS_RANGE } from "~/game/roomConfig";
 import { parseFields, type FieldErrors } from "~/lib/forms";
 import { KEYS } from "~/music/keys";
@@ -132,6 +132,18 @@ export interface ParsedReadingSet<T extends ReadingFields = ReadingSetSpec> {
   spec: ReadingSpec;
   /** Its notes, built once here; empty for a Tune walk, which reads its tune instead. */
   pool: PoolNote[];
+}
+
+/**
+ * "Naturals only" is read without a key signature, so a key chosen beside it would be silently dropped
+ * (readingSpecOf). The host form refuses both together with this, on the key's field, and shows it beside
+ * the fields as they are chosen; a stored set keeps being read as naturals (the reading set page locks the
+ * key then). A Tune walk reads its tune's key and ignores both fields.
+ */
+export const NATURALS_KEY_CLASH = "“Naturals only” is read without a key signature. Choose C major (no sharps or flats), or “Notes of the key signature” to read in this key.";
+
+export function keyClash(set: { mode: Mode; accidentals: string; keyFifths: number }): string | null {
+  return set.mode !== "tune-walk" && set.accidentals === "naturals" && set.keyFifths !== 0 ? NATURALS_KEY_CLASH : null;
 }
 
 export type ReadingSetResult<T extends ReadingFields> = ({ ok: true } & ParsedReadingSet<T>) | { ok: false; errors: FieldErrors };

@@ -6,11 +6,14 @@ import { Staff } from "~/components/Staff";
 import { resolveTuning } from "~/music/tuning";
 import { pct, secs, noteName, day } from "./format";
 import { RETEACH_ACCURACY_BAR, type MistakeShare, type NoteCell } from "./stats";
+import { useNoteNaming } from "~/components/NoteNaming";
+import { plural } from "~/lib/plural";
 
 const verdict = (c: NoteCell) => (c.accuracy >= RETEACH_ACCURACY_BAR ? "✓" : "✗");
 
 /** One small staff per written pitch, each with its accuracy, median time and sample under it. */
 export function HeatmapStaves({ cells }: { cells: NoteCell[] }) {
+  const naming = useNoteNaming();
   if (cells.length === 0) return <p className="text-ink-soft">No answers yet.</p>;
   return (
     <ul className="grid grid-cols-2 gap-3 sm:grid-cols-3 lg:grid-cols-6">
@@ -19,10 +22,10 @@ export function HeatmapStaves({ cells }: { cells: NoteCell[] }) {
           <Staff notes={[{ written: c.written }]} size="phone" />
           <p className="font-display text-lg font-semibold">
             <span aria-hidden="true">{verdict(c)} </span>
-            {noteName(c.written)} · {pct(c.accuracy)}
+            {noteName(c.written, naming)} · {pct(c.accuracy)}
           </p>
           <p className="text-sm text-ink-soft">
-            {secs(c.medianMs)} · {c.answers} {c.answers === 1 ? "answer" : "answers"}
+            {secs(c.medianMs)} · {plural(c.answers, "answer")}
           </p>
         </li>
       ))}
@@ -32,13 +35,14 @@ export function HeatmapStaves({ cells }: { cells: NoteCell[] }) {
 
 /** Each note's accuracy written on its home spot. Enharmonic spellings share a spot: the weaker one shows. */
 export function HeatmapFretboard({ cells, tuning, frets, position }: { cells: NoteCell[]; tuning: string; frets: number; position: number }) {
+  const naming = useNoteNaming();
   const bySpot = new Map<string, NoteCell[]>();
   for (const c of cells) if (c.home) bySpot.set(`${c.home.string}:${c.home.fret}`, [...(bySpot.get(`${c.home.string}:${c.home.fret}`) ?? []), c]);
   const highlights: Highlight[] = [...bySpot.values()].map((list) => {
     const weakest = list.reduce((a, b) => (b.accuracy < a.accuracy ? b : a));
     return { ...weakest.home!, kind: "home", label: `${Math.round(weakest.accuracy * 100)}%` };
   });
-  const words = cells.filter((c) => c.home).map((c) => `${noteName(c.written)} ${pct(c.accuracy)} on string ${c.home!.string}, fret ${c.home!.fret}`);
+  const words = cells.filter((c) => c.home).map((c) => `${noteName(c.written, naming)} ${pct(c.accuracy)} on string ${c.home!.string}, fret ${c.home!.fret}`);
   return (
     <div>
       <Fretboard
@@ -83,6 +87,38 @@ export interface ProgressDatum {
 }
 
 /** Accuracy and median time per round, one line chart each, every point labelled. */
+/** Approximate width of a character of the labels' 12 px type: generous, so a kept label never touches another. */
+const LABEL_CHAR_PX = 8;
+const LABEL_FONT_PX = 12;
+
+/**
+ * The value above each point, unless it would overlap one already drawn (rounds close together on a narrow
+ * chart): then that point's value is left to the tooltip and the words under the chart. Recharts draws a line's
+ * labels in order, once per pass; a pass starts again at a lower index.
+ */
+function spacedLabel(unit: string) {
+  const drawn: { left: number; right: number; top: number; bottom: number }[] = [];
+  let lastIndex = Infinity;
+  return function SpacedLabel(props: { x?: number | string; y?: number | string; value?: unknown; index?: number }) {
+    const index = props.index ?? 0;
+    if (index <= lastIndex) drawn.length = 0;
+    lastIndex = index;
+    if (props.value === null || props.value === undefined) return null;
+    const text = `${String(props.value)}${unit}`;
+    const x = Number(props.x);
+    const y = Number(props.y) - 8;
+    const half = (text.length * LABEL_CHAR_PX) / 2 + 2;
+    const box = { left: x - half, right: x + half, top: y - LABEL_FONT_PX, bottom: y + 2 };
+    if (drawn.some((d) => d.left < box.right && box.left < d.right && d.top < box.bottom && box.top < d.bottom)) return null;
+    drawn.push(box);
+    return (
+      <text data-chart-label x={x} y={y} textAnchor="middle" fontSize={LABEL_FONT_PX} className="fill-ink">
+        {text}
+      </text>
+    );
+  };
+}
+
 export function ProgressCharts({ points }: { points: ProgressDatum[] }) {
   const data = points.map((p) => ({
     when: day(p.startedAt),
@@ -100,7 +136,7 @@ export function ProgressCharts({ points }: { points: ProgressDatum[] }) {
             <YAxis unit={unit} domain={key === "accuracy" ? [0, 100] : [0, "auto"]} />
             <Tooltip />
             <Line type="monotone" dataKey={key} stroke={stroke} strokeWidth={3} isAnimationActive={false} connectNulls>
-              <LabelList dataKey={key} position="top" formatter={(v: unknown) => (v === null || v === undefined ? "" : `${String(v)}${unit}`)} />
+              <LabelList dataKey={key} content={spacedLabel(unit)} />
             </Line>
           </LineChart>
         </ResponsiveContainer>

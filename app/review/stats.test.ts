@@ -117,15 +117,21 @@ describe("across rounds", () => {
     ]);
   });
 
-  it("most improved: accuracy now minus accuracy in the previous round", () => {
-    // Ana 75 % − 50 % = +25 points; Ben 50 % − 100 % = −50 points.
-    expect(mostImproved(input, "S2").map((m) => [m.nickname, m.delta, m.previousRoundId])).toEqual([
-      ["Ana", 0.25, "S1"],
-      ["Ben", -0.5, "S1"],
-    ]);
+  it("most improved: accuracy now minus accuracy in the previous round, only those who rose", () => {
+    // Ana 75 % − 50 % = +25 points; Ben 50 % − 100 % = −50 points, a drop: not listed.
+    expect(mostImproved(input, "S2").map((m) => [m.nickname, m.delta, m.previousRoundId])).toEqual([["Ana", 0.25, "S1"]]);
     expect(mostImproved(input, "S1")).toEqual([]);
     // Across rounds it is about the latest round.
-    expect(r.mostImproved.map((m) => m.nickname)).toEqual(["Ana", "Ben"]);
+    expect(r.mostImproved.map((m) => m.nickname)).toEqual(["Ana"]);
+    // The same accuracy twice is no change either: S1 played again, answer for answer, a week earlier as S0.
+    const s1 = input.rounds.find((x) => x.id === "S1")!;
+    const again = <T extends { roomId: string }>(rows: T[]) => rows.filter((x) => x.roomId === "S1").flatMap((x) => [x, { ...x, roomId: "S0" }]);
+    const twice: ReviewInput = {
+      rounds: [s1, { ...s1, id: "S0", startedAt: 500 }],
+      players: again(input.players).map((p) => ({ ...p, id: `${p.roomId}-${p.id}` })),
+      answers: again(input.answers).map((a) => ({ ...a, playerId: `${a.roomId}-${a.playerId}` })),
+    };
+    expect(mostImproved(twice, "S1")).toEqual([]);
   });
 
   it("builds the note heatmap with every answer, each round scored by its own rule", () => {

@@ -194,7 +194,8 @@ export interface Improvement {
 /**
  * Most improved since the previous round: for every linked student with at least MIN_RANKED answers
  * in `roundId`, accuracy there minus accuracy in the latest earlier round of the class where they
- * also gave at least MIN_RANKED answers. Largest rise first; students with no such earlier round are left out.
+ * also gave at least MIN_RANKED answers. Largest rise first; only students who rose are listed (no earlier
+ * round, the same accuracy or a drop is not an improvement).
  */
 export function mostImproved(input: ReviewInput, roundId: string): Improvement[] {
   const ordered = [...input.rounds].sort((a, b) => a.startedAt - b.startedAt);
@@ -206,7 +207,7 @@ export function mostImproved(input: ReviewInput, roundId: string): Improvement[]
   for (const p of perRound.get(roundId)!.values()) {
     if (p.answered < MIN_RANKED) continue;
     const prev = earlier.map((s) => ({ s, f: perRound.get(s.id)!.get(p.userId!) })).find((x) => x.f && x.f.answered >= MIN_RANKED);
-    if (!prev) continue;
+    if (!prev || p.accuracy <= prev.f!.accuracy) continue;
     out.push({ userId: p.userId!, nickname: p.nickname, now: p.accuracy, before: prev.f!.accuracy, delta: p.accuracy - prev.f!.accuracy, previousRoundId: prev.s.id });
   }
   return out.sort((a, b) => b.delta - a.delta || a.nickname.localeCompare(b.nickname));

@@ -1,19 +1,20 @@
-import { and, desc, eq, isNull } from "drizzle-orm";
+import { and, desc, eq, isNotNull, isNull, sql } from "drizzle-orm";
 import { nanoid } from "nanoid";
 import { createHmac, randomInt, timingSafeEqual } from "node:crypto";
 import { clientAddress, peek, take, type Limits } from "~/auth/rate-limit.server";
 import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
-import { rooms } from "~/db/schema";
+import { classes, roomEvents, rooms } from "~/db/schema";
 import { newRoomCode } from "~/game/roomCode";
-import { promptsFromPool, roomConfig, tunePrompts, type RoomConfig } from "~/game/roomConfig";
+import { promptsFromPool, roomConfig, tunePrompts, walkSheet, type RoomConfig } from "~/game/roomConfig";
 import { UserError } from "~/lib/userError";
 import type { SpotMap } from "~/music/positions";
 import { classSpotMap } from "~/reading/spotMaps.server";
-import { applySpotMap, MODE_NAMES, parseReadingSet } from "~/reading/spec";
+import { applySpotMap, parseReadingSet } from "~/reading/spec";
 import type { Tune } from "~/tunes/builtin";
 import { barRange, findTune } from "~/tunes/tunes.server";
-import { quickSetupSchema, type ParsedSetup, type QuickSetup } from "./setup";
+import { quickSetupSchema, roundTitle, type ParsedSetup, type QuickSetup } from "./setup";
+import { schoolNaming } from "~/school/naming.server";
 
 /**
  * The stage's credential for its room: derived from the server secret, so nothing secret is
@@ -46,7 +47,7 @@ export function configFromSetup({ set: setup, spec, pool }: ParsedSetup, code: s
     const notes = barRange(tune, setup.fromBar ?? 1, setup.toBar ?? Infinity);
     if (notes.length === 0) throw new UserError(`Bars ${setup.fromBar ?? 1}–${setup.toBar ?? "end"} of “${tune.title}” have no notes.`, "fromBar");
     const prompts = tunePrompts({ ...spec, keyFifths: tune.keyFifths }, notes.map((n) => n.pitch));
-    return roomConfig(spec, { ...settings, tuneName: tune.title }, applySpotMap(prompts, spotMap, spec.frets));
+    return roomConfig(spec, { ...settings, tuneName: tune.title, sheet: walkSheet(tune, notes) }, applySpotMap(prompts, spotMap, spec.frets));
   }
   return roomConfig(spec, settings, applySpotMap(promptsFromPool(pool, spec.keyFifths, setup.prompts, seed), spotMap, spec.frets));
 }
@@ -68,10 +69,17 @@ export async function createRoom(db: Db, host: SessionUser, parsed: ParsedSetup,
   const setup = parsed.set;
   const spotMap = setup.classId ? await classSpotMap(db, setup.classId, setup.position, setup.tuning) : undefined;
   const tune = setup.mode === "tune-walk" ? await findTune(db, host.orgId, setup.tuneId ?? "") : undefined;
-  const title = source.name ? `${source.name} · ${MODE_NAMES[setup.mode]}` : `${MODE_NAMES[setup.mode]} · position ${setup.position}`;
+  const naming = await schoolNaming(db, host.orgId);
+  const [filed] = setup.classId ? await db.select({ name: classes.name }).from(classes).where(eq(classes.id, setup.classId)) : [];
+  const title = roundTitle({
+    className: filed?.name,
+    setName: source.name,
+    mode: setup.mode,
+    spec: { ...parsed.spec, keyFifths: tune?.keyFifths ?? parsed.spec.keyFifths },
+  });
   for (let attempt = 0; ; attempt++) {
     const code = newRoomCode();
-    const config = configFromSetup(parsed, code, undefined, spotMap, tune);
+    const config = { ...configFromSetup(parsed, code, undefined, spotMap, tune), naming };
     const id = nanoid();
     try {
       await db.insert(rooms).values({
@@ -101,6 +109,25 @@ export async function openRoomByCode(db: Db, code: string) {
   return room;
 }
 
+/** The last room that had this code and has ended (codes are reused once a room ends); undefined if none did. */
+export async function endedRoomByCode(db: Db, code: string) {
+  const [room] = await db.select().from(rooms).where(and(eq(rooms.code, code), isNotNull(rooms.endedAt))).orderBy(desc(rooms.endedAt)).limit(1);
+  return room;
+}
+
+/** What a phone is told for a code whose round is over, so it is not taken for a mistyped one. */
+export const ROUND_OVER = "This round is over: the teacher's room with that code has ended. If the class plays again, type the new code from the class screen.";
+
+/** Codes of open rooms in which nothing was recorded (or, with no record yet, which were opened) before `before` (ms). */
+export async function idleRoomCodes(db: Db, before: number): Promise<string[]> {
+  const lastAt = sql<number>`coalesce((SELECT max(${roomEvents.at}) FROM ${roomEvents} WHERE ${roomEvents.roomId} = ${rooms.id}), ${rooms.createdAt})`;
+  const rows = await db
+    .select({ code: rooms.code })
+    .from(rooms)
+    .where(and(isNull(rooms.endedAt), sql`${lastAt} < ${before}`));
+  return rows.map((r) => r.code);
+}
+
 /**
  * A typed room code from a visitor: an address that has tried too many codes that open no room is
  * refused for a while (codes can't be found by guessing), right codes never count.
@@ -111,8 +138,10 @@ export async function lookUpRoom(svc: { db: Db; limits: Limits }, request: Reque
   if (refused) return { ok: false as const, refused };
   const room = await openRoomByCode(svc.db, code);
   if (room) return { ok: true as const, room };
+  // A class reloading a finished round shares one address: codes that were real never count against it.
+  if (await endedRoomByCode(svc.db, code)) return { ok: false as const, refused: undefined, ended: true, error: ROUND_OVER };
   await take(svc.limits.roomLookups, address);
-  return { ok: false as const, refused: undefined, error: "No open room has that code. Check the code on the class screen." };
+  return { ok: false as const, refused: undefined, ended: false, error: "No open room has that code. Check the code on the class screen." };
 }
 
 export async function roomById(db: Db, id: string) {

@@ -1,8 +1,10 @@
 import { z } from "zod";
-import { MODES } from "~/game/protocol";
+import { MODES, type Mode } from "~/game/messages";
 import { TEAM_COUNT_RANGE } from "~/game/roomConfig";
+import { KEYS } from "~/music/keys";
+import type { ReadingSpec } from "~/music/pools";
 import { readingPreset } from "~/reading/presets";
-import { parseReadingSet, readingSetFields, type ParsedReadingSet, type ReadingSetSpec } from "~/reading/spec";
+import { MODE_NAMES, parseReadingSet, readingSetFields, type ParsedReadingSet, type ReadingSetSpec } from "~/reading/spec";
 
 // An empty box means "from the start" / "to the end".
 const optionalBar = z.preprocess((v) => (v === "" ? undefined : v), z.coerce.number().int("A whole bar number.").min(1, "Bars count from 1.").max(9999).optional());
@@ -38,4 +40,15 @@ export function parsedSetup(setup: QuickSetup): ParsedSetup {
 /** Hosting from a reading set: the set's settings, for this class; its spec and pool carry over unchanged. */
 export function setupFromSet({ set, spec, pool }: ParsedReadingSet<ReadingSetSpec>, classId: string | undefined, teams = QUICK_DEFAULTS.teams): ParsedSetup {
   return { set: { ...set, teams, classId }, spec, pool };
+}
+
+/**
+ * A round's title, which tells it apart wherever rounds are listed (stage, dashboard, class review, results):
+ * its class, the set it read, the mode, the key and the position. Never the tune: a Tune walk names it only at the end.
+ */
+export function roundTitle(r: { className?: string | null; setName?: string | null; mode: Mode; spec: Pick<ReadingSpec, "keyFifths" | "accidentals" | "position"> }): string {
+  const key = KEYS.find((k) => k.mode === "major" && k.fifths === r.spec.keyFifths)?.name ?? "C major";
+  // A Tune walk reads its tune's own key, with whatever accidentals the tune has.
+  const reads = r.mode === "tune-walk" ? key : r.spec.accidentals === "naturals" ? "naturals" : r.spec.accidentals === "chromatic" ? `${key} with accidentals` : key;
+  return [r.className, r.setName, MODE_NAMES[r.mode], reads, `position ${r.spec.position}`].filter(Boolean).join(" · ");
 }

@@ -5,9 +5,10 @@
  * history both write through here, so both store the same rows.
  */
 import type { InStatement, InValue } from "@libsql/client";
-import { and, eq, getTableColumns, getTableName, sql, type InferInsertModel, type Table } from "drizzle-orm";
+import { and, eq, getTableColumns, getTableName, inArray, sql, type InferInsertModel, type Table } from "drizzle-orm";
+import { memoryRoundNews, type RoundNews } from "~/cluster/shared.server";
 import type { Db } from "~/db/client.server";
-import { answers, roomEvents, roomPlayers, rooms, users } from "~/db/schema";
+import { answers, roomEvents, roomFenceChecks, roomLeases, roomPlayers, rooms, users } from "~/db/schema";
 import { initialState, type Effect, type RoomState } from "~/game/room";
 import type { RoomConfig } from "~/game/roomConfig";
 import { loadRoomState } from "./log.server";
@@ -31,6 +32,8 @@ export class RoomLog {
     readonly roomId: string,
     /** The last sequence number used. */
     private seq = 0,
+    /** Cluster mode: the fence this node took the room with; every write checks it is still the room's. */
+    readonly fence: number | null = null,
   ) {}
 
   /** `userId` links the seats this step created to the signed-in student who joined. Null when the step writes nothing. */
@@ -106,9 +109,23 @@ export function writeStatements(db: Db, writes: readonly StepWrites[]): InStatem
   ];
 }
 
+/**
+ * The guard of a batch in cluster mode, run first in its transaction: fails the whole batch
+ * (nothing of it kept) with a "fenced" error unless every fenced room's fence is still its log's.
+ */
+function fenceChecks(logs: readonly RoomLog[]): InStatement[] {
+  const rows = [...new Set(logs)].flatMap((log) => (log.fence === null ? [] : [{ roomId: log.roomId, fence: log.fence }]));
+  return rows.length > 0 ? [insertRows(roomFenceChecks, rows)] : [];
+}
+
+/** A write refused because another node has taken the room since this node's copy was loaded. */
+export const isFenced = (error: unknown) => error instanceof Error && /\bfenced:/.test(error.message);
+
 /** Runs one batch of statements as one transaction (server/sql-writer.ts, on a thread of its own). */
 export interface SqlRunner {
   run(statements: InStatement[]): Promise<void>;
+  /** The same, resolving with the last statement's rows. */
+  query(statements: InStatement[]): Promise<unknown[][]>;
 }
 
 /** A room rebuilt from SQLite for the hub; `lastAt` is the server time of its last record (null if none). */
@@ -127,17 +144,55 @@ export class RoomStore {
   private idle: (() => void)[] = [];
 
   constructor(
-    private readonly db: Db,
+    readonly db: Db,
     private readonly sql: SqlRunner,
+    /** Told after each commit which rounds got answers or ended, for live class reviews on any node. */
+    private readonly news: RoundNews = memoryRoundNews(),
   ) {}
 
-  /** The open room with this code, rebuilt from its log; undefined if no open room has it. */
-  async open(code: string): Promise<StoredRoom | undefined> {
+  /**
+   * The open room with this code, rebuilt from its log; undefined if no open room has it. In
+   * cluster mode `claim` takes the room for this node first (it rejects if another node has it) and
+   * gives the fence, so the log read is everything any earlier owner could still write.
+   */
+  async open(code: string, claim?: (roomId: string) => Promise<number>): Promise<StoredRoom | undefined> {
     const row = await openRoomByCode(this.db, code);
     if (!row) return undefined;
+    const fence = claim ? await claim(row.id) : null;
     const loaded = await loadRoomState(this.db, row.id);
     const state = loaded?.state ?? initialState(row.config as RoomConfig);
-    return { id: row.id, code: row.code, state, log: new RoomLog(row.id, loaded?.seq ?? 0), lastAt: loaded?.lastAt ?? null };
+    return { id: row.id, code: row.code, state, log: new RoomLog(row.id, loaded?.seq ?? 0, fence), lastAt: loaded?.lastAt ?? null };
+  }
+
+  /** Cluster mode: the room's fence now (0 if no node has taken it yet). */
+  async fenceOf(roomId: string): Promise<number> {
+    const [row] = await this.db.select({ fence: roomLeases.fence }).from(roomLeases).where(eq(roomLeases.roomId, roomId));
+    return row?.fence ?? 0;
+  }
+
+  /**
+   * Cluster mode: raises the room's fence from `seen` to the next number for `nodeId`, on the writer
+   * thread (it waits for the file's write lock); false if the fence is no longer `seen`.
+   */
+  async advanceFence(roomId: string, seen: number, nodeId: string): Promise<boolean> {
+    const rows = await this.sql.query([
+      {
+        sql: `INSERT INTO room_leases (room_id, fence, node_id, taken_at) VALUES (?, ?, ?, ?)
+              ON CONFLICT (room_id) DO UPDATE SET fence = excluded.fence, node_id = excluded.node_id, taken_at = excluded.taken_at
+              WHERE room_leases.fence = ? RETURNING fence`,
+        args: [roomId, seen + 1, nodeId, Date.now(), seen],
+      },
+    ]);
+    return rows.length === 1;
+  }
+
+  /** Of these logs, the ones whose room another node has taken since (its fence moved on). */
+  private async fencedOf(logs: readonly RoomLog[]): Promise<Set<RoomLog>> {
+    const fenced = logs.filter((l) => l.fence !== null);
+    const ids = [...new Set(fenced.map((l) => l.roomId))];
+    const rows = ids.length > 0 ? await this.db.select().from(roomLeases).where(inArray(roomLeases.roomId, ids)) : [];
+    const now = new Map(rows.map((r) => [r.roomId, r.fence]));
+    return new Set(fenced.filter((l) => now.get(l.roomId) !== l.fence));
   }
 
   /**
@@ -168,13 +223,22 @@ export class RoomStore {
       for (const j of jobs) if (j.log.broken) j.done(new Error("an earlier write of this room failed"));
       if (ok.length === 0) continue;
       try {
-        await this.sql.run(writeStatements(this.db, ok.map((j) => j.writes)));
+        await this.sql.run([...fenceChecks(ok.map((j) => j.log)), ...writeStatements(this.db, ok.map((j) => j.writes))]);
         for (const j of ok) j.done(null);
+        const changed = new Set(ok.filter((j) => j.writes.answers.length > 0 || j.writes.endedAt).map((j) => j.writes.roomId));
+        for (const roomId of changed) this.news.changed(roomId);
       } catch (error) {
+        // A fenced room fails the whole batch: the other rooms' writes go again, without it.
+        const fenced = isFenced(error) ? await this.fencedOf(ok.map((j) => j.log)) : undefined;
+        const again: typeof ok = [];
         for (const j of ok) {
-          j.log.broken = true;
-          j.done(error);
+          if (fenced && fenced.size > 0 && !fenced.has(j.log)) again.push(j);
+          else {
+            j.log.broken = true;
+            j.done(error);
+          }
         }
+        this.pending.unshift(...again);
       }
     }
     this.busy = false;

@@ -12,10 +12,13 @@ import { chartFrets, SpotChart } from "~/components/SpotChart";
 import { Badge, Button, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
 import { writtenMidiFor, type Spot } from "~/music/fretboard";
 import { KEYS, spellInKey, type Key } from "~/music/keys";
-import { displayPitch, parsePitch, pitchMidi, pitchToString, spokenPitch } from "~/music/pitch";
+import { noteName } from "~/music/naming";
+import { parsePitch, pitchMidi, pitchToString, spokenPitch, type Pitch } from "~/music/pitch";
+import { NoteNamingChoice, useNoteNaming } from "~/components/NoteNaming";
 import { homeSpotFor, positionWindow } from "~/music/positions";
 import { MAX_FRETS, MIN_FRETS, TUNINGS } from "~/music/tuning";
 import type { Route } from "./+types/explore";
+import { Icon } from "~/components/Icon";
 
 export const meta: Route.MetaFunction = () => [
   { title: "Neck explorer · Fretcall" },
@@ -36,7 +39,6 @@ export function loader({ request }: Route.LoaderArgs) {
   if (!parsed.ok) return { values: parsed.values, errors: parsed.errors, view: null };
   const { note, key, tuning, frets, reading, map } = parsed.data;
   const writtenMidi = pitchMidi(note);
-  const spell = (midi: number) => displayPitch(spellInKey(midi, key.fifths, key.mode));
   const w = positionWindow(map.position);
   const neck = noteOnNeck({ note, tuning, frets, reading });
   return {
@@ -44,8 +46,6 @@ export function loader({ request }: Route.LoaderArgs) {
     errors: {},
     view: {
       ...neck,
-      shown: displayPitch(note),
-      soundingShown: displayPitch(parsePitch(neck.sounding)),
       spoken: spokenPitch(note),
       key,
       tuningInfo: tuning,
@@ -55,7 +55,7 @@ export function loader({ request }: Route.LoaderArgs) {
       higher: neighbour(writtenMidi, 1, key),
       // The chart runs over the position's frets, widened for any two-fret stretch the tuning needs.
       chartFrets: chartFrets(w, map.spots),
-      mapSpots: map.spots.map((s) => ({ string: s.string, fret: s.fret, label: spell(s.writtenMidi) })),
+      mapSpots: map.spots.map((s) => ({ string: s.string, fret: s.fret, writtenMidi: s.writtenMidi })),
     },
   };
 }
@@ -111,6 +111,7 @@ export default function Explore({ loaderData }: Route.ComponentProps) {
             String and fret numbers
           </label>
           <SoundControl />
+          <NoteNamingChoice />
         </div>
       </Card>
       {view ? <ExplorerView view={view} values={values} leftHanded={leftHanded} labels={labels} /> : null}
@@ -195,7 +196,7 @@ function ExplorerView({
   const [tapped, setTapped] = useState<Spot | null>(null);
   const tuning = view.tuningInfo;
   const withNote = (note: string) => `?${new URLSearchParams({ ...values, note })}`;
-  const spell = (midi: number) => displayPitch(spellInKey(midi, view.key.fifths, view.key.mode));
+  const { spell, shown, soundingShown } = useNames(view);
 
   const highlights: Highlight[] = view.spots.map((s) => ({
     ...s,
@@ -216,7 +217,7 @@ function ExplorerView({
       >
         <Card>
           <h2 id="note-heading" className="font-display text-2xl font-semibold">
-            Written {view.shown}
+            Written {shown}
           </h2>
           <Staff
             notes={[{ written: view.written }]}
@@ -226,11 +227,11 @@ function ExplorerView({
             className="my-2 rounded-2xl bg-white"
           />
           <p>
-            {view.key.name}; sounds <strong>{view.soundingShown}</strong> ({view.frequency} Hz).
+            {view.key.name}; sounds <strong>{soundingShown}</strong> ({view.frequency} Hz).
           </p>
           <div className="mt-3 flex flex-wrap gap-2">
             <Button tone="teal" type="button" onClick={() => void playSounding(view.midi)}>
-              <span aria-hidden="true">▶</span> Hear {view.shown}
+              <Icon name="play" className="h-4 w-4" /> Hear {shown}
             </Button>
             {view.lower ? (
               <Link
@@ -251,7 +252,7 @@ function ExplorerView({
           </div>
         </Card>
         <Card>
-          <h2 className="font-display text-2xl font-semibold">Every spot for {view.shown}</h2>
+          <h2 className="font-display text-2xl font-semibold">Every spot for {shown}</h2>
           <p className="mb-3 text-ink-soft">
             {view.spots.length === 0
               ? `No spot on a ${view.frets}-fret neck in ${tuning.name} tuning plays ${view.spoken}.`
@@ -276,7 +277,7 @@ function ExplorerView({
                 String {tapped.string}, {tapped.fret === 0 ? "open" : `fret ${tapped.fret}`} plays written{" "}
                 {spell(writtenMidiFor(tappedSounding, view.reading))}{" "}
                 {tappedSounding === view.midi ? (
-                  <Badge tone="right">same pitch as {view.shown}</Badge>
+                  <Badge tone="right">same pitch as {shown}</Badge>
                 ) : (
                   <Badge tone="info">another pitch</Badge>
                 )}
@@ -290,8 +291,18 @@ function ExplorerView({
   );
 }
 
+/** The page's note names in the school's or the device's naming (the loader sends pitches, not names). */
+function useNames(view: View) {
+  const naming = useNoteNaming();
+  const name = (p: Pitch) => noteName(p, naming, { octave: true });
+  const spell = (midi: number) => name(spellInKey(midi, view.key.fifths, view.key.mode));
+  return { spell, shown: name(parsePitch(view.written)), soundingShown: name(parsePitch(view.sounding)) };
+}
+
 function HomeSpotChart({ view, leftHanded, labels }: { view: View; leftHanded: boolean; labels: boolean }) {
   const tuning = view.tuningInfo;
+  const { spell } = useNames(view);
+  const mapSpots = view.mapSpots.map((s) => ({ string: s.string, fret: s.fret, label: spell(s.writtenMidi) }));
   const heading = `Home-spot map: position ${view.position}, ${tuning.name} tuning, ${view.reading === "guitar" ? "guitar reading" : "concert pitch"}`;
   return (
     <Card className="print:border-0 print:bg-white print:p-0 print:shadow-none">
@@ -302,7 +313,7 @@ function HomeSpotChart({ view, leftHanded, labels }: { view: View; leftHanded: b
         </Button>
       </div>
       <p className="mt-1 text-ink-soft">
-        One home spot for every written note from {view.mapSpots[0]?.label} to {view.mapSpots.at(-1)?.label}, spelt for{" "}
+        One home spot for every written note from {mapSpots[0]?.label} to {mapSpots.at(-1)?.label}, spelt for{" "}
         {view.key.name}. Tap a spot to hear it.
       </p>
       <div className="mt-3 print:hidden">
@@ -311,7 +322,7 @@ function HomeSpotChart({ view, leftHanded, labels }: { view: View; leftHanded: b
           frets={view.frets}
           position={view.position}
           leftHanded={leftHanded}
-          highlights={view.mapSpots.map((s) => ({ ...s, kind: "home" as const }))}
+          highlights={mapSpots.map((s) => ({ ...s, kind: "home" as const }))}
           onTap={(spot) => void playSounding(tuning.strings[spot.string - 1]! + spot.fret)}
           stringLabels={labels}
           fretLabels={labels}
@@ -320,7 +331,7 @@ function HomeSpotChart({ view, leftHanded, labels }: { view: View; leftHanded: b
         />
       </div>
       <div className="mt-4">
-        <SpotChart tuning={tuning} first={view.chartFrets.first} last={view.chartFrets.last} spots={view.mapSpots} caption={heading} />
+        <SpotChart tuning={tuning} first={view.chartFrets.first} last={view.chartFrets.last} spots={mapSpots} caption={heading} />
       </div>
     </Card>
   );

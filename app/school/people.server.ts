@@ -1,7 +1,7 @@
 // Classes, rosters and people: who is in a class, and the admin's changes to the school (who may see what: app/auth/access.server.ts).
 import { and, eq, inArray, isNull, sql } from "drizzle-orm";
 import { nanoid } from "nanoid";
-import type { ClassRecord } from "~/auth/access.server";
+import { TEACHING_ROLES, type ClassRecord } from "~/auth/access.server";
 import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
 import { listSessions } from "~/auth/session.server";
@@ -21,6 +21,7 @@ import {
   roomEvents,
   roomPlayers,
   rooms,
+  signInCards,
   users,
   userSessions,
 } from "~/db/schema";
@@ -28,7 +29,8 @@ import { looksLikeRoomCode, newJoinCode, normaliseJoinCode } from "./joinCode";
 import { checkRosterRows, type CheckedRow, type RosterRow } from "./roster";
 import { createInvitation, revokeInvitations } from "./invitations.server";
 
-export type SignInStatus = "nickname" | "active" | "invited" | "invite-expired";
+/** "card": no password, but a live sign-in card (docs/decisions/0008-sign-in-cards.md). */
+export type SignInStatus = "nickname" | "card" | "active" | "invited" | "invite-expired";
 
 export interface RosterEntry {
   id: string;
@@ -46,6 +48,7 @@ export async function rosterOf(db: Db, classId: string, now = Date.now()): Promi
       displayName: users.displayName,
       email: users.email,
       hasPassword: sql<number>`${users.passwordHash} is not null`,
+      hasCard: sql<number>`exists (select 1 from ${signInCards} where ${signInCards.userId} = ${users.id})`,
       joinedAt: memberships.createdAt,
       inviteExpiresAt: sql<number | null>`(select max(${invitations.expiresAt}) from ${invitations}
         where ${invitations.userId} = ${users.id} and ${invitations.classId} = ${classId}
@@ -60,7 +63,7 @@ export async function rosterOf(db: Db, classId: string, now = Date.now()): Promi
     displayName: r.displayName,
     email: r.email,
     joinedAt: r.joinedAt.toISOString(),
-    status: r.hasPassword ? "active" : !r.email ? "nickname" : r.inviteExpiresAt && r.inviteExpiresAt > now ? "invited" : "invite-expired",
+    status: r.hasPassword ? "active" : r.hasCard ? "card" : !r.email ? "nickname" : r.inviteExpiresAt && r.inviteExpiresAt > now ? "invited" : "invite-expired",
     inviteExpiresAt: r.inviteExpiresAt ? new Date(r.inviteExpiresAt).toISOString() : null,
   }));
 }
@@ -231,7 +234,7 @@ export async function teacherInSchool(db: Db, orgId: string, userId: string) {
   const [row] = await db
     .select({ id: users.id, displayName: users.displayName, email: users.email, passwordHash: users.passwordHash })
     .from(users)
-    .where(and(eq(users.id, userId), eq(users.orgId, orgId), inArray(users.role, ["teacher", "admin"])));
+    .where(and(eq(users.id, userId), eq(users.orgId, orgId), inArray(users.role, [...TEACHING_ROLES])));
   return row;
 }
 
@@ -328,7 +331,7 @@ export async function deleteStudent(db: Db, orgId: string, userId: string) {
       await tx.update(roomPlayers).set({ userId: null, nickname: REMOVED_STUDENT }).where(inArray(roomPlayers.id, seats));
     }
     // A table that keeps a user id belongs in this list too.
-    for (const table of [userSessions, memberships, invitations, passwordResets, apiTokens, assignmentTargets, practiceAnswers, rhythmAttempts, mailLog]) {
+    for (const table of [userSessions, signInCards, memberships, invitations, passwordResets, apiTokens, assignmentTargets, practiceAnswers, rhythmAttempts, mailLog]) {
       await tx.delete(table).where(eq(table.userId, userId));
     }
     await tx.delete(users).where(eq(users.id, userId));
@@ -395,6 +398,8 @@ export async function exportPersonalData(db: Db, userId: string) {
     listApiTokens(db, userId),
     listSessions(db, userId),
   ]);
+  // The card's issue date only: its codes are kept hashed and are never exported.
+  const [card] = await db.select({ issuedAt: signInCards.createdAt }).from(signInCards).where(eq(signInCards.userId, userId));
   const seatIds = seats.map((s) => s.seatId);
   const [roundAnswers, events] = seatIds.length
     ? await Promise.all([
@@ -423,18 +428,22 @@ export async function exportPersonalData(db: Db, userId: string) {
     mailSent: mail,
     apiTokens: tokens,
     devices,
+    signInCard: card ?? null,
   };
 }
 
 /** The admin's view of the school: each class with its join code and teacher ids, and each student with their classes. */
 export async function schoolOverview(db: Db, orgId: string) {
-  const [classRows, teaching, people] = await Promise.all([
+  const [classRows, places, people] = await Promise.all([
     db.select({ id: classes.id, joinCode: classes.joinCode }).from(classes).where(eq(classes.orgId, orgId)),
+    // Every class place in the school, read as a join (a correlated subquery in a sql template loses its
+    // table names, which left every person's classes empty).
     db
-      .select({ classId: memberships.classId, userId: memberships.userId })
+      .select({ classId: memberships.classId, userId: memberships.userId, role: memberships.role, className: classes.name })
       .from(memberships)
       .innerJoin(classes, eq(classes.id, memberships.classId))
-      .where(and(eq(classes.orgId, orgId), eq(memberships.role, "teacher"))),
+      .where(eq(classes.orgId, orgId))
+      .orderBy(classes.name),
     db
       .select({
         id: users.id,
@@ -442,16 +451,15 @@ export async function schoolOverview(db: Db, orgId: string) {
         email: users.email,
         role: users.role,
         hasPassword: sql<number>`${users.passwordHash} is not null`,
-        classNames: sql<string | null>`(select group_concat(${classes.name}, ', ') from ${memberships}
-          join ${classes} on ${classes.id} = ${memberships.classId} where ${memberships.userId} = ${users.id})`,
       })
       .from(users)
       .where(eq(users.orgId, orgId))
       .orderBy(users.displayName),
   ]);
+  const classNames = (userId: string) => places.filter((p) => p.userId === userId).map((p) => p.className).join(", ");
   return {
     joinCodes: Object.fromEntries(classRows.map((c) => [c.id, c.joinCode])),
-    teaching,
-    people: people.map((p) => ({ ...p, hasPassword: Boolean(p.hasPassword), classNames: p.classNames ?? "" })),
+    teaching: places.filter((p) => p.role === "teacher").map(({ classId, userId }) => ({ classId, userId })),
+    people: people.map((p) => ({ ...p, hasPassword: Boolean(p.hasPassword), classNames: classNames(p.id) })),
   };
 }

@@ -4,6 +4,7 @@ import Papa from "papaparse";
 import { z } from "zod";
 import { email as emailSchema, NAME_MAX } from "~/auth/schemas";
 import { cleanName, skeleton } from "~/lib/names";
+import { plural } from "~/lib/plural";
 
 export const CSV_MAX_BYTES = 100_000;
 export const CSV_MAX_ROWS = 200;
@@ -52,7 +53,7 @@ export function parseRosterCsv(text: string): ParsedCsv {
     return { ok: false, error: "The first line must name the columns, for example: name,email (the e-mail column is optional)." };
   }
   if (body.length === 0) return { ok: false, error: "The file has a header line but no students." };
-  if (body.length > CSV_MAX_ROWS) return { ok: false, error: `The file has ${body.length} students; import at most ${CSV_MAX_ROWS} at a time.` };
+  if (body.length > CSV_MAX_ROWS) return { ok: false, error: `The file has ${plural(body.length, "student")}; import at most ${CSV_MAX_ROWS} at a time.` };
   // Papaparse reports the record index; with quoted line breaks a record can span lines, so count from the parse.
   const lineOf = lineNumbers(parsed.data.length, text);
   return {

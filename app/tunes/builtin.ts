@@ -4,6 +4,7 @@
  * pass; a Tune walk uses the pitches only.
  */
 import type { LeftOut, ScorePart, TuneBar } from "~/music/musicxml";
+import type { ScoreTempo } from "~/music/tempo";
 
 export interface TuneNote {
   pitch: string;
@@ -23,6 +24,8 @@ export interface StoredScore {
   /** Bars in order: `bar` of a note is its index here plus 1. */
   measures: TuneBar[];
   leftOut: LeftOut;
+  /** The score's first tempo marking; absent for uploads stored before tempo was read. */
+  tempo?: ScoreTempo | null;
 }
 
 export interface Tune {

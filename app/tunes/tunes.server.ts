@@ -19,7 +19,7 @@ export function toStoredTune(score: ParsedScore, title: string): Omit<Tune, "id"
     // Kept for readers of the whole-tune meter: quarter notes in the first full bar (6/8 → 3).
     beatsPerBar: firstFull ? Math.max(1, Math.round((firstFull.beats * 4) / firstFull.beatType)) : 4,
     notes,
-    score: { partId: score.partId, part: score.part, parts: score.parts, measures: score.measures, leftOut: score.leftOut },
+    score: { partId: score.partId, part: score.part, parts: score.parts, measures: score.measures, leftOut: score.leftOut, tempo: score.tempo },
   };
 }
 

@@ -55,7 +55,7 @@ test("a teacher sets an assignment; the student sees it, practises it on a phone
   const map = demoEditedMap();
   await phone.getByRole("button", { name: "Start practising" }).click();
   for (let i = 0; i < GOAL_NOTES; i++) {
-    if (i > 0) await phone.getByRole("button", { name: "Next note ▶" }).click();
+    if (i > 0) await phone.getByRole("button", { name: "Next note" }).click();
     const written = await phone.locator("[data-written]").getAttribute("data-written");
     const home = map.spots.find((s) => s.written === written)!;
     await phone.getByRole("button", { name: `string ${home.string}, fret ${home.fret}`, exact: true }).click();

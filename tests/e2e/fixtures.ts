@@ -44,3 +44,20 @@ export async function signIn(page: Page, email: string, password = DEMO_PASSWORD
 
 export const shot = (page: Page, name: string) =>
   page.screenshot({ path: `tests/.tmp/screenshots/${name}.png`, fullPage: true });
+
+/** Starts a studio through the pages as a person does: the form, the e-mailed link, the confirmation; ends on /admin. */
+export async function startStudio(page: Page, f: { studio: string; name: string; email: string; password: string }) {
+  await page.goto("/signup");
+  await page.getByLabel("Studio or school name").fill(f.studio);
+  await page.getByLabel("Your name").fill(f.name);
+  await page.getByLabel("E-mail").fill(f.email);
+  await page.getByLabel("Password", { exact: true }).fill(f.password);
+  await page.getByLabel("Password again").fill(f.password);
+  await page.getByRole("button", { name: "Create studio" }).click();
+  await expect(page.getByText("Open the link in it within 24 hours")).toBeVisible();
+  const mail = (await readMail()).find((m) => m.to.includes(f.email));
+  const link = new URL(mail!.text.match(/https?:\/\/\S+\/signup\?studio=\S+/)![0]);
+  await page.goto(link.pathname + link.search);
+  await page.getByRole("button", { name: "Create my studio" }).click();
+  await expect(page).toHaveURL(/\/admin$/);
+}

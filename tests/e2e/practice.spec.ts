@@ -1,47 +1,12 @@
 import type { Page } from "@playwright/test";
 import { expect, shot, signIn, test } from "./fixtures";
+import { answer, steadyTune } from "./practising";
 
 const PHONE = { viewport: { width: 390, height: 844 }, isMobile: true, hasTouch: true };
-type Spot = { string: number; fret: number };
-
-/** The note on the staff (data-written) and its home spot from the public spot-map API. */
-async function noteOnStaff(page: Page) {
-  const written = (await page.locator("[data-written]").getAttribute("data-written"))!;
-  const map = (await (await page.request.get("/api/v1/spot-map?position=5&tuning=standard")).json()) as { spots: (Spot & { written: string })[] };
-  const home = map.spots.find((s) => s.written === written)!;
-  return { written, home };
-}
-
-const tap = (page: Page, spot: Spot) => page.getByRole("button", { name: `string ${spot.string}, fret ${spot.fret}`, exact: true }).click();
-
-/** Answers the note shown: at its home spot, or a fret off (always a wrong pitch). */
-async function answer(page: Page, right: boolean) {
-  const { home } = await noteOnStaff(page);
-  await tap(page, right ? home : { string: home.string, fret: home.fret + 1 });
-  const feedback = page.getByRole("status").filter({ hasText: right ? /Home spot!|other spot/ : /Home spot: string \d, fret \d+\./ });
-  await expect(feedback).toBeVisible();
-}
 
 async function practisedSince(page: Page, since: number) {
   const body = (await (await page.request.get(`/api/v1/practice/answers?since=${since}`)).json()) as { answers: { kind: string; clientId: string }[] };
   return body.answers;
-}
-
-/** Pitch first: if earlier tests left some of the tune's notes unsteady, practise them until the pass opens. */
-async function steadyTune(page: Page, tuneId: string) {
-  const open = async () => (await (await page.request.get(`/me/rhythm/${tuneId}`)).text()).includes("Start the count-in");
-  if (await open()) return;
-  await page.goto(`/me/practice?tune=${tuneId}&count=60`);
-  await page.getByRole("button", { name: "Start practising" }).click();
-  for (let i = 1; i <= 60; i++) {
-    await answer(page, true);
-    if (i % 4 === 0) {
-      await expect(page.getByText("All answers saved")).toBeVisible();
-      if (await open()) return;
-    }
-    await page.getByRole("button", { name: "Next note ▶" }).click();
-  }
-  throw new Error("The tune's notes did not become steady.");
 }
 
 test("the rhythm pass of a steady tune counts in, takes taps and shows early and late per note", async ({ browser }) => {
@@ -57,6 +22,8 @@ test("the rhythm pass of a steady tune counts in, takes taps and shows early and
   const pad = page.getByRole("button", { name: "Tap each note" });
   await expect(pad).toBeVisible();
   await expect(page.getByText("Bar 1")).toBeVisible({ timeout: 5_000 });
+  // The whole tune is engraved, and the note to tap now carries its mark (band and pointer) as well as its colour.
+  await expect(page.getByTestId("tune-staff").locator(".vf-asked-note")).toHaveCount(1);
   await shot(page, "rhythm-playing");
   // Roughly in time: one tap a beat (120 bpm = 500 ms) for the first bars; the rest of the tune goes untapped.
   for (let i = 0; i < 8; i++) {
@@ -81,24 +48,26 @@ test("a student practises on a phone, loses the connection for two answers, and 
   const since = Date.now();
   await page.goto("/me/practice?preset=ready-naturals-5&count=5");
   await page.getByRole("button", { name: "Start practising" }).click();
-  await expect(page.getByText("Why this note:")).toBeVisible();
+  // The reason names the note: it waits for the answer.
+  await expect(page.getByText("Why this note:")).toHaveCount(0);
 
   // Three answers online: right, wrong, right.
   await answer(page, true);
+  await expect(page.getByText("Why this note:")).toBeVisible();
   await shot(page, "practice-right");
-  await page.getByRole("button", { name: "Next note ▶" }).click();
+  await page.getByRole("button", { name: "Next note" }).click();
   await answer(page, false);
   await shot(page, "practice-wrong");
-  await page.getByRole("button", { name: "Next note ▶" }).click();
+  await page.getByRole("button", { name: "Next note" }).click();
   await answer(page, true);
   await expect(page.getByText("All answers saved")).toBeVisible();
   await expect.poll(async () => (await practisedSince(page, since)).length).toBe(3);
 
   // The connection drops: two more answers wait on the phone.
   await context.setOffline(true);
-  await page.getByRole("button", { name: "Next note ▶" }).click();
+  await page.getByRole("button", { name: "Next note" }).click();
   await answer(page, true);
-  await page.getByRole("button", { name: "Next note ▶" }).click();
+  await page.getByRole("button", { name: "Next note" }).click();
   await answer(page, false);
   await expect(page.getByText(/2 answers waiting \(offline/)).toBeVisible();
   expect(await page.evaluate(() => JSON.parse(localStorage.getItem("fretcall-practice-queue:demo-student-1") ?? "[]").length)).toBe(2);

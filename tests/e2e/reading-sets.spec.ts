@@ -35,7 +35,7 @@ test("a teacher builds a reading set, sees its preview, and hosts a round from i
   await page.goto(`/host?set=${id}&class=demo-class-tue`);
   await expect(page.getByText(/Position 5 · Standard · G major, notes of the key/).first()).toBeVisible();
   await shot(page, "host-from-set");
-  await page.getByRole("button", { name: "Host Week 3: G major, top strings" }).click();
+  await page.getByRole("button", { name: "Host this set: Week 3: G major, top strings" }).click();
   await expect(page).toHaveURL(/\/stage\//);
   await expect(page.getByLabel(/^Room code/).first()).toBeVisible();
   await shot(page, "stage-from-set");

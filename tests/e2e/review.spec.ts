@@ -52,3 +52,27 @@ test("a teacher reads the class review, picks one round and opens a student's pr
   await expect(page.locator(".recharts-line").first()).toBeVisible();
   await shot(page, "student-progress");
 });
+
+test("the labels of a student's progress charts never overlap, on a phone or a laptop", async ({ page }) => {
+  await signIn(page, "rafe@larkspur.example");
+  await expect(page).toHaveURL(/\/teach$/);
+  for (const viewport of [{ width: 360, height: 740 }, { width: 1280, height: 900 }]) {
+    await page.setViewportSize(viewport);
+    await page.goto("/teach/classes/demo-class-tue/students/demo-student-1");
+    for (const title of ["Accuracy per round", "Median time per round"]) {
+      const chart = page.locator("figure", { has: page.getByText(title, { exact: true }) });
+      await expect(chart.locator("[data-chart-label]").first()).toBeVisible();
+      // The values over the points and the axes' numbers and dates.
+      const labels = chart.locator("[data-chart-label], .recharts-cartesian-axis-tick text");
+      const boxes = (await labels.evaluateAll((els) => els.map((e) => e.getBoundingClientRect().toJSON()))) as DOMRect[];
+      expect(boxes.length).toBeGreaterThan(4);
+      for (let i = 0; i < boxes.length; i++) {
+        for (let j = i + 1; j < boxes.length; j++) {
+          const [a, b] = [boxes[i]!, boxes[j]!];
+          const overlap = a.left < b.right && b.left < a.right && a.top < b.bottom && b.top < a.bottom;
+          expect(overlap, `${title} at ${viewport.width} px: labels ${i} and ${j} overlap`).toBe(false);
+        }
+      }
+    }
+  }
+});

@@ -40,12 +40,28 @@ test("a teacher imports a roster CSV: sees the row errors, confirms, and finds t
   await page.getByPlaceholder("Filter students").fill("");
   await roster.getByRole("button", { name: /^Name/ }).click();
   await expect(roster.getByRole("columnheader", { name: /^Name/ })).toHaveAttribute("aria-sort", "descending");
-  // …and pages: ten students, five to a page.
-  await page.getByLabel("Rows per page").selectOption("5");
+  // …and pages: ten students, five to a page (the roster's own pager: the class hub above has one too).
+  const rosterCard = page.locator("section", { has: roster });
+  await rosterCard.getByLabel("Rows per page").selectOption("5");
   await expect(roster.getByRole("rowheader")).toHaveCount(5);
   await expect(roster.getByRole("rowheader").first()).toHaveText("Uma C.");
-  await page.getByRole("button", { name: "Next" }).click();
-  await expect(page.getByText("Page 2 of 2")).toBeVisible();
+  await rosterCard.getByRole("button", { name: "Next" }).click();
+  await expect(rosterCard.getByText("Page 2 of 2")).toBeVisible();
   await expect(roster.getByRole("rowheader")).toHaveCount(5);
   await shot(page, "roster-after-import");
+});
+
+test("the CSV preview scrolls into view when it appears, on a phone too", async ({ page }) => {
+  await page.setViewportSize({ width: 390, height: 700 });
+  await signIn(page, "saoirse@larkspur.example");
+  await expect(page).toHaveURL(/\/teach$/);
+  await page.goto("/teach/classes/demo-class-sat");
+  await page.getByLabel("CSV file").setInputFiles(ROSTER);
+  await page.getByRole("button", { name: "Preview" }).click();
+  const heading = page.getByRole("heading", { name: "Check the import" });
+  await expect(heading).toBeFocused();
+  const box = (await heading.boundingBox())!;
+  expect(box.y).toBeGreaterThanOrEqual(0);
+  expect(box.y + box.height).toBeLessThanOrEqual(700);
+  expect(await page.evaluate(() => window.scrollY)).toBeGreaterThan(0);
 });

@@ -124,6 +124,24 @@ describe("role matrix: route × role → status", () => {
   });
 });
 
+describe("the school page", () => {
+  it("lists each person's classes: a student's class, a teacher's two, a teacher's one", async () => {
+    const admin = await signIn(DEMO_SCHOOL.admin.email);
+    const page = (await html(await admin.get("/admin"))).replace(/<!-- -->/g, "");
+    // The cells' text of the table row that starts with a person's name.
+    const row = (name: string) => {
+      const rows = [...page.matchAll(/<tr[^>]*>([\s\S]*?)<\/tr>/g)].map((m) => [...m[1]!.matchAll(/<t[hd][^>]*>([\s\S]*?)<\/t[hd]>/g)].map((c) => c[1]!.replace(/<[^>]+>/g, "")));
+      const cells = rows.find((r) => r[0] === name);
+      expect(cells, `a row for ${name}`).toBeDefined();
+      return cells!;
+    };
+    expect(row("Amani K.")).toContain("Tuesday Beginners");
+    expect(row("Quill E.")).toContain("Saturday Youth Guitar");
+    expect(row(RAFE.displayName)).toContain("Thursday Improvers, Tuesday Beginners");
+    expect(row(SAOIRSE.displayName)).toContain("Saturday Youth Guitar");
+  });
+});
+
 describe("CSV import", () => {
   let classId = "";
   let teacher: Client;

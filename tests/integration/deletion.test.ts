@@ -13,7 +13,7 @@ import { loadRoomState } from "~/rooms/log.server";
 import { REMOVED_STUDENT } from "~/school/people.server";
 import { seedDemo } from "../../server/seed";
 import { Client, signedIn, startTestServer, type TestServer } from "./harness";
-import { openStage, openTestRoom, ScriptedSocket, spotOf, untilShown } from "../../server/scripted-rooms";
+import { answerFirstPrompt, openStage, openTestRoom, ScriptedSocket } from "../../server/scripted-rooms";
 
 let server: TestServer;
 const db = () => server.services.db;
@@ -41,12 +41,7 @@ async function playSignedIn(student: Client, end: boolean) {
   pad.send({ type: "join", room: room.code, nickname: "ignored" });
   const you = (await pad.next("welcome", (m) => m.you !== null)).you!;
   expect(you.nickname).toBe(STUDENT.name);
-  stage.send({ type: "host", action: "start" });
-  const prompt = await pad.next("prompt");
-  await untilShown(prompt.showAt);
-  pad.send({ type: "answer", promptId: prompt.promptId, spot: spotOf(room.config.prompts[0]!.home), tapAt: Date.now() });
-  expect((await pad.next("answer-ack")).accepted).toBe(true);
-  await stage.next("reveal");
+  await answerFirstPrompt(stage, pad, room);
   if (end) {
     stage.send({ type: "host", action: "end" });
     await stage.next("ended");

@@ -1,8 +1,10 @@
 import { randomBytes } from "node:crypto";
+import { afterAll, beforeAll } from "vitest";
 import { DEMO_PASSWORD } from "~/demo/school";
 import { readOutbox, type CapturedMail } from "~/mail/outbox.server";
 import { startServer, type RunningServer } from "../../server/index";
 import { startMailCatcher } from "../../server/mail-catcher";
+import { seedDemo } from "../../server/seed";
 
 export interface TestServer extends RunningServer {
   mailDir: string;
@@ -39,6 +41,18 @@ export async function startTestServer(extra: Record<string, string> = {}): Promi
       await catcher.close();
     },
   };
+}
+
+/** The test file's server with the demo school in it, started before its tests and closed after them. */
+export function demoServer() {
+  const running = {} as { server: TestServer; secret: string };
+  beforeAll(async () => {
+    running.server = await startTestServer();
+    running.secret = running.server.services.env.SESSION_SECRET;
+    await seedDemo(running.server.services.db);
+  });
+  afterAll(() => running.server.close());
+  return running;
 }
 
 /** A browser-like client: keeps cookies, sends a same-origin Origin on posts, never follows redirects. */
@@ -106,4 +120,19 @@ export async function startStudio(
   const done = await post({ intent: "confirm", token });
   if (done.status !== 302) throw new Error(`confirming the studio answered ${done.status}`);
   return client;
+}
+
+/** Reads server-sent events until `until` matches what arrived so far. */
+export async function readUntil(body: ReadableStream<Uint8Array>, until: RegExp) {
+  const reader = body.getReader();
+  const decoder = new TextDecoder();
+  let text = "";
+  const deadline = Date.now() + 8_000;
+  while (!until.test(text) && Date.now() < deadline) {
+    const { value, done } = await reader.read();
+    if (done) break;
+    text += decoder.decode(value, { stream: true });
+  }
+  reader.releaseLock();
+  return text;
 }

@@ -200,8 +200,18 @@ describe("a reloaded stage", () => {
     expect(phases(counting)).toEqual(["welcome:prompt", "prompt:prompt"]);
     expect(counting.find((m) => m.type === "prompt")).toMatchObject({ promptId: prompt.promptId, showAt: prompt.showAt });
     expect((counting[0] as ServerMessageOf<"welcome">).serverTime).toBeLessThan(prompt.showAt);
+    // The stage has the note in the countdown, to draw it off-screen and show it at showAt.
+    expect(counting.find((m) => m.type === "note")).toMatchObject({ promptId: prompt.promptId, written: room.config.prompts[0]!.written });
     await untilShown(prompt.showAt);
     expect(phases(await reload("answered"))).toEqual(["welcome:prompt", "prompt:prompt"]);
+    // Paused mid-prompt: the reloaded stage gets the note (hidden under the pause) and the pause; resumed, a new countdown.
+    await act("pause", "paused");
+    const held = await reload("paused");
+    expect(phases(held)).toEqual(["welcome:paused", "prompt:paused", "paused:paused"]);
+    expect(held.map((m) => m.type)).toEqual(["welcome", "roster", "prompt", "note", "answered", "paused"]);
+    const resumed = (await act("resume", "prompt")) as ServerMessageOf<"prompt">;
+    expect(resumed.showAt).toBeGreaterThan(prompt.showAt);
+    await untilShown(resumed.showAt);
     pad.send({ type: "answer", promptId: prompt.promptId, spot: spotOf(room.config.prompts[0]!.home), tapAt: Date.now() });
     await stage.next("reveal");
     const revealed = await reload("reveal");
@@ -215,7 +225,7 @@ describe("a reloaded stage", () => {
     expect(phases(await reload("standings"))).toEqual(["welcome:standings", "standings:standings"]);
     await act("end", "ended");
     // An ended room is no longer live: the stage page draws its last screen from the log.
-    expect((await reload("error")).at(-1)).toMatchObject({ code: "room-not-found" });
+    expect((await reload("error")).at(-1)).toMatchObject({ code: "room-ended" });
     const teacher = new Client(server.url);
     expect((await teacher.post("/signin", { email: DEMO_SCHOOL.teachers[0].email, password: DEMO_PASSWORD })).status).toBe(302);
     const page = await (await teacher.get(`/stage/${room.id}`)).text();
@@ -224,5 +234,28 @@ describe("a reloaded stage", () => {
     expect(page).toContain("Zia");
     pad.close();
     stage.close();
+  });
+});
+
+describe("a client that is not a browser", () => {
+  it("signs in, opens a room, gets its host credential as JSON and runs the stage (docs/protocol.md)", async () => {
+    const teacher = new Client(server.url);
+    expect((await teacher.post("/signin", { email: DEMO_SCHOOL.teachers[0].email, password: DEMO_PASSWORD })).status).toBe(302);
+    const opened = await teacher.post("/host", { intent: "set", set: "ready-naturals-5" });
+    expect(opened.status).toBe(302);
+    const roomId = opened.headers.get("location")!.match(/^\/stage\/([^/?]+)$/)![1]!;
+    const res = await teacher.get(`/api/v1/rounds/${roomId}/stage`);
+    expect(res.headers.get("cache-control")).toBe("private, no-store");
+    const stageInfo = (await res.json()) as { id: string; code: string; hostKey: string; ended: boolean };
+    expect(stageInfo).toMatchObject({ id: roomId, ended: false, hostKey: hostKeyFor(secret, roomId) });
+    const stage = await ScriptedSocket.open(server.url);
+    stage.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "host", room: stageInfo.code, hostKey: stageInfo.hostKey });
+    expect(await stage.next("welcome")).toMatchObject({ role: "host", phase: "lobby", you: null });
+    const { pad } = await joinPlayer(server.url, stageInfo.code, "Rio");
+    expect((await stage.next("roster", (m) => m.players.length === 1)).players[0]).toMatchObject({ nickname: "Rio", online: true });
+    pad.close();
+    stage.close();
+    // Without a sign-in there is no credential to be had.
+    expect((await new Client(server.url).get(`/api/v1/rounds/${roomId}/stage`)).status).toBe(401);
   });
 });

@@ -141,6 +141,24 @@ describe("POST /api/v1/practice/answers", () => {
     expect((await notMyClass.json()).error).toContain("you are not in that class");
   });
 
+  it("credits practice of an assignment's material to it however it was started, by one rule, and the page names it", async () => {
+    const stored = async (clientId: string) =>
+      (await server.services.db.select({ assignmentId: practiceAnswers.assignmentId }).from(practiceAnswers).where(eq(practiceAnswers.clientId, clientId)))[0]?.assignmentId;
+    // The ready-made set of her open assignment, started from her list (no assignment id sent): it counts.
+    const fromList = answer({ classId: "demo-class-tue" });
+    // Material no assignment of hers asks for: it counts toward nothing.
+    const other = answer({ source: "preset:ready-g-major-5", keyFifths: 1 });
+    expect((await sendAnswers(amani, [fromList, other])).status).toBe(200);
+    expect(await stored(fromList.clientId)).toBe("demo-assignment-tue");
+    expect(await stored(other.clientId)).toBeNull();
+    // The practice page says so, from either path; free practice of other material says nothing.
+    const page = async (query: string) => (await (await amani.get(`/me/practice?${query}`)).text()).replace(/<!-- -->/g, "");
+    for (const query of ["preset=ready-naturals-5", "assignment=demo-assignment-tue"]) {
+      expect(await page(query)).toMatch(/Counts toward your assignment <strong>Naturals in fifth position<\/strong> \(Tuesday Beginners, due/);
+    }
+    expect(await page("preset=ready-g-major-5")).not.toContain("Counts toward");
+  });
+
   it.each([
     ["a week-old answer", { at: Date.now() - 8 * 86_400_000 }, "more than 7 days ago: too old to count"],
     ["an answer from the future", { at: Date.now() + 60 * 60_000 }, "its time lies in the future"],
@@ -284,6 +302,44 @@ describe("POST /api/v1/practice/rhythm", () => {
     const rows = await server.services.db.select().from(rhythmAttempts).where(and(eq(rhythmAttempts.userId, AMANI), eq(rhythmAttempts.id, pass.id)));
     expect(rows).toHaveLength(1);
     expect((await (await amani.get("/api/v1/practice/rhythm?tune=lantern-walk")).json()).passes[0].id).toBe(pass.id);
+  });
+
+  it("stores a played pass: the calibrated delay comes off what the microphone heard, and the teacher sees how it was given", async () => {
+    // Every note heard 137 ms after its onset, and 137 ms calibrated: 137 − 137 = 0, all on time.
+    const pass = { id: "test-pass-played1", tuneId: "lantern-walk", tempo: 90, taps: onTheBeat.map((t) => t + 137), input: "played", latencyMs: 137 };
+    const res = await postJson(amani, "/api/v1/practice/rhythm", pass);
+    expect(res.status).toBe(200);
+    expect(await res.json()).toMatchObject({ score: 100, input: "played", latencyMs: 137, duplicate: false });
+    const [row] = await server.services.db.select().from(rhythmAttempts).where(eq(rhythmAttempts.id, pass.id));
+    expect(row).toMatchObject({ input: "played", score: 100 });
+    // Without the calibrated delay the same notes are all 137 ms late: 80 < 137 ≤ 160, close, half credit each.
+    const raw = await (await postJson(amani, "/api/v1/practice/rhythm", { ...pass, id: "test-pass-played2", latencyMs: 0 })).json();
+    expect(raw).toMatchObject({ score: 50, input: "played" });
+    const [tapped] = await server.services.db.select().from(rhythmAttempts).where(eq(rhythmAttempts.id, "test-pass-0001"));
+    expect(tapped!.input).toBe("tap");
+    const passes = (await (await amani.get("/api/v1/practice/rhythm?tune=lantern-walk")).json()).passes;
+    expect(passes.map((p: { input: string }) => p.input)).toEqual(expect.arrayContaining(["played", "tap"]));
+
+    const page = await rafe.get(`/teach/classes/demo-class-tue/students/${AMANI}`);
+    expect(page.status).toBe(200);
+    const html = await page.text();
+    expect(html).toContain("Rhythm passes");
+    expect(html).toContain("Played on the guitar");
+    expect(html).toContain("Tapped");
+  });
+
+  it.each([
+    [{ input: "played" }, "A played pass names its calibrated delay (latencyMs)"],
+    [{ latencyMs: 100 }, "only a played pass has one"],
+    [{ input: "played", latencyMs: 500 }, "The calibrated delay must be -150 to 400 ms."],
+    [{ input: "played", latencyMs: 12.5 }, "The calibrated delay must be -150 to 400 ms."],
+    [{ input: "sung" }, 'Say how the notes were given: "tap" or "played".'],
+  ])("refuses a pass with %j and stores nothing", async (over, error) => {
+    const id = `test-pass-bad-${Math.random().toString(36).slice(2, 8)}`;
+    const res = await postJson(amani, "/api/v1/practice/rhythm", { id, tuneId: "lantern-walk", tempo: 90, taps: onTheBeat, ...over });
+    expect(res.status).toBe(400);
+    expect((await res.json()).error).toContain(error);
+    expect(await server.services.db.select().from(rhythmAttempts).where(eq(rhythmAttempts.id, id))).toHaveLength(0);
   });
 
   it("keeps the pass locked until the pitches are steady, and refuses bad passes", async () => {

@@ -215,7 +215,7 @@ describe("hosting from reading sets", () => {
     const res = await client.post("/host", { intent: "set", set: "demo-set-tue-2", classId: "demo-class-tue" });
     expect(res.status).toBe(302);
     const first = await roomOf(res.headers.get("location"));
-    expect(first).toMatchObject({ readingSetId: "demo-set-tue-2", classId: "demo-class-tue", title: "Week 2: all six strings · Sprint" });
+    expect(first).toMatchObject({ readingSetId: "demo-set-tue-2", classId: "demo-class-tue", title: "Tuesday Beginners · Week 2: all six strings · Sprint · naturals · position 5" });
     expect((first.config as RoomConfig).prompts).toHaveLength(15);
 
     const again = await client.post("/host", { intent: "again", roomId: first.id });
@@ -231,7 +231,7 @@ describe("hosting from reading sets", () => {
   it("hosts a ready-made set, and refuses a set from another class or school", async () => {
     const client = await signIn(rafe);
     const res = await client.post("/host", { intent: "set", set: "ready-g-major-5", classId: "" });
-    expect((await roomOf(res.headers.get("location"))).title).toBe("One sharp: G major · Sprint");
+    expect((await roomOf(res.headers.get("location"))).title).toBe("One sharp: G major · Sprint · G major · position 5");
     expect((await client.post("/host", { intent: "set", set: "demo-set-sat-1", classId: "" })).status).toBe(403);
     const notMine = await (await signIn(OTHER.email)).post("/host", { intent: "again", roomId: (await roomOf(res.headers.get("location"))).id });
     expect(notMine.status).toBe(404);

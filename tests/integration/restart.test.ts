@@ -1,12 +1,13 @@
-// The server process is killed (SIGKILL, no goodbye) mid-round and started again on the same
-// database: every acknowledged answer must be there, and the phones take their seats back.
+// The server process is killed (SIGKILL, no goodbye) or stopped (SIGTERM) mid-round and started
+// again on the same database: every acknowledged answer must be there, every answer sent while it
+// stopped gets a reply, and the phones take their seats back and send what they kept.
 import { spawn, type ChildProcess } from "node:child_process";
 import { createServer } from "node:net";
 import { eq } from "drizzle-orm";
 import { afterAll, describe, expect, it } from "vitest";
 import { closeDb, openDb } from "~/db/client.server";
 import { answers } from "~/db/schema";
-import { PROTOCOL_VERSION } from "~/game/protocol";
+import { ERROR_CODES, PROTOCOL_VERSION, type ServerMessage } from "~/game/protocol";
 import { LATE_GRACE_MS } from "~/game/room";
 import { seedDemo } from "../../server/seed";
 import { joinPlayer, openStage, openTestRoom, ScriptedSocket, spotOf, untilShown } from "../../server/scripted-rooms";
@@ -60,18 +61,25 @@ afterAll(() => {
   for (const c of children) killGroup(c, "SIGKILL");
 });
 
+/** A seeded database, a room in it, a server process on a free port, its stage and players joined. */
+async function openRound(settings: { prompts: number; answerMs: number }, names: string[]) {
+  const db = await openDb(process.env.DATABASE_URL!);
+  await seedDemo(db);
+  const room = await openTestRoom(db, settings);
+  const port = await freePort();
+  const url = `http://localhost:${port}`;
+  const child = await boot(port);
+  children.push(child);
+  const stage = await openStage(url, SECRET, room);
+  const players = await Promise.all(names.map((n) => joinPlayer(url, room.code, n)));
+  return { db, room, port, url, child, stage, players };
+}
+
 describe("kill and restart mid-round", () => {
   it("keeps every acknowledged answer and resumes with scores intact", async () => {
-    const db = await openDb(process.env.DATABASE_URL!);
-    await seedDemo(db);
-    const room = await openTestRoom(db, { prompts: 4, answerMs: 3_000 });
-    const port = await freePort();
-    const url = `http://localhost:${port}`;
-    let child = await boot(port);
-    children.push(child);
-
-    const stage = await openStage(url, SECRET, room);
-    const players = await Promise.all(["Ines", "Jo", "Kit", "Lou", "Max"].map((n) => joinPlayer(url, room.code, n)));
+    const opened = await openRound({ prompts: 4, answerMs: 3_000 }, ["Ines", "Jo", "Kit", "Lou", "Max"]);
+    const { db, room, port, url, stage, players } = opened;
+    let child = opened.child;
     stage.send({ type: "host", action: "start" });
     const acked: string[] = [];
     const totals = new Map<string, number>();
@@ -129,4 +137,128 @@ describe("kill and restart mid-round", () => {
     killGroup(child, "SIGTERM");
     await closeDb(db);
   }, 60_000);
+});
+
+/** The answers a pad's socket received since message `from`. */
+const acksSince = (pad: ScriptedSocket, from: number) =>
+  pad.messages.slice(from).filter((m): m is Extract<ServerMessage, { type: "answer-ack" }> => m.type === "answer-ack");
+
+/** A pad back on a new socket with its seat token, once its catch-up (which ends with the roster) is in. */
+async function reseat(url: string, code: string, seatToken: string) {
+  const pad = await ScriptedSocket.open(url);
+  pad.send({ type: "hello", protocol: PROTOCOL_VERSION, role: "player", room: code, seatToken });
+  await pad.next("welcome", (m) => m.you !== null);
+  await pad.next("roster");
+  return pad;
+}
+
+describe("a graceful stop (SIGTERM) mid-prompt", () => {
+  it("replies to every answer that reaches it while stopping, and a resent answer is stored once after the restart", async () => {
+    const opened = await openRound({ prompts: 2, answerMs: 20_000 }, ["Ada", "Bo", "Cas", "Dee", "Eli", "Fen"]);
+    const { db, room, port, url, stage, players } = opened;
+    let child = opened.child;
+    stage.send({ type: "host", action: "start" });
+    const prompt = await stage.next("prompt");
+    await untilShown(prompt.showAt);
+    const answer = { type: "answer", promptId: prompt.promptId, spot: spotOf(room.config.prompts[0]!.home) };
+    const from = players.map(({ pad }) => pad.messages.length);
+    const [early, late] = [players.slice(0, 3), players.slice(3)];
+
+    // Three answers are on their way as the server is told to stop…
+    for (const { pad } of early) pad.send({ ...answer, tapAt: Date.now() });
+    const exited = new Promise((r) => child.once("exit", r));
+    killGroup(child, "SIGTERM");
+    // …every socket hears that it is stopping, and three more answers arrive after that.
+    for (const { pad } of players) await pad.next("error", (m) => m.code === ERROR_CODES.stopping);
+    for (const { pad } of late) pad.send({ ...answer, tapAt: Date.now() });
+    for (const { pad } of players) expect((await pad.waitClose(10_000)).code).toBe(1001);
+    await exited;
+
+    const replies = players.map(({ pad }, i) => acksSince(pad, from[i]!));
+    for (const r of replies) expect(r).toHaveLength(1);
+    for (const [r] of replies.slice(0, 3)) expect(r!.accepted || r!.code === ERROR_CODES.stopping).toBe(true);
+    for (const [r] of replies.slice(3)) expect(r).toMatchObject({ accepted: false, code: ERROR_CODES.stopping, message: expect.stringMatching(/again/) });
+    const acked = players.filter((_, i) => replies[i]![0]!.accepted).map((p) => p.you.playerId);
+    const storedIds = async () => (await db.select().from(answers).where(eq(answers.roomId, room.id))).map((a) => a.playerId).sort();
+    expect(await storedIds()).toEqual([...acked].sort());
+
+    // Back up: every pad sends its answer again, as a pad that never got (or lost) the reply does.
+    child = await boot(port);
+    children.push(child);
+    const stage2 = await openStage(url, SECRET, room);
+    const pads = await Promise.all(players.map(({ you }) => reseat(url, room.code, you.seatToken)));
+    const sent = pads.map((pad) => pad.messages.length);
+    for (const pad of pads) pad.send({ ...answer, tapAt: Date.now() });
+    const again = await Promise.all(pads.map((pad, i) => pad.next("answer-ack", () => true, sent[i])));
+    players.forEach(({ you }, i) => {
+      // A stored answer gets its ack again; the others wait, as the room came back paused.
+      if (acked.includes(you.playerId)) expect(again[i]).toMatchObject({ accepted: true, promptId: prompt.promptId });
+      else expect(again[i]).toMatchObject({ accepted: false, code: ERROR_CODES.paused });
+    });
+    stage2.send({ type: "host", action: "resume" });
+    const resumed = await stage2.next("prompt", (m) => m.phase === "prompt");
+    await untilShown(resumed.showAt);
+    const waiting = pads.filter((_, i) => !again[i]!.accepted);
+    const marks = waiting.map((pad) => pad.messages.length);
+    for (const pad of waiting) pad.send({ ...answer, tapAt: Date.now() });
+    for (const [i, pad] of waiting.entries()) expect(await pad.next("answer-ack", () => true, marks[i])).toMatchObject({ accepted: true });
+    // Each pad's answer is stored exactly once.
+    expect(await storedIds()).toEqual(players.map((p) => p.you.playerId).sort());
+    killGroup(child, "SIGTERM");
+    await closeDb(db);
+  }, 90_000);
+});
+
+describe("a tap queued through a restart", () => {
+  it("is stored if its prompt is still open, and refused as too late, with the reason, once it has closed", async () => {
+    const opened = await openRound({ prompts: 3, answerMs: 20_000 }, ["Ana", "Ben", "Cy"]);
+    const { db, room, port, url, stage } = opened;
+    const [ana, ben, cy] = opened.players;
+    let child = opened.child;
+    stage.send({ type: "host", action: "start" });
+    const prompt = await stage.next("prompt");
+    await untilShown(prompt.showAt);
+    const home = spotOf(room.config.prompts[0]!.home);
+    cy!.pad.send({ type: "answer", promptId: prompt.promptId, spot: home, tapAt: Date.now() });
+    expect(await cy!.pad.next("answer-ack")).toMatchObject({ accepted: true });
+    // The server dies; Ana and Ben tap meanwhile, and their pads keep the taps.
+    const exited = new Promise((r) => child.once("exit", r));
+    killGroup(child, "SIGKILL");
+    await exited;
+    const tapped = { type: "answer", promptId: prompt.promptId, spot: home, tapAt: Date.now() };
+
+    child = await boot(port);
+    children.push(child);
+    const stage2 = await openStage(url, SECRET, room);
+    // Ana is back first: the room is paused, so her tap waits and goes in once the prompt is open again.
+    const anaPad = await reseat(url, room.code, ana!.you.seatToken);
+    anaPad.send(tapped);
+    expect(await anaPad.next("answer-ack")).toMatchObject({ accepted: false, code: ERROR_CODES.paused });
+    stage2.send({ type: "host", action: "resume" });
+    const reopened = await stage2.next("prompt", (m) => m.phase === "prompt");
+    await untilShown(reopened.showAt);
+    const mark = anaPad.messages.length;
+    anaPad.send(tapped);
+    expect(await anaPad.next("answer-ack", () => true, mark)).toMatchObject({ accepted: true, promptId: prompt.promptId, diagnosis: { kind: "home-spot" } });
+
+    // Ben comes back after the teacher closed the prompt: too late, and why.
+    stage2.send({ type: "host", action: "skip" });
+    await stage2.next("reveal");
+    const benPad = await reseat(url, room.code, ben!.you.seatToken);
+    benPad.send(tapped);
+    expect(await benPad.next("answer-ack")).toMatchObject({ accepted: false, code: ERROR_CODES.tooLate, message: expect.stringMatching(/answer was shown/) });
+    stage2.send({ type: "host", action: "next" });
+    await benPad.next("prompt", (m) => m.index === 1);
+    let from = benPad.messages.length;
+    benPad.send(tapped);
+    expect(await benPad.next("answer-ack", () => true, from)).toMatchObject({ accepted: false, code: ERROR_CODES.tooLate, message: expect.stringMatching(/moved on/) });
+    from = benPad.messages.length;
+    benPad.send({ ...tapped, promptId: "p9" });
+    expect(await benPad.next("answer-ack", () => true, from)).toMatchObject({ accepted: false, code: ERROR_CODES.wrongPrompt, message: expect.stringMatching(/no prompt "p9"/) });
+
+    const stored = await db.select().from(answers).where(eq(answers.roomId, room.id));
+    expect(stored.map((a) => a.playerId).sort()).toEqual([ana!.you.playerId, cy!.you.playerId].sort());
+    killGroup(child, "SIGTERM");
+    await closeDb(db);
+  }, 90_000);
 });

@@ -5,7 +5,7 @@ import { createApiToken } from "~/auth/tokens.server";
 import { answers, classes, memberships, roomPlayers, rooms } from "~/db/schema";
 import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
 import { seedDemo } from "../../server/seed";
-import { Client, startTestServer, type TestServer } from "./harness";
+import { Client, readUntil, startTestServer, type TestServer } from "./harness";
 import { openTestRoom } from "../../server/scripted-rooms";
 
 let server: TestServer;
@@ -97,7 +97,8 @@ describe("the rounds table, paged on the server", () => {
   /** The titles in the rounds table (the round picker above it lists every round). */
   const titles = async (query: string) => {
     const html = await (await clients.rafe!.get(`/teach/classes/${classId}/review${query}`)).text();
-    const table = html.split("<table").find((t) => t.includes("Rounds of this class"))!.split("</table>")[0]!;
+    // The table whose own caption names it (its scrolling region's label sits just before it).
+    const table = html.split("<table").find((t) => t.split("</caption>")[0]!.includes("Rounds of this class"))!.split("</table>")[0]!;
     return { titles: [...table.matchAll(/review\?round=[^"]*"[^>]*>(Drill \d\d)</g)].map((m) => m[1]), html };
   };
 
@@ -163,21 +164,6 @@ describe("CSV export", () => {
 });
 
 describe("live review", () => {
-  /** Reads server-sent events until `until` matches what arrived so far. */
-  async function readUntil(body: ReadableStream<Uint8Array>, until: RegExp) {
-    const reader = body.getReader();
-    const decoder = new TextDecoder();
-    let text = "";
-    const deadline = Date.now() + 8_000;
-    while (!until.test(text) && Date.now() < deadline) {
-      const { value, done } = await reader.read();
-      if (done) break;
-      text += decoder.decode(value, { stream: true });
-    }
-    reader.releaseLock();
-    return text;
-  }
-
   it("sends the answer count, again after a new answer row, and 'ended' when the round ends", async () => {
     const { db } = server.services;
     const room = await openTestRoom(db);

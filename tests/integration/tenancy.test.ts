@@ -227,6 +227,8 @@ const MATRIX: Record<string, () => { path: string; expect: Statuses }> = {
   signout: () => ({ path: "/signout", expect: each(302) }),
   forgot: () => ({ path: "/forgot", expect: each(200) }),
   "reset/:token": () => ({ path: "/reset/not-a-live-token", expect: each(200) }),
+  // A card's link that opens nothing says so to everyone alike.
+  "card/:token": () => ({ path: "/card/not-a-live-card", expect: each(404) }),
   explore: () => ({ path: "/explore", expect: each(200) }),
   teach: () => ({ path: "/teach", expect: staffPage() }),
   "teach/classes/:classId": () => ({ path: `/teach/classes/${ids.class1}`, expect: classPage() }),
@@ -239,6 +241,8 @@ const MATRIX: Record<string, () => { path: string; expect: Statuses }> = {
   "teach/classes/:classId/export.csv": () => ({ path: `/teach/classes/${ids.class1}/export.csv`, expect: classPage() }),
   "teach/classes/:classId/assignments": () => ({ path: `/teach/classes/${ids.class1}/assignments`, expect: classPage() }),
   "teach/classes/:classId/assignments/new": () => ({ path: `/teach/classes/${ids.class1}/assignments/new`, expect: classPage() }),
+  "teach/classes/:classId/cards": () => ({ path: `/teach/classes/${ids.class1}/cards`, expect: classPage() }),
+  "teach/classes/:classId/cards/print": () => ({ path: `/teach/classes/${ids.class1}/cards/print`, expect: classPage() }),
   me: () => ({ path: "/me", expect: studentPage() }),
   "me/join-class": () => ({ path: "/me/join-class", expect: studentPage() }),
   // A student is told only of assignments addressed to them: any other is "no such assignment for you".
@@ -273,12 +277,15 @@ const MATRIX: Record<string, () => { path: string; expect: Statuses }> = {
   "api/v1/practice/rhythm": () => ({ path: "/api/v1/practice/rhythm", expect: studentPage(401) }),
   "api/v1/reading-sets": () => ({ path: "/api/v1/reading-sets", expect: staffPage(401) }),
   "api/v1/reading-sets/:id": () => ({ path: `/api/v1/reading-sets/${ids.set}`, expect: classPage(401) }),
+  "api/v1/tunes": () => ({ path: "/api/v1/tunes", expect: staffPage(401) }),
+  "api/v1/tunes/:id": () => ({ path: `/api/v1/tunes/${ids.tune}`, expect: { ...staffPage(401), adminB: 404, teacherB: 404 } }),
   "api/v1/classes": () => ({ path: "/api/v1/classes", expect: signedIn(401) }),
   "api/v1/classes/:classId/roster": () => ({ path: `/api/v1/classes/${ids.class1}/roster`, expect: classPage(401) }),
   "api/v1/classes/:classId/results": () => ({ path: `/api/v1/classes/${ids.class1}/results`, expect: classPage(401) }),
   "api/v1/classes/:classId/assignments": () => ({ path: `/api/v1/classes/${ids.class1}/assignments`, expect: classPage(401) }),
   "api/v1/me/assignments": () => ({ path: "/api/v1/me/assignments", expect: studentPage(401) }),
   "api/v1/rounds/:roomId/results": () => ({ path: `/api/v1/rounds/${ids.playedRoom}/results`, expect: classPage(401) }),
+  "api/v1/rounds/:roomId/stage": () => ({ path: `/api/v1/rounds/${ids.openRoom}/stage`, expect: classPage(401) }),
   "*": () => ({ path: "/no-such-page/anywhere", expect: each(404) }),
 };
 
@@ -337,6 +344,7 @@ async function snapshot() {
     schema.apiTokens,
     schema.practiceAnswers,
     schema.passwordResets,
+    schema.signInCards,
   ];
   return JSON.stringify(await Promise.all(tables.map((t) => db().select().from(t))));
 }
@@ -349,6 +357,8 @@ const CHANGES: { path: () => string; body: () => Record<string, string> | string
   { path: () => `/teach/classes/${ids.class1}`, body: () => ({ intent: "remove", userId: ids.sIn }), expect: refused() },
   { path: () => `/teach/classes/${ids.class1}`, body: () => ({ intent: "resend", userId: ids.sIn }), expect: refused() },
   { path: () => `/teach/classes/${ids.class1}/maps?position=5&tuning=standard`, body: () => ({ intent: "reset" }), expect: refused() },
+  { path: () => `/teach/classes/${ids.class1}/cards/print`, body: () => ({ student: ids.sIn }), expect: refused() },
+  { path: () => `/teach/classes/${ids.class1}/cards`, body: () => ({ intent: "end", id: "no-such-device" }), expect: refused() },
   { path: () => `/teach/classes/${ids.class1}/assignments`, body: () => ({ intent: "delete", id: ids.assignment }), expect: refused() },
   {
     path: () => `/teach/classes/${ids.class1}/assignments/new`,

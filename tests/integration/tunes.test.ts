@@ -1,8 +1,10 @@
 import { eq } from "drizzle-orm";
 import { strToU8, unzlibSync, zipSync } from "fflate";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { createApiToken } from "~/auth/tokens.server";
 import { tunes } from "~/db/schema";
 import { DEMO_PASSWORD, DEMO_SCHOOL } from "~/demo/school";
+import { defaultTempo } from "~/practice/rhythm";
 import { seedDemo } from "../../server/seed";
 import { Client, startTestServer, type TestServer } from "./harness";
 
@@ -91,6 +93,18 @@ describe("tune uploads", () => {
     expect((await wrong.text()).replace(/&quot;/g, '"')).toContain('This score has no part "P7". The tune was left as it was.');
   });
 
+  it("keeps the score's tempo marking, and the rhythm pass starts at it", async () => {
+    // MusicXML 4.0 <metronome>: half = 50 in 4/4 is 100 quarter notes a minute, the beat the pass counts in 4/4.
+    const marked = SCORE.replace(
+      "</attributes>",
+      "</attributes><direction><direction-type><metronome><beat-unit>half</beat-unit><per-minute>50</per-minute></metronome></direction-type></direction>",
+    );
+    expect((await upload(teacher, "marked.musicxml", marked, "Quay Steps (marked)")).status).toBe(302);
+    const tune = (await stored()).find((t) => t.title === "Quay Steps (marked)")!;
+    expect(tune.score?.tempo).toEqual({ quarterBpm: 100, marking: { beatUnit: "half", dots: 0, perMinute: 50 } });
+    expect(defaultTempo({ notes: tune.notes, beatsPerBar: tune.beatsPerBar, score: tune.score! })).toBe(100);
+  });
+
   it("asks for a new upload of a tune stored before scores were kept", async () => {
     const id = "old-upload";
     await server.services.db.insert(tunes).values({ id, orgId: DEMO_SCHOOL.id, title: "Old upload", keyFifths: 0, beatsPerBar: 4, notes: [{ pitch: "E4", beats: 1, bar: 1 }] });
@@ -176,9 +190,13 @@ describe("a Tune walk over an uploaded tune's bars", () => {
     expect(res.status).toBe(302);
     const roomId = res.headers.get("location")!.split("/").pop()!;
     const [room] = await server.services.db.select().from((await import("~/db/schema")).rooms).where(eq((await import("~/db/schema")).rooms.id, roomId));
-    const config = room!.config as { prompts: { written: string }[]; tuneName: string };
+    const config = room!.config as { prompts: { written: string }[]; tuneName: string; sheet: { from: number; notes: { pitch: string; bar: number; onset?: number }[]; measures: unknown[] } };
     expect(config.prompts.map((p) => p.written)).toEqual(["F#5", "E3"]);
     expect(config.tuneName).toBe("Walk test");
+    // What the stage engraves the melody so far from: the walked notes as written, the score's bars up to the last of them.
+    expect(config.sheet).toMatchObject({ from: 2, notes: [{ pitch: "F#5", bar: 2 }, { pitch: "E3", bar: 2 }] });
+    expect(config.sheet.notes.every((n) => typeof n.onset === "number")).toBe(true);
+    expect(config.sheet.measures).toHaveLength(2);
   });
 
   it("shows bars with no notes as a message on the form and opens nothing", async () => {
@@ -188,5 +206,60 @@ describe("a Tune walk over an uploaded tune's bars", () => {
     const res = await teacher.post("/host", { ...setup, tuneId, fromBar: "40", toBar: "41" });
     expect(res.status).toBe(200);
     expect(await res.text()).toMatch(/From bar[\s\S]{0,600}Bars 40–41 of “Empty bars test” have no notes\./);
+  });
+});
+
+describe("the tunes JSON API", () => {
+  it("lists the built-in tunes and the school's uploads, and gives one with its notes and bars, by cookie or token", async () => {
+    const saved = await upload(teacher, "quay-api.musicxml", SCORE, "Quay Steps (API)");
+    const tuneId = saved.headers.get("location")!.split("/").pop()!;
+    const [rafe] = DEMO_SCHOOL.teachers;
+    const { token } = await createApiToken(server.services.db, rafe.id, "tunes probe");
+    const bearer = new Client(server.url);
+    const get = (path: string) => bearer.request(path, { headers: { Authorization: `Bearer ${token}` } });
+
+    const list = (await (await get("/api/v1/tunes")).json()) as { tunes: { id: string; title: string; builtin: boolean; notes: number; bars: number }[] };
+    expect(list.tunes.find((t) => t.id === "lantern-walk")).toMatchObject({ title: "Lantern Walk", builtin: true, notes: 25, bars: 8 });
+    expect(list.tunes.find((t) => t.id === tuneId)).toMatchObject({ title: "Quay Steps (API)", builtin: false, notes: 5, bars: 2 });
+
+    const one = await get(`/api/v1/tunes/${tuneId}`);
+    expect(one.status).toBe(200);
+    expect(one.headers.get("cache-control")).toBe("private, no-store");
+    expect(await one.json()).toMatchObject({
+      id: tuneId,
+      keyFifths: 1,
+      part: "Guitar",
+      notes: [
+        { pitch: "G4", beats: 1, bar: 1, onset: 0, tied: false },
+        { pitch: "A4", beats: 1, bar: 1, onset: 1 },
+        { pitch: "B4", beats: 2, bar: 1, onset: 2 },
+        { pitch: "F#5", beats: 2, bar: 2, onset: 4 },
+        { pitch: "E3", beats: 1, bar: 2, onset: 6 },
+      ],
+      bars: [
+        { bar: 1, number: "1", beats: 4, beatType: 4, keyFifths: 1, pickup: false },
+        { bar: 2, number: "2", beats: 4, beatType: 4, keyFifths: 1, pickup: false },
+      ],
+    });
+    // A built-in tune has one meter and key throughout.
+    const builtin = (await (await teacher.get("/api/v1/tunes/harbour-bells")).json()) as { bars: unknown[]; notes: unknown[] };
+    expect(builtin.bars).toHaveLength(8);
+    expect(builtin.bars[7]).toEqual({ bar: 8, number: "8", beats: 3, beatType: 4, keyFifths: 1, pickup: false });
+    expect(builtin.notes[0]).toEqual({ pitch: "G4", beats: 1, bar: 1, onset: null, tied: false });
+  });
+
+  it("answers 404 for no such tune, 403 to a student and 401 to a stranger, in JSON", async () => {
+    const missing = await teacher.get("/api/v1/tunes/no-such-tune");
+    expect(missing.status).toBe(404);
+    expect(await missing.json()).toEqual({ error: "No such tune." });
+    const student = new Client(server.url);
+    await student.post("/signin", { email: DEMO_SCHOOL.studentWithSignIn.email, password: DEMO_PASSWORD });
+    expect((await student.get("/api/v1/tunes")).status).toBe(403);
+    expect((await student.get("/api/v1/tunes/lantern-walk")).status).toBe(403);
+    const stranger = await new Client(server.url).get("/api/v1/tunes");
+    expect(stranger.status).toBe(401);
+    expect(await stranger.json()).toEqual({ error: "Sign in first." });
+    const badToken = await new Client(server.url).request("/api/v1/tunes/lantern-walk", { headers: { Authorization: "Bearer fcl_not-a-token" } });
+    expect(badToken.status).toBe(401);
   });
 });

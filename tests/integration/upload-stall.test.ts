@@ -53,10 +53,11 @@ describe("uploads never stall a live room", () => {
       figures.push(`${name} (${(bytes.length / 1024).toFixed(0)} KB, ${ms.toFixed(0)} ms): ${summary(latencies)}`);
     }
     console.log(figures.join("\n"));
-    // The densest legal files take seconds to read here: had that happened on the event loop, the
-    // slowest probe would have waited as long. The shared test machine's own noise sets the bounds:
-    // the median stays near the baseline's, and no probe waits more than a fraction of a read.
-    expect(longestRead).toBeGreaterThan(1_000);
+    // The densest legal files take most of a second or more to read (less on a quiet machine): had that
+    // happened on the event loop, the slowest probe would have waited as long. The shared test machine's
+    // own noise sets the bounds: the median stays near the baseline's, and no probe waits more than a
+    // fraction of a read.
+    expect(longestRead).toBeGreaterThan(400);
     expect(during.healthz.length).toBeGreaterThan(20);
     for (const k of ["healthz", "ack"] as const) {
       // The reading thread competes for the same two cores, so some slowing is the machine's, not a stall.

@@ -5,10 +5,12 @@ import { email, NAME_MAX } from "~/auth/schemas";
 import { retryAfterHeaders, take, tooMany, type TooMany } from "~/auth/rate-limit.server";
 import { normaliseEmail } from "~/auth/users.server";
 import { DataTable, type Column } from "~/components/DataTable";
-import { Badge, Button, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
+import { useSchoolNaming } from "~/components/NoteNaming";
+import { Badge, Button, Card, Field, Notice, PageTitle, SelectField, WhyDisabled } from "~/components/ui";
 import { services } from "~/context";
 import { parseForm } from "~/lib/forms";
 import { nameField } from "~/lib/names";
+import { NOTE_NAMING_LABELS, NOTE_NAMINGS } from "~/music/naming";
 import { classesFor } from "~/school/classes.server";
 import { addressInUseMail, createInvitation, mailInvitations } from "~/school/invitations.server";
 import {
@@ -22,7 +24,11 @@ import {
   setTeacher,
   teacherInSchool,
 } from "~/school/people.server";
+import { setSchoolNaming } from "~/school/naming.server";
 import type { Route } from "./+types/school";
+import { plural } from "~/lib/plural";
+import { FirstSteps } from "~/components/FirstSteps";
+import { schoolFirstSteps } from "~/school/firstSteps.server";
 
 export const meta: Route.MetaFunction = () => [{ title: "School · Fretcall" }];
 
@@ -31,8 +37,10 @@ export const headers: Route.HeadersFunction = retryAfterHeaders;
 export async function loader({ request, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["admin"]);
   const { db } = services(context);
-  const [classList, overview] = await Promise.all([classesFor(db, user), schoolOverview(db, user.orgId)]);
+  const [classList, overview, steps] = await Promise.all([classesFor(db, user), schoolOverview(db, user.orgId), schoolFirstSteps(db, user.orgId)]);
   return {
+    adminId: user.id,
+    steps,
     classes: classList.map((c) => ({ ...c, joinCode: overview.joinCodes[c.id] ?? "" })),
     teaching: overview.teaching,
     teachers: overview.people.filter((p) => p.role !== "student"),
@@ -54,6 +62,7 @@ const actionSchema = z.discriminatedUnion("intent", [
   z.object({ intent: z.literal("createClass"), name: className, teacherId: z.string().max(40).default("") }),
   z.object({ intent: z.literal("renameClass"), classId: id, name: className }),
   z.object({ intent: z.enum(["assign", "unassign"]), classId: id, teacherId: z.string().min(1, "Choose a teacher.").max(40) }),
+  z.object({ intent: z.literal("setNaming"), naming: z.enum(NOTE_NAMINGS, "Choose one of the three namings.") }),
 ]);
 
 type ActionResult = { notice?: string; errors: Partial<Record<string, string>>; intent?: string };
@@ -75,6 +84,9 @@ export async function action({ request, context }: Route.ActionArgs): Promise<Ac
   }
 
   switch (input.intent) {
+    case "setNaming":
+      await setSchoolNaming(db, admin.orgId, input.naming);
+      return { notice: `Notes are now named ${NOTE_NAMING_LABELS[input.naming].replace(":", " —")}.`, errors: {}, intent };
     case "addTeacher": {
       const cls = await classInSchool(db, admin.orgId, input.classId);
       if (!cls) return { errors: { classId: "Choose one of the school's classes." }, intent };
@@ -129,12 +141,13 @@ type ClassRow = LoaderData["classes"][number];
 type Person = LoaderData["students"][number];
 
 export default function School({ loaderData, actionData }: Route.ComponentProps) {
-  const { classes, teachers, students, teaching } = loaderData;
+  const { classes, teachers, students, teaching, steps, adminId } = loaderData;
   const busy = useNavigation().state !== "idle";
   const [params] = useSearchParams();
   const errorsFor = (intent: string) => (actionData?.intent === intent ? actionData.errors : {});
   const teacherOptions = teachers.map((t) => ({ value: t.id, label: t.displayName }));
   const classOptions = classes.map((c) => ({ value: c.id, label: c.name }));
+  const naming = useSchoolNaming();
 
   const classColumns: Column<ClassRow>[] = [
     { key: "name", header: "Class", cell: (c) => <Link to={`/teach/classes/${c.id}`} className="underline">{c.name}</Link>, sortValue: (c) => c.name },
@@ -177,7 +190,8 @@ export default function School({ loaderData, actionData }: Route.ComponentProps)
 
   return (
     <div className="space-y-6">
-      <PageTitle lead={`${classes.length} classes · ${teachers.length} teachers and admins · ${students.length} students`}>Your school</PageTitle>
+      <PageTitle lead={`${plural(classes.length, "class", "classes")} · ${plural(teachers.length, "teacher or admin", "teachers and admins")} · ${plural(students.length, "student")}`}>Your school</PageTitle>
+      <FirstSteps steps={steps} />
       {params.get("deleted") ? <Notice tone="success">The student and all their data were deleted.</Notice> : null}
       {actionData?.notice ? <Notice tone="success">{actionData.notice}</Notice> : null}
       {actionData?.errors.form ? <Notice tone="error">{actionData.errors.form}</Notice> : null}
@@ -189,11 +203,11 @@ export default function School({ loaderData, actionData }: Route.ComponentProps)
 
       <div className="grid gap-6 lg:grid-cols-2">
         <Card>
-          <h2 className="font-display text-2xl font-semibold">Create a class</h2>
+          <h2 id="create-class" className="font-display text-2xl font-semibold">Create a class</h2>
           <Form method="post" className="mt-3 space-y-4" noValidate>
             <input type="hidden" name="intent" value="createClass" />
             <Field label="Class name" name="name" id="create-class-name" error={errorsFor("createClass").name} required />
-            <SelectField label="Teacher" name="teacherId" id="create-class-teacher" options={[{ value: "", label: "None yet" }, ...teacherOptions]} error={errorsFor("createClass").teacherId} />
+            <SelectField label="Teacher" name="teacherId" id="create-class-teacher" options={[{ value: "", label: "None yet" }, ...teacherOptions]} defaultValue={adminId} hint="You can teach it yourself." error={errorsFor("createClass").teacherId} />
             <Button type="submit" disabled={busy}>Create class</Button>
           </Form>
         </Card>
@@ -204,10 +218,29 @@ export default function School({ loaderData, actionData }: Route.ComponentProps)
             <Field label="Name" name="displayName" id="teacher-name" error={errorsFor("addTeacher").displayName} required />
             <Field label="E-mail" name="email" id="teacher-email" type="email" hint="They get an e-mailed link to set a password (valid 7 days)." error={errorsFor("addTeacher").email} required />
             <SelectField label="First class" name="classId" id="teacher-class" options={classOptions} error={errorsFor("addTeacher").classId} />
-            <Button type="submit" disabled={busy || classes.length === 0}>Add and invite</Button>
+            <Button type="submit" disabled={busy || classes.length === 0} aria-describedby={classes.length === 0 ? "why-no-teacher" : undefined}>Add and invite</Button>
+            {classes.length === 0 ? <WhyDisabled id="why-no-teacher">Create a class first: a new teacher joins with their first class.</WhyDisabled> : null}
           </Form>
         </Card>
       </div>
+
+      <Card>
+        <h2 className="font-display text-2xl font-semibold">Note names</h2>
+        <Form method="post" className="mt-3 flex flex-wrap items-end gap-4" noValidate>
+          <input type="hidden" name="intent" value="setNaming" />
+          <SelectField
+            label="How Fretcall names notes in words"
+            name="naming"
+            id="school-naming"
+            key={naming}
+            defaultValue={naming}
+            options={NOTE_NAMINGS.map((n) => ({ value: n, label: NOTE_NAMING_LABELS[n] }))}
+            hint="On reveals, feedback, reviews, the explorer and e-mails. Each student may pick another on their own device."
+            error={errorsFor("setNaming").naming}
+          />
+          <Button type="submit" disabled={busy}>Save</Button>
+        </Form>
+      </Card>
 
       <Card>
         <h2 className="mb-3 font-display text-2xl font-semibold">Teachers and admins</h2>

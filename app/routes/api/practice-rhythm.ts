@@ -1,5 +1,5 @@
-// POST /api/v1/practice/rhythm — a rhythm pass { id, tuneId, tempo, position?, taps: [ms from the first click] },
-//      scored on the server. GET /api/v1/practice/rhythm[?tune=<id>] — your own passes, newest first.
+// POST /api/v1/practice/rhythm — a rhythm pass { id, tuneId, tempo, position?, taps: [ms from the first click],
+//      input?: "tap" | "played", latencyMs? (played: the calibrated delay) }, scored on the server. GET /api/v1/practice/rhythm[?tune=<id>] — your own passes, newest first.
 import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
 import { noStore, readJsonBody } from "~/lib/json.server";

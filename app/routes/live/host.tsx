@@ -13,12 +13,13 @@ import type { SessionUser } from "~/auth/users.server";
 import type { Db } from "~/db/client.server";
 import { READING_PRESETS } from "~/reading/presets";
 import { hostableSet, setsFor } from "~/reading/sets.server";
-import { describeReadingSet, parseReadingSet } from "~/reading/spec";
+import { describeReadingSet, keyClash, NATURALS_KEY_CLASH, parseReadingSet } from "~/reading/spec";
 import { createRoom, roomSetup, type RoomSource } from "~/rooms/rooms.server";
 import { QUICK_DEFAULTS, quickSetupSchema, setupFromSet, type ParsedSetup } from "~/rooms/setup";
 import { classesFor } from "~/school/classes.server";
 import { tunesFor } from "~/tunes/tunes.server";
 import type { Route } from "./+types/host";
+import { Icon } from "~/components/Icon";
 
 export const meta: Route.MetaFunction = () => [{ title: "Host a round · Fretcall" }];
 
@@ -86,15 +87,20 @@ export async function action({ request, context }: Route.ActionArgs) {
   }
   const parsed = parseReadingSet(quickSetupSchema, form);
   if (!parsed.ok) return { errors: parsed.errors };
+  const clash = keyClash(parsed.set);
+  if (clash) return { errors: { keyFifths: clash } as Errors };
   return open(db, user, parsed);
 }
 
 const MODES = [
-  { id: "sprint", icon: "⚡", name: "Sprint", text: "Notes drawn from the position. Fastest right tap scores most." },
-  { id: "tune-walk", icon: "♫", name: "Tune walk", text: "The notes of a melody, in order, pitch only. The tune is named at the end." },
-  { id: "full-neck", icon: "▦", name: "Full neck", text: "Together, find every place a pitch lives on the neck before time runs out." },
-  { id: "teams", icon: "⚑", name: "Teams", text: "Balanced teams; a team scores the mean of its members." },
+  { id: "sprint", icon: "bolt", name: "Sprint", text: "Notes drawn from the position. Fastest right tap scores most." },
+  { id: "tune-walk", icon: "notes", name: "Tune walk", text: "The notes of a melody, in order, pitch only. The tune is named at the end." },
+  { id: "full-neck", icon: "grid", name: "Full neck", text: "Together, find every place a pitch lives on the neck before time runs out." },
+  { id: "teams", icon: "flag", name: "Teams", text: "Balanced teams; a team scores the mean of its members." },
 ] as const;
+
+/** The modes that draw their notes from the position (all but Tune walk, which reads a tune). */
+const DRAWN = "sprint full-neck teams";
 
 const select = "mt-1 block min-h-11 w-full rounded-xl border-2 border-ink/20 bg-white px-3 py-2 text-lg";
 
@@ -152,15 +158,16 @@ export default function Host({ loaderData, actionData }: Route.ComponentProps) {
               </p>
               <h3 className="font-display text-xl font-semibold">{set.name}</h3>
               <p className="mt-1 text-sm">{set.summary}</p>
-              <Button type="submit" name="set" value={set.id} tone="teal" disabled={busy} className="mt-3" aria-label={`Host ${set.name}`}>
-                <span aria-hidden="true">▶</span> Host this set
+              <Button type="submit" name="set" value={set.id} tone="teal" disabled={busy} className="mt-3" aria-label={`Host this set: ${set.name}`}>
+                <Icon name="play" className="h-4 w-4" /> Host this set
               </Button>
             </Card>
           ))}
         </Form>
       </section>
       <h2 className="font-display text-2xl font-semibold">Or a quick setup for a one-off</h2>
-      <Form method="post" className="space-y-6" noValidate>
+      {/* Each field names the modes it belongs to (data-modes); app.css hides the rest for the chosen mode. */}
+      <Form method="post" className="mode-fields space-y-6" noValidate>
         <input type="hidden" name="intent" value="quick" />
         <input type="hidden" name="classId" value={classId} />
         {errors.pool ? <Notice tone="error">{errors.pool}</Notice> : null}
@@ -172,7 +179,7 @@ export default function Host({ loaderData, actionData }: Route.ComponentProps) {
                 <input type="radio" name="mode" value={m.id} defaultChecked={m.id === (loaderData.tuneWalk ? "tune-walk" : d.mode)} className="mt-1 h-5 w-5 accent-teal" />
                 <span>
                   <span className="font-display text-lg font-semibold">
-                    <span aria-hidden="true">{m.icon}</span> {m.name}
+                    <Icon name={m.icon} className="h-5 w-5" /> {m.name}
                   </span>
                   <span className="block text-sm text-ink-soft">{m.text}</span>
                 </span>
@@ -201,7 +208,7 @@ export default function Host({ loaderData, actionData }: Route.ComponentProps) {
               ))}
             </select>
           </label>
-          <label className="block">
+          <label className="block" data-modes={DRAWN}>
             <span className="font-medium">Notes to read</span>
             <select name="accidentals" defaultValue={d.accidentals} className={select}>
               <option value="naturals">Naturals only (no key signature)</option>
@@ -209,9 +216,9 @@ export default function Host({ loaderData, actionData }: Route.ComponentProps) {
               <option value="chromatic">Every note, with accidentals</option>
             </select>
           </label>
-          <label className="block">
+          <label className="block" data-modes={DRAWN}>
             <span className="font-medium">Key signature</span>
-            <select name="keyFifths" defaultValue={d.keyFifths} className={select}>
+            <select name="keyFifths" defaultValue={d.keyFifths} className={select} aria-describedby="key-clash">
               {KEYS.filter((k) => k.mode === "major").map((k) => (
                 <option key={k.id} value={k.fifths}>
                   {k.name} · {k.fifths === 0 ? "no sharps or flats" : `${Math.abs(k.fifths)} ${k.fifths > 0 ? "♯" : "♭"}`}
@@ -219,18 +226,25 @@ export default function Host({ loaderData, actionData }: Route.ComponentProps) {
               ))}
             </select>
           </label>
-          <Field type="number" inputMode="numeric" name="prompts" label="Number of notes" defaultValue={d.prompts} error={errors.prompts} />
+          {/* The server's refusal once posted; before that, the same words as soon as the two fields disagree. */}
+          <p id="key-clash" data-modes={DRAWN} className={`${errors.keyFifths ? "flex" : "key-clash"} gap-2 rounded-xl border-2 border-brick bg-brick/10 p-3 sm:col-span-2`}>
+            <span aria-hidden="true">✗</span>
+            {errors.keyFifths ?? NATURALS_KEY_CLASH}
+          </p>
+          <div data-modes={DRAWN}>
+            <Field type="number" inputMode="numeric" name="prompts" label="Number of notes" defaultValue={d.prompts} error={errors.prompts} />
+          </div>
           <Field type="number" inputMode="numeric" name="seconds" label="Seconds per note" defaultValue={d.seconds} error={errors.seconds} />
-          <label className="flex items-center gap-3">
+          <label className="flex items-center gap-3" data-modes="sprint tune-walk teams">
             <input type="checkbox" name="homeOnly" defaultChecked={d.homeOnly} className="h-6 w-6 accent-teal" />
             <span>Only the home spot earns full points</span>
           </label>
-          <label className="flex items-center gap-3">
+          <label className="flex items-center gap-3" data-modes={DRAWN}>
             <input type="checkbox" name="ledgerLines" defaultChecked={d.ledgerLines} className="h-6 w-6 accent-teal" />
             <span>Include ledger-line notes</span>
           </label>
-          <label className="block">
-            <span className="font-medium">Tune (Tune walk)</span>
+          <label className="block" data-modes="tune-walk">
+            <span className="font-medium">Tune</span>
             <select name="tuneId" className={select} defaultValue={loaderData.tuneWalk?.tune ?? loaderData.tunes[0]?.id}>
               {loaderData.tunes.map((t) => (
                 <option key={t.id} value={t.id}>
@@ -240,11 +254,16 @@ export default function Host({ loaderData, actionData }: Route.ComponentProps) {
             </select>
             {errors.tuneId ? <span className="text-sm text-brick">✗ {errors.tuneId}</span> : null}
           </label>
-          <div className="grid grid-cols-2 gap-3">
+          <div className="grid grid-cols-2 gap-3" data-modes="tune-walk">
             <Field type="number" inputMode="numeric" name="fromBar" label="From bar" min={1} defaultValue={loaderData.tuneWalk?.from ?? ""} error={errors.fromBar} />
             <Field type="number" inputMode="numeric" name="toBar" label="To bar" min={1} defaultValue={loaderData.tuneWalk?.to ?? ""} error={errors.toBar} />
           </div>
-          <Field type="number" inputMode="numeric" name="teams" label="Teams (Teams mode)" defaultValue={d.teams} error={errors.teams} />
+          <p className="text-ink-soft sm:col-span-2" data-modes="tune-walk">
+            A Tune walk plays every note of these bars in order (the whole tune when they are left empty), in the tune's own key.
+          </p>
+          <div data-modes="teams">
+            <Field type="number" inputMode="numeric" name="teams" label="Number of teams" defaultValue={d.teams} error={errors.teams} />
+          </div>
         </Card>
         <Button type="submit" tone="teal" disabled={busy} className="w-full text-xl">
           {busy ? "Opening the room…" : "Open the room"}

@@ -4,9 +4,9 @@ import { requireUserWithRole } from "~/auth/guards.server";
 import { buttonClass, Card, PageTitle } from "~/components/ui";
 import { services } from "~/context";
 import { Icon } from "~/live/parts";
-import { displayPitch, parsePitch } from "~/music/pitch";
 import { roundResults } from "~/rooms/results.server";
-import { pct, secs } from "~/review/format";
+import { noteName, pct, secs } from "~/review/format";
+import { useNoteNaming } from "~/components/NoteNaming";
 import { roomSetup } from "~/rooms/rooms.server";
 import type { Route } from "./+types/results";
 
@@ -24,6 +24,7 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
 }
 
 export default function Results({ loaderData: r }: Route.ComponentProps) {
+  const naming = useNoteNaming();
   return (
     <div className="space-y-6">
       <PageTitle lead={`${new Date(r.room.createdAt).toLocaleString()}${r.tuneName ? ` · tune: ${r.tuneName}` : ""}${r.phase === "ended" ? "" : " · still running"}`}>
@@ -87,7 +88,7 @@ export default function Results({ loaderData: r }: Route.ComponentProps) {
             {r.prompts.map((p) => (
               <tr key={p.index} className="border-t border-ink/10 align-top">
                 <td className="py-2">{p.index + 1}</td>
-                <td className="font-semibold">{displayPitch(parsePitch(p.written))}</td>
+                <td className="font-semibold">{noteName(p.written, naming)}</td>
                 <td className="text-right">
                   {p.right}/{p.answered}
                 </td>
@@ -108,7 +109,7 @@ export default function Results({ loaderData: r }: Route.ComponentProps) {
             <input type="hidden" name="intent" value="again" />
             <input type="hidden" name="roomId" value={r.room.id} />
             <button type="submit" className={buttonClass("teal")}>
-              <span aria-hidden="true">↻</span> Host this again
+              <Icon name="again" className="h-5 w-5" /> Host this again
             </button>
           </Form>
         ) : null}

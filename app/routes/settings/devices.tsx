@@ -56,7 +56,7 @@ export default function Devices({ loaderData, actionData }: Route.ComponentProps
   return (
     <div className="mx-auto max-w-2xl space-y-6">
       <SettingsNav role={loaderData.role} />
-      <PageTitle lead="Every browser where you are signed in. Sign out of one you don't use or don't recognise; it has to sign in again with your password.">
+      <PageTitle lead="Every browser where you are signed in. Sign out of one you don't use or don't recognise; it has to sign in again with your password or sign-in card.">
         Signed-in devices
       </PageTitle>
       {actionData?.notice ? <Notice tone="success">{actionData.notice}</Notice> : null}

@@ -4,7 +4,7 @@ import { requireUser } from "~/auth/guards.server";
 import { newPassword } from "~/auth/schemas";
 import { currentSessionId, endSessionsOf } from "~/auth/session.server";
 import { listApiTokens, revokeApiToken } from "~/auth/tokens.server";
-import { changePassword } from "~/auth/users.server";
+import { changePassword, hasPassword } from "~/auth/users.server";
 import { SettingsNav } from "~/components/SettingsNav";
 import { Button, Card, Field, Notice, PageTitle, PostButton } from "~/components/ui";
 import { services } from "~/context";
@@ -15,9 +15,11 @@ export const meta: Route.MetaFunction = () => [{ title: "Change your password ·
 
 export async function loader({ request, context }: Route.LoaderArgs) {
   const user = await requireUser(request, context);
-  const tokens = await listApiTokens(services(context).db, user.id);
+  const { db } = services(context);
+  const tokens = await listApiTokens(db, user.id);
   return {
     role: user.role,
+    hasPassword: await hasPassword(db, user.id),
     tokens: tokens.filter((t) => t.revokedAt === null).map((t) => ({ id: t.id, name: t.name, createdAt: t.createdAt.toISOString() })),
   };
 }
@@ -57,17 +59,21 @@ export default function Password({ loaderData, actionData }: Route.ComponentProp
       <PageTitle lead="Changing your password signs you out on every other device; this one stays signed in.">Change your password</PageTitle>
       {actionData?.notice ? <Notice tone="success">{actionData.notice}</Notice> : null}
       {errors.form ? <Notice tone="error">{errors.form}</Notice> : null}
-      <Card>
-        {/* The form is keyed on success so the password fields empty themselves. */}
-        <Form method="post" className="space-y-4" noValidate key={actionData?.notice ?? "form"}>
-          <Field label="Current password" name="current" type="password" autoComplete="current-password" error={errors.current} required />
-          <Field label="New password" name="password" type="password" autoComplete="new-password" hint="At least 10 characters." error={errors.password} required />
-          <Field label="New password again" name="confirm" type="password" autoComplete="new-password" error={errors.confirm} required />
-          <Button type="submit" disabled={busy}>
-            Change password
-          </Button>
-        </Form>
-      </Card>
+      {loaderData.hasPassword ? (
+        <Card>
+          {/* The form is keyed on success so the password fields empty themselves. */}
+          <Form method="post" className="space-y-4" noValidate key={actionData?.notice ?? "form"}>
+            <Field label="Current password" name="current" type="password" autoComplete="current-password" error={errors.current} required />
+            <Field label="New password" name="password" type="password" autoComplete="new-password" hint="At least 10 characters." error={errors.password} required />
+            <Field label="New password again" name="confirm" type="password" autoComplete="new-password" error={errors.confirm} required />
+            <Button type="submit" disabled={busy}>
+              Change password
+            </Button>
+          </Form>
+        </Card>
+      ) : (
+        <Notice tone="info">You have no password: you sign in with a sign-in card. If the card is lost, your teacher can give you a new one.</Notice>
+      )}
       {loaderData.tokens.length > 0 ? (
         <Card>
           <h2 className="font-display text-2xl font-semibold">Your API tokens</h2>

@@ -10,6 +10,7 @@ import { PracticeSession } from "~/practice/PracticeSession";
 import { rhythmState } from "~/practice/rhythmPass.server";
 import { rememberTimeZone } from "~/practice/tz";
 import type { Route } from "./+types/practice";
+import { Icon } from "~/components/Icon";
 
 export const meta: Route.MetaFunction = () => [{ title: "Practice · Fretcall" }];
 
@@ -73,7 +74,8 @@ export default function Practice({ loaderData }: Route.ComponentProps) {
                   Practise its notes
                 </Link>
                 <Link to={`/me/rhythm/${encodeURIComponent(t.id)}`} className={buttonClass("ghost")}>
-                  {t.unlocked ? "Rhythm pass" : "🔒 Rhythm pass"}
+                  {t.unlocked ? null : <Icon name="lock" className="h-5 w-5" />}
+                  Rhythm pass
                 </Link>
               </span>
             </Card>

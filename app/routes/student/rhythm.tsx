@@ -3,6 +3,7 @@ import { useEffect } from "react";
 import { data, Link } from "react-router";
 import { requireTune } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
+import { TuneStaff } from "~/components/TuneStaff";
 import { buttonClass, Card, NeedsJavaScript, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
 import { noteName, STEADY_BOX, TOP_BOX } from "~/practice/adaptive";
@@ -12,6 +13,8 @@ import { rhythmPasses, rhythmState } from "~/practice/rhythmPass.server";
 import { rememberTimeZone } from "~/practice/tz";
 import type { Route } from "./+types/rhythm";
 import type { Tune } from "~/tunes/builtin";
+import { useNoteNaming } from "~/components/NoteNaming";
+import { Icon } from "~/components/Icon";
 
 /** The first full bar's time signature when the score gave one; the tempo counts its beat. */
 function meterWords(tune: Tune) {
@@ -33,6 +36,7 @@ export async function loader({ request, context, params }: Route.LoaderArgs) {
 }
 
 export default function Rhythm({ loaderData }: Route.ComponentProps) {
+  const naming = useNoteNaming();
   useEffect(rememberTimeZone, []);
   const { state, passes } = loaderData;
   const { tune } = state;
@@ -46,15 +50,16 @@ export default function Rhythm({ loaderData }: Route.ComponentProps) {
         </>
       ) : (
         <Card className="space-y-3">
+          <TuneStaff tune={tune} />
           <Notice tone="info">
-            <span aria-hidden="true">🔒 </span>
+            <Icon name="lock" className="mr-1 inline h-5 w-5 align-[-0.2em]" />
             {state.why}
           </Notice>
           <ul className="flex flex-wrap gap-2">
             {state.notes.map((n) => (
               <li key={n.writtenMidi} className={`rounded-full px-3 py-1 ${n.box >= STEADY_BOX ? "bg-teal text-white" : "bg-ink/10"}`}>
                 <span aria-hidden="true">{n.box >= STEADY_BOX ? "✓ " : "… "}</span>
-                {noteName(n.written)} · box {n.box} of {TOP_BOX}
+                {noteName(n.written, naming)} · box {n.box} of {TOP_BOX}
               </li>
             ))}
           </ul>
@@ -72,7 +77,7 @@ export default function Rhythm({ loaderData }: Route.ComponentProps) {
                 <time dateTime={new Date(p.at).toISOString()} suppressHydrationWarning>
                   {new Date(p.at).toLocaleDateString()}
                 </time>{" "}
-                · {p.tempo} bpm · <strong>{p.score} %</strong>
+                · {p.tempo} bpm · {p.input === "played" ? "played on the guitar" : "tapped"} · <strong>{p.score} %</strong>
               </li>
             ))}
           </ul>

@@ -1,7 +1,7 @@
 // Setting an assignment: what to practise, for whom, the goal and the due date. Bad input comes back
 // with a message beside its field and everything typed kept.
 import { useEffect, useRef, useState } from "react";
-import { Form, Link, redirect, useNavigation } from "react-router";
+import { Form, Link, redirect, useNavigation, useSearchParams } from "react-router";
 import { requireClassTeacher } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { Button, Card, Field, Notice, PageTitle, SelectField } from "~/components/ui";
@@ -62,7 +62,9 @@ export async function action({ request, params, context }: Route.ActionArgs) {
 
 export default function NewAssignment({ loaderData: { cls, materials, students, defaultDue }, actionData }: Route.ComponentProps) {
   const errors: Record<string, string | undefined> = actionData?.errors ?? {};
-  const v: Record<string, string | undefined> = actionData?.values ?? {};
+  // "Assign it for practice" on the class hub arrives with the material chosen.
+  const chosen = useSearchParams()[0].get("material") ?? undefined;
+  const v: Record<string, string | undefined> = actionData?.values ?? { material: chosen };
   const busy = useNavigation().state !== "idle";
   const chosenBefore = new Set((v.students ?? "").split(",").filter(Boolean));
   const [audience, setAudience] = useState(v.audience === "chosen" ? "chosen" : "class");
@@ -107,8 +109,9 @@ export default function NewAssignment({ loaderData: { cls, materials, students, 
                 </label>
               ))}
             </div>
-            {/* Left enabled so the form works before scripts load; for the whole class the ticks are ignored. */}
-            <div className={audience === "chosen" ? "mt-3" : "mt-3 opacity-60"}>
+            {/* Left enabled so the form works before scripts load; for the whole class the ticks are ignored.
+                Shaded rather than faded, so the names keep their contrast. */}
+            <div className={audience === "chosen" ? "mt-3" : "mt-3 rounded-xl bg-ink/5 p-2"}>
               <input type="hidden" name="students" value="" />
               <ul className="grid gap-1 sm:grid-cols-2">
                 {students.map((s) => (
@@ -153,6 +156,15 @@ export default function NewAssignment({ loaderData: { cls, materials, students, 
           <p className="text-sm text-ink-soft">
             Done when the student's latest answers — that many in a row — reach the percent correct, with the median time of their right-pitch answers under the time.
           </p>
+          <label className="flex min-h-11 items-start gap-2 text-lg">
+            <input type="checkbox" name="playedOnly" defaultChecked={v.playedOnly === "on"} className="mt-1 h-5 w-5" aria-describedby="played-only-hint" />
+            <span>
+              Ask for played answers
+              <span id="played-only-hint" className="block text-sm text-ink-soft">
+                Only notes the student plays on their guitar, heard by the phone's microphone, count toward the goal; taps on the screen do not.
+              </span>
+            </span>
+          </label>
           <Field label="Due" name="due" type="datetime-local" defaultValue={v.due ?? defaultDue} error={errors.due} required />
           <input ref={tz} type="hidden" name="tzOffset" defaultValue={v.tzOffset ?? ""} />
         </Card>

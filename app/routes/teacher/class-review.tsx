@@ -15,6 +15,12 @@ import { reviewInput } from "~/review/review.server";
 import { ROUND_SORT_KEYS, roundsPage, type RoundRow } from "~/review/rounds.server";
 import { classReview, MIN_RANKED, RETEACH_ACCURACY_BAR, RETEACH_MIN_SAMPLE, type PlayerFigures } from "~/review/stats";
 import type { Route } from "./+types/class-review";
+import { useNoteNaming } from "~/components/NoteNaming";
+import { Icon } from "~/components/Icon";
+import { plural } from "~/lib/plural";
+import { PRACTICE_REVIEW_DAYS } from "~/practice/answers";
+import { classPracticeMix } from "~/practice/inputs.server";
+import { PracticeMixTable } from "~/practice/PracticeReview";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Class review${data ? ` · ${data.cls.name}` : ""} · Fretcall` }];
 
@@ -35,7 +41,8 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const page = await roundsPage(db, cls.id, roundsQuery);
   const accuracy = new Map(review.rounds.map((r) => [r.id, r.accuracy]));
   const roundRows = page.rows.map((r) => ({ ...r, accuracy: r.answers > 0 ? (accuracy.get(r.id) ?? null) : null }));
-  return { cls, review, neck: neck && { tuning: neck.tuning, frets: neck.frets, position: neck.position }, live, roundRows, roundsPaging: { query: roundsQuery, total: page.total } };
+  const practice = await classPracticeMix(db, cls.id);
+  return { cls, review, neck: neck && { tuning: neck.tuning, frets: neck.frets, position: neck.position }, live, roundRows, roundsPaging: { query: roundsQuery, total: page.total }, practice };
 }
 
 type Row = PlayerFigures;
@@ -59,7 +66,8 @@ const roundColumns: Column<RoundLine>[] = [
   { key: "results", header: "Results", sortable: false, cell: (r) => <Link className="underline" to={`/results/${r.id}`}>Results<span className="sr-only"> of {r.title}</span></Link> },
 ];
 
-export default function ClassReview({ loaderData: { cls, review, neck, live, roundRows, roundsPaging } }: Route.ComponentProps) {
+export default function ClassReview({ loaderData: { cls, review, neck, live, roundRows, roundsPaging, practice } }: Route.ComponentProps) {
+  const naming = useNoteNaming();
   const submit = useSubmit();
   const one = review.roundId ? review.rounds.find((s) => s.id === review.roundId) : undefined;
   const columns: Column<Row>[] = [
@@ -77,7 +85,7 @@ export default function ClassReview({ loaderData: { cls, review, neck, live, rou
 
   return (
     <div className="space-y-6">
-      <PageTitle lead={one ? `${one.title} · ${day(one.startedAt)}` : `Across all ${review.rounds.length} rounds. Students who played signed in are followed from round to round.`}>
+      <PageTitle lead={one ? `${one.title} · ${day(one.startedAt)}` : `Across ${review.rounds.length === 1 ? "its one round" : `all ${plural(review.rounds.length, "round")}`}. Students who played signed in are followed from round to round.`}>
         Class review · {cls.name}
       </PageTitle>
       {live ? <LiveUpdates classId={cls.id} roomId={live} /> : null}
@@ -101,7 +109,7 @@ export default function ClassReview({ loaderData: { cls, review, neck, live, rou
           </noscript>
         </Form>
         <a href={exportHref} className={buttonClass("ghost")} download>
-          <span aria-hidden="true">⬇</span> Export CSV{one ? " (this round)" : " (all rounds)"}
+          <Icon name="download" className="h-5 w-5" /> Export CSV{one ? " (this round)" : " (all rounds)"}
         </a>
         {one ? (
           <Link to={`/results/${one.id}`} className="underline">
@@ -167,10 +175,10 @@ export default function ClassReview({ loaderData: { cls, review, neck, live, rou
                 <ol className="mt-3 space-y-2">
                   {review.reteach.map((n) => (
                     <li key={n.written} className="flex flex-wrap items-center gap-3 border-t border-ink/10 pt-2">
-                      <span className="font-display text-xl font-semibold">{noteName(n.written)}</span>
+                      <span className="font-display text-xl font-semibold">{noteName(n.written, naming)}</span>
                       <Badge tone={n.reason === "not read yet" ? "miss" : "info"}>{n.reason}</Badge>
                       <span>
-                        {pct(n.accuracy)} right · median {secs(n.medianMs)} · {n.answers} answers
+                        {pct(n.accuracy)} right · median {secs(n.medianMs)} · {plural(n.answers, "answer")}
                         {n.commonMistake ? ` · most often: ${MISTAKE_LABELS[n.commonMistake]}` : ""}
                       </span>
                     </li>
@@ -203,6 +211,11 @@ export default function ClassReview({ loaderData: { cls, review, neck, live, rou
           </section>
         </>
       )}
+
+      <section aria-labelledby="practice" className="space-y-3">
+        <h2 id="practice" className="font-display text-2xl font-semibold">Practice between lessons: tapped and played</h2>
+        <PracticeMixTable rows={practice} classId={cls.id} days={PRACTICE_REVIEW_DAYS} />
+      </section>
     </div>
   );
 }
@@ -240,7 +253,7 @@ function LiveUpdates({ classId, roomId }: { classId: string; roomId: string }) {
   }, [count, ended]);
   return (
     <Notice tone="info">
-      <span aria-hidden="true">● </span>A round is still running: these figures update as answers come in{count !== null ? ` (${count} so far)` : ""}.
+      <Icon name="dot" className="mr-1 inline h-4 w-4 align-[-0.15em]" />A round is still running: these figures update as answers come in{count !== null ? ` (${count} so far)` : ""}.
     </Notice>
   );
 }

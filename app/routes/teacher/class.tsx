@@ -1,9 +1,11 @@
+import { useEffect, useRef } from "react";
 import { Form, Link, useNavigation } from "react-router";
 import { z } from "zod";
 import { requireClassTeacher } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { DataTable, type Column } from "~/components/DataTable";
-import { Badge, Button, Card, Field, Notice, PageTitle } from "~/components/ui";
+import { Icon } from "~/components/Icon";
+import { Badge, Button, Card, Field, Notice, PageTitle, WhyDisabled } from "~/components/ui";
 import { services } from "~/context";
 import { parseForm } from "~/lib/forms";
 import { retryAfterHeaders, take, tooMany, type TooMany } from "~/auth/rate-limit.server";
@@ -20,6 +22,9 @@ import {
 } from "~/school/people.server";
 import { CSV_MAX_BYTES, parseRosterCsv, rosterRowSchema, type CheckedRow } from "~/school/roster";
 import type { Route } from "./+types/class";
+import { plural } from "~/lib/plural";
+import { ClassHubCard } from "~/review/ClassHubCard";
+import { classHub } from "~/review/hub.server";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.cls.name ?? "Class"} · Fretcall` }];
 
@@ -29,7 +34,8 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
   const cls = await requireClassTeacher(db, user, params.classId);
-  return { cls: { id: cls.id, name: cls.name, joinCode: cls.joinCode }, roster: await rosterOf(db, cls.id) };
+  const roster = await rosterOf(db, cls.id);
+  return { cls: { id: cls.id, name: cls.name, joinCode: cls.joinCode }, roster, hub: await classHub(db, cls, roster) };
 }
 
 type ActionResult = {
@@ -135,12 +141,13 @@ const STATUS: Record<SignInStatus, { tone: "right" | "info" | "neutral" | "miss"
   invited: { tone: "info", word: "Invited" },
   "invite-expired": { tone: "miss", word: "Invitation expired" },
   nickname: { tone: "neutral", word: "Nickname only" },
+  card: { tone: "right", word: "Sign-in card" },
 };
 
 const day = (iso: string) => new Date(iso).toLocaleDateString(undefined, { day: "numeric", month: "short", year: "numeric" });
 
 export default function ClassPage({ loaderData, actionData }: Route.ComponentProps) {
-  const { cls, roster } = loaderData;
+  const { cls, roster, hub } = loaderData;
   const busy = useNavigation().state !== "idle";
   const errors = actionData?.errors ?? {};
   const columns: Column<RosterEntry>[] = [
@@ -192,7 +199,7 @@ export default function ClassPage({ loaderData, actionData }: Route.ComponentPro
       <PageTitle
         lead={
           <>
-            {roster.length} {roster.length === 1 ? "student" : "students"} · class join code{" "}
+            {plural(roster.length, "student")} · class join code{" "}
             <strong className="font-mono text-2xl tracking-widest text-ink" aria-label={`join code ${cls.joinCode.split("").join(" ")}`}>
               {cls.joinCode}
             </strong>{" "}
@@ -203,12 +210,15 @@ export default function ClassPage({ loaderData, actionData }: Route.ComponentPro
         {cls.name}
       </PageTitle>
       <p className="flex flex-wrap gap-4">
-        <Link to={`/host?class=${cls.id}`} className="underline">▶ Host a round</Link>
+        <Link to={`/host?class=${cls.id}`} className="inline-flex items-center gap-1 underline"><Icon name="play" className="h-4 w-4" />Host a round</Link>
         <Link to={`/teach/classes/${cls.id}/review`} className="underline">Class review</Link>
+        <Link to={`/teach/classes/${cls.id}/cards`} className="underline">Sign-in cards</Link>
       </p>
 
       {actionData?.notice ? <Notice tone="success">{actionData.notice}</Notice> : null}
       {actionData?.error ? <Notice tone="error">{actionData.error}</Notice> : null}
+
+      <ClassHubCard classId={cls.id} hub={hub} />
 
       <Card>
         <h2 className="mb-3 font-display text-2xl font-semibold">Roster</h2>
@@ -266,16 +276,24 @@ export default function ClassPage({ loaderData, actionData }: Route.ComponentPro
 /** The checked rows, each with its problems; only rows without problems can be ticked for import. */
 function ImportPreview({ rows, busy }: { rows: CheckedRow[]; busy: boolean }) {
   const good = rows.filter((r) => r.errors.length === 0).length;
+  const heading = useRef<HTMLHeadingElement>(null);
+  // The preview appears below the roster, out of sight on a long page: bring it into view, and a screen reader to it.
+  useEffect(() => {
+    heading.current?.scrollIntoView({ block: "start" });
+    heading.current?.focus({ preventScroll: true });
+  }, [rows]);
   return (
     <Card>
-      <h2 className="font-display text-2xl font-semibold">Check the import</h2>
+      <h2 ref={heading} tabIndex={-1} className="scroll-mt-4 font-display text-2xl font-semibold outline-none">
+        Check the import
+      </h2>
       <p className="mt-1 text-ink-soft">
-        {`${good} of ${rows.length} rows can be imported.`} Rows with a problem are left out; fix them in the file and upload it
+        {`${good} of ${plural(rows.length, "row")} can be imported.`} Rows with a problem are left out; fix them in the file and upload it
         again.
       </p>
       <Form method="post" className="mt-3 space-y-4">
         <input type="hidden" name="intent" value="import" />
-        <div className="overflow-x-auto rounded-2xl border border-ink/10">
+        <div className="overflow-x-auto rounded-2xl border border-ink/10" tabIndex={0} role="region" aria-label="Rows of the uploaded file">
           <table className="w-full border-collapse text-left">
             <caption className="sr-only">Rows of the uploaded file</caption>
             <thead>
@@ -326,9 +344,11 @@ function ImportPreview({ rows, busy }: { rows: CheckedRow[]; busy: boolean }) {
             </tbody>
           </table>
         </div>
-        <Button type="submit" tone="teal" disabled={busy || good === 0}>
-          ✓ Import the ticked students
+        <Button type="submit" tone="teal" disabled={busy || good === 0} aria-describedby={good === 0 ? "why-no-import" : undefined}>
+          <Icon name="check" className="h-5 w-5" />
+          Import the ticked students
         </Button>
+        {good === 0 ? <WhyDisabled id="why-no-import">No row can be imported yet: fix the rows with a problem in the file and upload it again.</WhyDisabled> : null}
       </Form>
     </Card>
   );

@@ -5,15 +5,23 @@ import { services } from "~/context";
 import { roomsHostedBy } from "~/rooms/rooms.server";
 import { classesFor } from "~/school/classes.server";
 import type { Route } from "./+types/dashboard";
+import { Icon } from "~/components/Icon";
+import { FirstSteps } from "~/components/FirstSteps";
+import { CREATE_CLASS_LINK } from "~/school/firstSteps";
+import { schoolFirstSteps } from "~/school/firstSteps.server";
+import { plural } from "~/lib/plural";
 
 export const meta: Route.MetaFunction = () => [{ title: "Teach · Fretcall" }];
 
 export async function loader({ request, context }: Route.LoaderArgs) {
   const user = await requireUserWithRole(request, context, ["teacher"]);
   const { db } = services(context);
-  const [classList, rounds] = await Promise.all([classesFor(db, user), roomsHostedBy(db, user.id, 10)]);
+  const isAdmin = user.role === "admin";
+  const [classList, rounds, steps] = await Promise.all([classesFor(db, user), roomsHostedBy(db, user.id, 10), isAdmin ? schoolFirstSteps(db, user.orgId) : []]);
   return {
     name: user.displayName,
+    isAdmin,
+    steps,
     classes: classList,
     rounds: rounds.map((r) => ({ ...r, createdAt: r.createdAt.toISOString(), live: r.endedAt === null })),
   };
@@ -25,8 +33,21 @@ export default function TeacherDashboard({ loaderData }: Route.ComponentProps) {
       <PageTitle lead="Your classes. Host a live round, plan what each class reads next, and look back at how they did.">
         Hello, {loaderData.name}
       </PageTitle>
+      <FirstSteps steps={loaderData.steps} />
       {loaderData.classes.length === 0 ? (
-        <Card>No classes yet. Your school's admin can add you to a class.</Card>
+        <Card>
+          {loaderData.isAdmin ? (
+            <>
+              No classes yet.{" "}
+              <Link to={CREATE_CLASS_LINK} className="underline decoration-brass">
+                Create your first class
+              </Link>{" "}
+              on the School page; you can teach it yourself.
+            </>
+          ) : (
+            "No classes yet. Your school's admin can add you to a class."
+          )}
+        </Card>
       ) : (
         <ul className="grid gap-4 sm:grid-cols-2 lg:grid-cols-3">
           {loaderData.classes.map((c) => (
@@ -38,12 +59,13 @@ export default function TeacherDashboard({ loaderData }: Route.ComponentProps) {
                   </Link>
                 </h2>
                 <p className="mt-1 text-ink-soft">
-                  {c.students} {c.students === 1 ? "student" : "students"}
+                  {plural(c.students, "student")}
                   {c.teachers ? ` · taught by ${c.teachers}` : ""}
                 </p>
                 <div className="mt-3 flex flex-wrap items-center gap-3">
                   <Link to={`/host?class=${c.id}`} className={buttonClass("teal")}>
-                    ▶ Host a round
+                    <Icon name="play" className="h-4 w-4" />
+                    Host a round
                   </Link>
                   <Link to={`/teach/classes/${c.id}/maps`} className="underline decoration-brass">
                     Home-spot maps
@@ -68,7 +90,8 @@ export default function TeacherDashboard({ loaderData }: Route.ComponentProps) {
               </span>
               {r.live ? (
                 <Link to={`/stage/${r.id}`} className="underline">
-                  ● Live — open the stage
+                  <Icon name="dot" className="h-4 w-4" />
+                  Live — open the stage
                 </Link>
               ) : (
                 <Link to={`/results/${r.id}`} className="underline">

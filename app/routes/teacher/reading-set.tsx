@@ -148,7 +148,7 @@ export default function ReadingSetPage({ loaderData, actionData }: Route.Compone
       <PageTitle lead="Choose what the class reads. The preview shows every note the round can draw, at its home spot.">
         {loaderData.id ? `Edit “${loaderData.name}”` : "New reading set"}
       </PageTitle>
-      <div className="grid gap-6 lg:grid-cols-2">
+      <div className="grid grid-cols-1 gap-6 lg:grid-cols-2">
         <Form method="post" noValidate className="space-y-4">
           {Object.keys(server).length > 0 ? <Notice tone="error">Nothing was saved: see the fields marked below.</Notice> : null}
           <Card className="grid gap-4 sm:grid-cols-2">

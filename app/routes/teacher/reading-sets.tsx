@@ -12,6 +12,7 @@ import { createSet, deleteSet, hostableSet, setFor, setsFor, type SavedSet } fro
 import { describeReadingSet } from "~/reading/spec";
 import { classesFor } from "~/school/classes.server";
 import type { Route } from "./+types/reading-sets";
+import { Icon } from "~/components/Icon";
 
 export const meta: Route.MetaFunction = () => [{ title: "Reading sets · Fretcall" }];
 
@@ -73,14 +74,14 @@ export default function ReadingSets({ loaderData, actionData }: Route.ComponentP
         <div className="flex flex-wrap gap-2">
           {s.spec ? (
             <Link to={`/host?set=${s.id}${s.classId ? `&class=${s.classId}` : ""}`} className={buttonClass("teal", "text-base")}>
-              <span aria-hidden="true">▶</span> Host
+              <Icon name="play" className="h-4 w-4" /> Host
             </Link>
           ) : null}
           <Form method="post" hidden={!s.canEdit} onSubmit={(e) => !confirm(`Delete “${s.name}”? Rounds already played keep their results.`) && e.preventDefault()}>
             <input type="hidden" name="intent" value="delete" />
             <input type="hidden" name="id" value={s.id} />
             <Button type="submit" tone="ghost" className="text-base" aria-label={`Delete ${s.name}`}>
-              <span aria-hidden="true">✗</span> Delete
+              <Icon name="cross" className="h-4 w-4" /> Delete
             </Button>
           </Form>
         </div>
@@ -98,7 +99,7 @@ export default function ReadingSets({ loaderData, actionData }: Route.ComponentP
             Your school's sets
           </h2>
           <Link to="/teach/sets/new" className={buttonClass("teal")}>
-            <span aria-hidden="true">＋</span> New reading set
+            <Icon name="plus" className="h-5 w-5" /> New reading set
           </Link>
         </div>
         <DataTable rows={sets} columns={columns} rowKey={(s) => s.id} caption="Saved reading sets" filterPlaceholder="Filter sets" empty="No saved sets yet: copy a ready-made one below or build your own." />
@@ -118,7 +119,7 @@ export default function ReadingSets({ loaderData, actionData }: Route.ComponentP
                 <p className="mt-1 text-sm text-ink-soft">{p.summary}</p>
                 <div className="mt-3 flex flex-wrap items-end gap-2">
                   <Link to={`/host?set=${p.id}`} className={buttonClass("teal", "text-base")}>
-                    <span aria-hidden="true">▶</span> Host
+                    <Icon name="play" className="h-4 w-4" /> Host
                   </Link>
                   <Form method="post" className="flex flex-wrap items-end gap-2">
                     <input type="hidden" name="intent" value="copy" />
@@ -134,7 +135,7 @@ export default function ReadingSets({ loaderData, actionData }: Route.ComponentP
                         <option value="">Whole school</option>
                       </select>
                     </label>
-                    <Button type="submit" tone="ghost" className="text-base" aria-label={`Copy ${p.name} into the class`}>
+                    <Button type="submit" tone="ghost" className="text-base" aria-label={`Copy into class: ${p.name}`}>
                       Copy into class
                     </Button>
                   </Form>

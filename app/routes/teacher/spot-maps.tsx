@@ -8,7 +8,7 @@ import { requireUserWithRole } from "~/auth/guards.server";
 import { Fretboard, type Highlight } from "~/components/Fretboard";
 import { parseSpotMapQuery } from "~/components/neckQuery";
 import { chartFrets, SpotChart } from "~/components/SpotChart";
-import { Badge, Button, Card, NeedsJavaScript, Notice, PageTitle, SelectField } from "~/components/ui";
+import { Badge, Button, Card, NeedsJavaScript, Notice, PageTitle, SelectField, WhyDisabled } from "~/components/ui";
 import { services } from "~/context";
 import { parseForm } from "~/lib/forms";
 import type { Spot } from "~/music/fretboard";
@@ -191,9 +191,10 @@ export default function SpotMaps({ loaderData, actionData }: Route.ComponentProp
           </Form>
           <Form method="post">
             <input type="hidden" name="intent" value="reset" />
-            <Button type="submit" tone="ghost" disabled={busy || !saved}>
+            <Button type="submit" tone="ghost" disabled={busy || !saved} aria-describedby={saved ? undefined : "why-no-reset"}>
               Reset to the default map
             </Button>
+            {saved ? null : <WhyDisabled id="why-no-reset">The class already reads the default map.</WhyDisabled>}
           </Form>
           <Button type="button" tone="ghost" onClick={() => window.print()}>
             Print chart for students

@@ -2,17 +2,19 @@ import { data, Form, Link, redirect } from "react-router";
 import { z } from "zod";
 import { requireTune, tuneAccess } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
-import { Staff } from "~/components/Staff";
+import { TuneStaff } from "~/components/TuneStaff";
 import { Button, buttonClass, Card, Notice, PageTitle, SelectField } from "~/components/ui";
 import { services } from "~/context";
 import { parseForm } from "~/lib/forms";
 import { defaultSpotMap, homeSpotFor } from "~/music/positions";
-import { displayPitch, parsePitch, pitchMidi } from "~/music/pitch";
+import { parsePitch, pitchMidi } from "~/music/pitch";
 import { resolveTuning } from "~/music/tuning";
-import { drawnBar } from "~/tunes/bars";
 import type { StoredScore } from "~/tunes/builtin";
 import { barRange, choosePart, deleteTune, findTune } from "~/tunes/tunes.server";
 import type { Route } from "./+types/tune";
+import { noteName } from "~/review/format";
+import { schoolNaming } from "~/school/naming.server";
+import { Icon } from "~/components/Icon";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.tune.title ?? "Tune"} · Fretcall` }];
 
@@ -24,15 +26,16 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
   const tune = await findTune(db, user.orgId, params.tuneId);
   if (!tune) throw data({ error: "No such tune." }, { status: 404 });
   const q = new URL(request.url).searchParams;
-  const lastBar = tune.notes.at(-1)?.bar ?? 1;
+  // A score's last bars may hold only rests or the end of a tied note; they are drawn too.
+  const lastBar = tune.score?.measures.length ?? tune.notes.at(-1)?.bar ?? 1;
   const position = Math.min(12, Math.max(1, whole(q.get("position"), 5)));
   const from = Math.min(lastBar, Math.max(1, whole(q.get("from"), 1)));
   const to = Math.min(lastBar, Math.max(from, whole(q.get("to"), lastBar)));
   const map = defaultSpotMap(position, resolveTuning("standard"));
+  const naming = await schoolNaming(db, user.orgId);
   const notes = barRange(tune, from, to);
   // A Tune walk in this position can only ask for notes the position reaches.
-  const outside = notes.filter((n) => !homeSpotFor(map, pitchMidi(parsePitch(n.pitch)))).map((n) => `${displayPitch(parsePitch(n.pitch))} (bar ${n.bar})`);
-  const bars = Array.from({ length: to - from + 1 }, (_, i) => drawnBar(tune, from + i));
+  const outside = notes.filter((n) => !homeSpotFor(map, pitchMidi(parsePitch(n.pitch)))).map((n) => `${noteName(n.pitch, naming)} (bar ${n.bar})`);
   const canDelete = (await tuneAccess(db, user, tune.id, "edit")) === "ok";
   return {
     tune: { id: tune.id, title: tune.title, builtin: tune.builtin, keyFifths: tune.keyFifths, lastBar },
@@ -41,7 +44,7 @@ export async function loader({ request, params, context }: Route.LoaderArgs) {
     position,
     from,
     to,
-    bars,
+    sheet: { notes: tune.notes, keyFifths: tune.keyFifths, beatsPerBar: tune.beatsPerBar, ...(tune.score ? { score: tune.score } : {}) },
     outside,
   };
 }
@@ -131,17 +134,16 @@ export default function TunePage({ loaderData: d, actionData }: Route.ComponentP
       ) : (
         <Notice tone="success">Every note of bars {d.from}–{d.to} has a home spot in position {d.position}.</Notice>
       )}
-      <div className="grid gap-3 sm:grid-cols-2 lg:grid-cols-4">
-        {d.bars.map((b) => (
-          <Card key={b.bar} className="p-2">
-            <p className="px-2 text-sm text-ink-soft">Bar {b.bar}</p>
-            {b.notes.length > 0 ? <Staff notes={b.notes} keyFifths={b.keyFifths} size="card" /> : <p className="p-4 text-ink-soft">rests only</p>}
-          </Card>
-        ))}
-      </div>
+      <Card className="p-2 sm:p-4">
+        <h2 className="px-2 text-sm text-ink-soft">
+          Bars {d.from}–{d.to}
+        </h2>
+        <TuneStaff tune={d.sheet} from={d.from} to={d.to} />
+      </Card>
       <div className="flex flex-wrap gap-3">
         <Link to={`/host?mode=tune-walk&tune=${d.tune.id}&position=${d.position}&from=${d.from}&to=${d.to}`} className={buttonClass("teal")}>
-          ♫ Host a Tune walk of these bars
+          <Icon name="notes" className="h-5 w-5" />
+          Host a Tune walk of these bars
         </Link>
         {d.canDelete ? (
           <Form method="post" onSubmit={(e) => !confirm("Delete this tune?") && e.preventDefault()}>

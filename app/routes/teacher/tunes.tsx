@@ -5,6 +5,7 @@ import { services } from "~/context";
 import { FILE_TOO_BIG, MAX_FILE_BYTES } from "~/music/musicxml";
 import { saveUploadedTune, tunesFor } from "~/tunes/tunes.server";
 import type { Route } from "./+types/tunes";
+import { plural } from "~/lib/plural";
 
 export const meta: Route.MetaFunction = () => [{ title: "Tunes · Fretcall" }];
 
@@ -55,7 +56,7 @@ export default function Tunes({ loaderData, actionData }: Route.ComponentProps) 
                 {t.title}
               </Link>
               <span className="text-ink-soft">
-                {t.notes} notes · {t.bars} bars · {t.builtin ? "built in" : "uploaded"}
+                {`${plural(t.notes, "note")} · ${plural(t.bars, "bar")} · ${t.builtin ? "built in" : "uploaded"}`}
               </span>
             </li>
           ))}

@@ -1,0 +1,1 @@
+ALTER TABLE `organisations` ADD `note_naming` text DEFAULT 'letters' NOT NULL;
