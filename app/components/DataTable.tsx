@@ -34,6 +34,8 @@ export interface ServerPaging {
 const alignClass = { left: "text-left", right: "text-right", center: "text-center" } as const;
 const inputClass = "block min-h-11 w-full rounded-xl border-2 border-ink/20 bg-white px-3 py-2 text-lg focus:border-sky";
 const pagerClass = "inline-flex min-h-11 items-center rounded-xl border-2 border-ink/20 px-3";
+// An unavailable step is told by its faint dashed border; its words keep full text contrast, so they stay readable.
+const pagerOffClass = "border-dashed border-ink/15 text-ink-soft";
 
 export function DataTable<T>({
   rows,
@@ -206,7 +208,7 @@ export function DataTable<T>({
 function Pager({ view, search, onPage }: { view: PageWindow; search: string | null; onPage: (page: number) => void }) {
   const step = (page: number, enabled: boolean, children: ReactNode) =>
     search === null ? (
-      <button type="button" onClick={() => onPage(page)} disabled={!enabled} className={`${pagerClass} disabled:opacity-40`}>
+      <button type="button" onClick={() => onPage(page)} disabled={!enabled} className={`${pagerClass} ${enabled ? "" : pagerOffClass}`}>
         {children}
       </button>
     ) : enabled ? (
@@ -214,7 +216,7 @@ function Pager({ view, search, onPage }: { view: PageWindow; search: string | nu
         {children}
       </Link>
     ) : (
-      <span aria-disabled="true" className={`${pagerClass} opacity-40`}>
+      <span aria-disabled="true" className={`${pagerClass} ${pagerOffClass}`}>
         {children}
       </span>
     );

@@ -13,6 +13,8 @@ type Violation = { id: string; help: string; nodes: { target: string[]; failureS
  * ("where: rule — target — why"), empty when the page passes.
  */
 export async function audit(page: Page, where: string): Promise<string[]> {
+  // Judge the page people use, after its scripts have run: hydration may still change it while axe reads it.
+  await page.locator("html[data-hydrated]").waitFor({ state: "attached" });
   // Text mid-fade has less contrast than it will have: judge the page once its finite animations are over.
   await page.waitForFunction(() => document.getAnimations().every((a) => a.playState !== "running" || a.effect?.getTiming().iterations === Infinity));
   if (!(await page.evaluate(() => "axe" in window))) await page.addScriptTag({ content: AXE_SOURCE });
