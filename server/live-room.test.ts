@@ -1,9 +1,10 @@
 import type { Socket } from "node:net";
-import { afterEach, describe, expect, it } from "vitest";
+import { afterEach, describe, expect, it, vi } from "vitest";
 import WebSocket, { WebSocketServer } from "ws";
 import { networkFigures, ROUND_TRIP_WINDOW_MS } from "~/game/clock";
 import type { ServerMessage } from "~/game/protocol";
 import { addSeatRoundTrip, newSeatClock, seatFigures, send, sendLatest, sendNow, type Conn } from "./live-room";
+import { RoundTripTimer } from "./round-trips";
 
 const closing: (() => void)[] = [];
 afterEach(() => {
@@ -18,6 +19,7 @@ async function pair() {
   const client = new WebSocket(`ws://127.0.0.1:${(wss.address() as { port: number }).port}`);
   const got: string[] = [];
   client.on("message", (data) => got.push(String(data)));
+  client.on("ping", () => got.push("(ping)"));
   await new Promise((r) => client.once("open", r));
   closing.push(() => {
     client.terminate();
@@ -25,7 +27,22 @@ async function pair() {
   });
   const ws = await server;
   const socket = (ws as unknown as { _socket: Socket })._socket;
-  return { conn: { ws } as Conn, socket, got };
+  // A seat pinged every ten minutes (never by its own turn in a test), first as it is taken.
+  const roundTrips = new RoundTripTimer(ws, () => true, () => {}, () => 1, 600_000);
+  roundTrips.ping();
+  await until(() => got.length === 1);
+  got.length = 0;
+  // The system calls that write to the socket: one per write, however many frames it carries.
+  const writes = { count: 0 };
+  for (const method of ["_write", "_writev"] as const) {
+    const writer = socket as unknown as Record<string, (...args: unknown[]) => void>;
+    const original = writer[method]!.bind(socket);
+    writer[method] = (...args: unknown[]) => {
+      writes.count++;
+      original(...args);
+    };
+  }
+  return { conn: { ws, roundTrips } as Conn, socket, got, writes };
 }
 
 const turn = () => new Promise((r) => setImmediate(r));
@@ -46,13 +63,45 @@ describe("send", () => {
     expect(got).toEqual(["a", "b", "c"]);
   });
 
-  it("writes a time-stamped frame at once, after what was held back", async () => {
-    const { conn, socket, got } = await pair();
+  it("writes a time-stamped frame at once, after what was held back, in one write", async () => {
+    const { conn, socket, got, writes } = await pair();
     send(conn, "a");
     sendNow(conn, "pong");
     expect(socket.writableCorked).toBe(0);
     await until(() => got.length === 2);
     expect(got).toEqual(["a", "pong"]);
+    expect(writes.count).toBe(1);
+  });
+
+  it("lets a due round-trip ping ride in the same write as the frames, and no ping that is not due", async () => {
+    // A ten-minute interval, so its slice's own turn never comes during the test; the clock it reads is moved by hand.
+    const { conn, got, writes } = await pair();
+    vi.useFakeTimers({ toFake: ["performance"] });
+    try {
+      // Just pinged as the seat was taken: not due yet, so the frame goes alone.
+      send(conn, "a");
+      await turn();
+      await until(() => got.length === 1);
+      expect(got).toEqual(["a"]);
+      expect(writes.count).toBe(1);
+      // Over three quarters of the interval later one is due: it goes in the frame's write, after it.
+      vi.advanceTimersByTime(460_000);
+      writes.count = 0;
+      send(conn, "b");
+      await turn();
+      await until(() => got.length === 3);
+      expect(got.slice(1)).toEqual(["b", "(ping)"]);
+      expect(writes.count).toBe(1);
+      // And once more with a time-stamped frame.
+      vi.advanceTimersByTime(460_000);
+      writes.count = 0;
+      sendNow(conn, "pong");
+      await until(() => got.length === 5);
+      expect(got.slice(3)).toEqual(["pong", "(ping)"]);
+      expect(writes.count).toBe(1);
+    } finally {
+      vi.useRealTimers();
+    }
   });
 });
 

@@ -243,6 +243,7 @@ const corked = new Set<Conn>();
 function uncorkAll() {
   for (const conn of corked) {
     writeHeld(conn);
+    conn.roundTrips.pingIfDue();
     socketOf(conn.ws).uncork();
   }
   corked.clear();
@@ -289,9 +290,11 @@ export function sendLatest(conn: Conn, message: ServerMessage) {
 export function sendNow(conn: Conn, text: string) {
   const ws = conn.ws;
   if (ws.readyState !== ws.OPEN) return;
-  if (corked.delete(conn)) {
-    writeHeld(conn);
-    socketOf(ws).uncork();
-  }
+  const socket = socketOf(ws);
+  // Still corked from this turn: what it held goes first, and all leaves in the one write below.
+  if (!corked.delete(conn)) socket.cork();
+  writeHeld(conn);
   ws.send(text, { binary: false });
+  conn.roundTrips.pingIfDue();
+  socket.uncork();
 }

@@ -8,10 +8,11 @@
  * A whole school's pads are pinged, so this is on the hub's hottest path (profiled under
  * bench/live.ts): one timer for all sockets of an interval, random payloads drawn from a pool, the
  * pings awaiting their pong in two short arrays, and a seat pinged less often once its window is
- * full or its link steady (app/game/clock.ts, pingFactor).
+ * full or its link steady (app/game/clock.ts, pingFactor). A ping rides along in the same write as
+ * a frame the socket is sent anyway when one is nearly due (pingIfDue): each write on its own is a
+ * system call, and those were most of the cost.
  */
 import { randomFillSync } from "node:crypto";
-import { performance } from "node:perf_hooks";
 import type { WebSocket } from "ws";
 import type { RoundTrip } from "~/game/clock";
 
@@ -33,6 +34,11 @@ const SLICES = 20;
  * every round trip, so one jump (or a window no longer full) brings the full rate back at once.
  */
 const FULL_RATE_CHECK_EVERY = 5;
+/**
+ * A ping goes out once this share of its interval has passed since the last one, whether its slice's
+ * turn or another frame's write comes first; so pings stay between 0.75 and 1.75 intervals apart.
+ */
+const DUE_SHARE = 0.75;
 
 const pool = Buffer.alloc(PAYLOAD_BYTES * POOL_PINGS);
 let poolUsed = POOL_PINGS;
@@ -56,14 +62,14 @@ class Schedule {
   private turn = 0;
   private size = 0;
 
-  constructor(private readonly everyMs: number) {}
+  constructor(readonly everyMs: number) {}
 
   add(t: RoundTripTimer) {
     // At a random slice, so sockets that connect together are not pinged together.
     this.slices[Math.floor(Math.random() * SLICES)]!.add(t);
     if (this.size++ === 0) {
       this.timer = setInterval(() => {
-        for (const each of this.slices[this.turn++ % SLICES]!) each.ping();
+        for (const each of this.slices[this.turn++ % SLICES]!) each.pingIfDue();
       }, this.everyMs / SLICES);
       this.timer.unref();
     }
@@ -88,6 +94,8 @@ export class RoundTripTimer {
   private schedule: Schedule;
   /** Round trips timed on this socket. */
   private timed = 0;
+  /** performance.now() of the last ping. */
+  private lastPingAt = -Infinity;
 
   constructor(
     private readonly ws: WebSocket,
@@ -120,12 +128,20 @@ export class RoundTripTimer {
     schedule.add(this);
   }
 
+  /**
+   * Pings if one is due: at its slice's turn, and just before any other write to the socket goes
+   * out, so the ping shares that write's system call (and is timed from when it is written).
+   */
+  pingIfDue() {
+    if (performance.now() - this.lastPingAt >= DUE_SHARE * this.schedule.everyMs) this.ping();
+  }
+
   /** Pings now (also called as a seat is taken, so its first answer has a figure soon). */
   ping() {
     if (!this.seated() || this.ws.readyState !== this.ws.OPEN) return;
     const { bytes, key } = payload();
     this.keys.push(key);
-    this.sentAt.push(performance.now());
+    this.sentAt.push((this.lastPingAt = performance.now()));
     if (this.keys.length > OUTSTANDING) {
       this.keys.shift();
       this.sentAt.shift();
