@@ -19,6 +19,7 @@ import { startClickTrack, type ClickRun } from "./click";
 import { HEADPHONES, LatencyCheck, readCalibration } from "./LatencyCheck";
 import { CLOSE_MS, DEFAULT_TEMPO, defaultTempo, GRADE_WORDS, ON_TIME_MS, scoreTaps, timeline, type Grade, type RhythmScore } from "./rhythm";
 import { usePlayAlong } from "./usePlayAlong";
+import { day } from "~/review/format";
 
 const TEMPOS = [60, DEFAULT_TEMPO, 90, 108, 120];
 const GRADE_LOOK: Record<Grade, { icon: string; box: string }> = {
@@ -202,7 +203,7 @@ export function RhythmPass({ tune, position }: { tune: Tune; position: number })
               <p>{HEADPHONES}</p>
               <p>
                 Microphone delay: <strong>{calibration.offsetMs} ms</strong>, measured on this device on{" "}
-                <time dateTime={new Date(calibration.at).toISOString()}>{new Date(calibration.at).toLocaleDateString()}</time>.
+                <time dateTime={new Date(calibration.at).toISOString()}>{day(calibration.at)}</time>.
                 {isStale(calibration, Date.now()) ? " That was a while ago: a new phone or headset changes it." : ""}{" "}
                 <button type="button" className="underline" onClick={() => setChecking(true)}>
                   Check it again

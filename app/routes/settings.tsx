@@ -7,6 +7,7 @@ import { Button, Card, Field, Notice, PageTitle, PostButton } from "~/components
 import { services } from "~/context";
 import { parseForm } from "~/lib/forms";
 import type { Route } from "./+types/settings";
+import { day } from "~/review/format";
 
 export const meta: Route.MetaFunction = () => [{ title: "API tokens · Fretcall" }];
 
@@ -67,8 +68,8 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
           {loaderData.tokens.map((t) => (
             <li key={t.id} className="flex flex-wrap items-center justify-between gap-2 py-2">
               <span>
-                <strong>{t.name}</strong> · created {new Date(t.createdAt).toLocaleDateString()}
-                {t.lastUsedAt ? ` · last used ${new Date(t.lastUsedAt).toLocaleDateString()}` : " · never used"}
+                <strong>{t.name}</strong> · created {day(t.createdAt)}
+                {t.lastUsedAt ? ` · last used ${day(t.lastUsedAt)}` : " · never used"}
               </span>
               {t.revoked ? (
                 <span className="text-ink-soft">✗ revoked</span>

@@ -5,6 +5,7 @@ import { services } from "~/context";
 import { classesFor } from "~/school/classes.server";
 import { deleteStudent, studentInSchool } from "~/school/people.server";
 import type { Route } from "./+types/student";
+import { day } from "~/review/format";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.student.displayName ?? "Student"} · Fretcall` }];
 
@@ -40,7 +41,7 @@ export default function AdminStudent({ loaderData, actionData }: Route.Component
   const busy = useNavigation().state !== "idle";
   return (
     <div className="mx-auto max-w-2xl space-y-6">
-      <PageTitle lead={`Student since ${new Date(student.createdAt).toLocaleDateString()}`}>{student.displayName}</PageTitle>
+      <PageTitle lead={`Student since ${day(student.createdAt)}`}>{student.displayName}</PageTitle>
       <Card>
         <dl className="grid grid-cols-[auto_1fr] gap-x-4 gap-y-2">
           <dt className="font-medium">E-mail</dt>

@@ -10,6 +10,7 @@ import { Button, Card, Field, Notice, PageTitle, PostButton } from "~/components
 import { services } from "~/context";
 import { parseForm } from "~/lib/forms";
 import type { Route } from "./+types/password";
+import { day } from "~/review/format";
 
 export const meta: Route.MetaFunction = () => [{ title: "Change your password · Fretcall" }];
 
@@ -84,7 +85,7 @@ export default function Password({ loaderData, actionData }: Route.ComponentProp
             {loaderData.tokens.map((t) => (
               <li key={t.id} className="flex flex-wrap items-center justify-between gap-2 py-2">
                 <span>
-                  <strong>{t.name}</strong> · created {new Date(t.createdAt).toLocaleDateString()}
+                  <strong>{t.name}</strong> · created {day(t.createdAt)}
                 </span>
                 <PostButton fields={{ intent: "revoke", id: t.id }} disabled={busy}>
                   Revoke

@@ -15,6 +15,7 @@ import type { Route } from "./+types/rhythm";
 import type { Tune } from "~/tunes/builtin";
 import { useNoteNaming } from "~/components/NoteNaming";
 import { Icon } from "~/components/Icon";
+import { day } from "~/review/format";
 
 /** The first full bar's time signature when the score gave one; the tempo counts its beat. */
 function meterWords(tune: Tune) {
@@ -75,7 +76,7 @@ export default function Rhythm({ loaderData }: Route.ComponentProps) {
             {passes.map((p) => (
               <li key={p.id}>
                 <time dateTime={new Date(p.at).toISOString()} suppressHydrationWarning>
-                  {new Date(p.at).toLocaleDateString()}
+                  {day(p.at)}
                 </time>{" "}
                 · {p.tempo} bpm · {p.input === "played" ? "played on the guitar" : "tapped"} · <strong>{p.score} %</strong>
               </li>

@@ -13,6 +13,7 @@ import { describeReadingSet } from "~/reading/spec";
 import { classesFor } from "~/school/classes.server";
 import type { Route } from "./+types/reading-sets";
 import { Icon } from "~/components/Icon";
+import { day } from "~/review/format";
 
 export const meta: Route.MetaFunction = () => [{ title: "Reading sets · Fretcall" }];
 
@@ -65,7 +66,7 @@ export default function ReadingSets({ loaderData, actionData }: Route.ComponentP
     { key: "name", header: "Name", cell: (s) => <Link to={`/teach/sets/${s.id}`} className="font-semibold text-sky underline">{s.name}</Link> },
     { key: "className", header: "Class", cell: (s) => s.className ?? "Whole school", sortValue: (s) => s.className ?? "" },
     { key: "summary", header: "What it reads", cell: (s) => (s.spec ? s.summary : <Badge tone="miss">{s.summary}</Badge>) },
-    { key: "updatedAt", header: "Changed", cell: (s) => new Date(s.updatedAt).toLocaleDateString(), sortValue: (s) => s.updatedAt },
+    { key: "updatedAt", header: "Changed", cell: (s) => day(s.updatedAt), sortValue: (s) => s.updatedAt },
     {
       key: "actions",
       header: <span className="sr-only">Actions</span>,
