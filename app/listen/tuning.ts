@@ -3,6 +3,7 @@ import { defaultSpelling } from "~/music/keys";
 import { displayPitch } from "~/music/pitch";
 import { TUNINGS } from "~/music/tuning";
 import { A4_HZ, hzToMidi } from "./pitch";
+import { plural } from "~/lib/plural";
 
 /** Standard tuning's open strings as sounding MIDI numbers, index 0 = string 1 (E4) … index 5 = string 6 (E2). */
 export const OPEN_STRINGS: readonly number[] = TUNINGS.standard.strings;
@@ -26,7 +27,7 @@ function centsWords(cents: number): string {
   const turn = cents < 0 ? "tighten" : "loosen";
   if (size >= 100) {
     const halfSteps = Math.round(size / 100);
-    return `about ${halfSteps} half step${halfSteps === 1 ? "" : "s"} ${side} — ${turn} it a lot`;
+    return `about ${plural(halfSteps, "half step")} ${side} — ${turn} it a lot`;
   }
   return `${size} cents ${side} — ${turn} ${size <= A_LITTLE_CENTS ? "a little" : "it"}`;
 }
@@ -69,7 +70,7 @@ export function wholeGuitarOffset(readings: { string: number; cents: number }[])
   const halfSteps = Math.round(mean / 100);
   if (halfSteps !== 0 && Math.abs(mean - halfSteps * 100) <= SAME_OFFSET_SPREAD_CENTS / 2) {
     const n = Math.abs(halfSteps);
-    const steps = `${n} half step${n === 1 ? "" : "s"}`;
+    const steps = plural(n, "half step");
     return {
       cents: mean,
       hint:

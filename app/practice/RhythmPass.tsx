@@ -20,6 +20,7 @@ import { HEADPHONES, LatencyCheck, readCalibration } from "./LatencyCheck";
 import { CLOSE_MS, DEFAULT_TEMPO, defaultTempo, GRADE_WORDS, ON_TIME_MS, scoreTaps, timeline, type Grade, type RhythmScore } from "./rhythm";
 import { usePlayAlong } from "./usePlayAlong";
 import { day } from "~/review/format";
+import { plural } from "~/lib/plural";
 
 const TEMPOS = [60, DEFAULT_TEMPO, 90, 108, 120];
 const GRADE_LOOK: Record<Grade, { icon: string; box: string }> = {
@@ -246,7 +247,7 @@ function Results({ score, saved, played, onRetry }: { score: RhythmScore; saved:
         Score {score.score} %{" "}
         <span className="text-lg font-normal text-ink-soft">
           · {score.counts["on-time"]} on time, {score.counts.close} close, {score.counts.early + score.counts.late} early or late, {score.counts.missed} missed
-          {score.extraTaps ? `, ${score.extraTaps} extra ${played ? (score.extraTaps === 1 ? "note" : "notes") : score.extraTaps === 1 ? "tap" : "taps"}` : ""}
+          {score.extraTaps ? `, ${plural(score.extraTaps, played ? "extra note" : "extra tap")}` : ""}
         </span>
       </h2>
       <p className="text-sm text-ink-soft">

@@ -9,6 +9,7 @@ import { Button, Notice, PageTitle } from "~/components/ui";
 import { services } from "~/context";
 import { joinAddress, joinAddressNote } from "~/lib/joinAddress";
 import type { Route } from "./+types/class-cards-print";
+import { plural } from "~/lib/plural";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Sign-in cards · ${data?.cls.name ?? "Class"} · Fretcall` }];
 
@@ -66,7 +67,7 @@ export default function PrintCards({ loaderData, actionData }: Route.ComponentPr
   return (
     <div>
       <div className="no-print mb-6 space-y-3">
-        <PageTitle lead={`${cards.length} ${cards.length === 1 ? "card" : "cards"} on ${pages.length} ${pages.length === 1 ? "page" : "pages"}, ten a page (A4 or Letter). Cut along the dashed lines.`}>
+        <PageTitle lead={`${plural(cards.length, "card")} on ${plural(pages.length, "page")}, ten a page (A4 or Letter). Cut along the dashed lines.`}>
           Sign-in cards for {cls.name}
         </PageTitle>
         <Notice tone="info">
