@@ -26,7 +26,8 @@ import {
   type ServerMessage,
 } from "~/game/protocol";
 import { cleanNickname } from "~/game/nickname";
-import { playerBySeatToken, snapshot } from "~/game/room";
+import { playerBySeatToken } from "~/game/room";
+import { snapshot } from "~/game/roomView";
 import { endedRoomByCode, hostKeyMatches, idleRoomCodes, ROUND_OVER } from "~/rooms/rooms.server";
 import { RoomStore } from "~/rooms/store.server";
 import { Leases, RoomElsewhere } from "./cluster/leases";

@@ -5,7 +5,8 @@ import { parsePitch } from "~/music/pitch";
 import { seededRandom, type ReadingSpec } from "~/music/pools";
 import { resolveTuning } from "~/music/tuning";
 import { CLOSE_CODES, ERROR_CODES, HOST_ACTIONS, serverMessageSchema, type HostAction, type Phase, type ServerMessage } from "./protocol";
-import { initialState, isStoreEffect, LATE_GRACE_MS, needsLead, playerBySeatToken, reduce, replay, snapshot, type Answer, type Effect, type RoomEvent, type RoomRecord, type RoomState } from "./room";
+import { initialState, isStoreEffect, LATE_GRACE_MS, needsLead, playerBySeatToken, reduce, replay, type Answer, type Effect, type RoomEvent, type RoomRecord, type RoomState } from "./room";
+import { snapshot } from "./roomView";
 import { drawnPrompts, roomConfig, tunePrompts, walkSheet, type PromptNote, type RoomConfig } from "./roomConfig";
 import { playerSummaries } from "./standings";
 

@@ -3,7 +3,7 @@ import QRCode from "qrcode";
 import { requireRound } from "~/auth/access.server";
 import { requireUserWithRole } from "~/auth/guards.server";
 import { services } from "~/context";
-import { snapshot } from "~/game/room";
+import { snapshot } from "~/game/roomView";
 import { joinAddress, joinAddressNote } from "~/lib/joinAddress";
 import { Stage } from "~/live/Stage";
 import { loadRoomState } from "~/rooms/log.server";
